@@ -1,0 +1,432 @@
+//! The chemistry tables: families, strong ions, substances, hazard classes, exposure levels.
+//!
+//! The catalog is built from the text of the data files (the caller reads or embeds them);
+//! it checks that every cross-reference resolves and every step is self-consistent, so the
+//! engine can index without checking again. It never reads files itself.
+
+pub mod limits;
+pub mod physical;
+pub mod species;
+pub mod substances;
+
+use std::collections::HashMap;
+
+pub use limits::{GasLimits, JudgedLevels, LimitsFile};
+pub use species::{Family, StrongIon};
+pub use substances::{HazardClass, PhysicalState};
+
+use substances::{ClassesFile, SubstanceEntry, SubstancesFile};
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct FamilyId(pub usize);
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct IonId(pub usize);
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct SubstanceId(pub usize);
+
+/// The text of every data file, named by the file it came from (for error messages).
+pub struct DataSources<'a> {
+    pub species: (&'a str, &'a str),
+    pub substances: (&'a str, &'a str),
+    pub classes: (&'a str, &'a str),
+    pub limits: (&'a str, &'a str),
+    pub physical: (&'a str, &'a str),
+}
+
+/// A commercial solution: one millilitre holds `solute_mol_per_ml` of the solute.
+#[derive(Debug, Clone)]
+pub struct SolutionForm {
+    pub solute: SubstanceId,
+    pub mass_percent: f64,
+    pub solute_mol_per_ml: f64,
+}
+
+/// A substance with every reference resolved.
+#[derive(Debug, Clone)]
+pub struct Substance {
+    pub name: String,
+    pub synonyms: Vec<String>,
+    pub cas: Option<String>,
+    pub formula: Option<String>,
+    /// g/mol of what one "mole" of this entry is (for solutions: of the solute).
+    pub molar_mass: Option<f64>,
+    pub state: PhysicalState,
+    pub families: Vec<(FamilyId, f64)>,
+    pub ions: Vec<(IonId, f64)>,
+    /// g per litre of saturated solution.
+    pub solubility_g_per_l: Option<f64>,
+    /// g/mL of the neat liquid or the commercial solution.
+    pub density_g_per_ml: Option<f64>,
+    pub solution: Option<SolutionForm>,
+    pub classes: Vec<String>,
+    pub entry: SubstanceEntry,
+}
+
+impl Substance {
+    /// True when the substance takes no part in proton transfer (solvents, neutral organics).
+    pub fn is_inert(&self) -> bool {
+        self.families.is_empty() && self.ions.is_empty()
+    }
+}
+
+#[derive(Debug, thiserror::Error)]
+pub enum CatalogError {
+    #[error("{file}: {message}")]
+    Parse { file: String, message: String },
+    #[error("{file}: {message}")]
+    Invalid { file: String, message: String },
+}
+
+pub struct Catalog {
+    pub families: Vec<Family>,
+    pub strong_ions: Vec<StrongIon>,
+    pub substances: Vec<Substance>,
+    pub classes: Vec<HazardClass>,
+    pub limits: LimitsFile,
+    pub physical: physical::Physical,
+    pub water: FamilyId,
+    family_index: HashMap<String, FamilyId>,
+    ion_index: HashMap<String, IonId>,
+    substance_index: HashMap<String, SubstanceId>,
+    gas_index: HashMap<String, usize>,
+}
+
+/// Lower-cases and collapses whitespace so that "Sodium  Cyanide" finds "sodium cyanide".
+pub fn normalize_name(s: &str) -> String {
+    s.split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ")
+        .to_lowercase()
+}
+
+fn parse<T: serde::de::DeserializeOwned>((file, text): (&str, &str)) -> Result<T, CatalogError> {
+    serde_yaml::from_str(text).map_err(|e| CatalogError::Parse {
+        file: file.to_string(),
+        message: e.to_string(),
+    })
+}
+
+impl Catalog {
+    pub fn load(src: DataSources<'_>) -> Result<Catalog, CatalogError> {
+        let species: species::SpeciesFile = parse(src.species)?;
+        let substances: SubstancesFile = parse(src.substances)?;
+        let classes: ClassesFile = parse(src.classes)?;
+        let limits: LimitsFile = parse(src.limits)?;
+        let physical: physical::PhysicalFile = parse(src.physical)?;
+        let bad = |file: &str, message: String| CatalogError::Invalid {
+            file: file.to_string(),
+            message,
+        };
+        let species_file = src.species.0;
+        let substances_file = src.substances.0;
+
+        let mut family_index = HashMap::new();
+        for (i, f) in species.families.iter().enumerate() {
+            validate_family(f).map_err(|m| bad(species_file, format!("family `{}`: {m}", f.id)))?;
+            if family_index.insert(f.id.clone(), FamilyId(i)).is_some() {
+                return Err(bad(
+                    species_file,
+                    format!("family `{}` appears twice", f.id),
+                ));
+            }
+        }
+        let water = *family_index.get("water").ok_or_else(|| {
+            bad(
+                species_file,
+                "the `water` family (pKw and its equation) is missing".into(),
+            )
+        })?;
+        if species.families[water.0].kw_equation.is_none() {
+            return Err(bad(
+                species_file,
+                "family `water` needs a kw_equation block".into(),
+            ));
+        }
+        let mut ion_index = HashMap::new();
+        for (i, ion) in species.strong_ions.iter().enumerate() {
+            if ion.charge == 0 {
+                return Err(bad(
+                    species_file,
+                    format!("strong ion `{}` has charge 0", ion.formula),
+                ));
+            }
+            if ion_index.insert(ion.formula.clone(), IonId(i)).is_some() {
+                return Err(bad(
+                    species_file,
+                    format!("strong ion `{}` appears twice", ion.formula),
+                ));
+            }
+        }
+        let class_ids: std::collections::HashSet<&str> =
+            classes.classes.iter().map(|c| c.id.as_str()).collect();
+
+        let mut resolved = Vec::with_capacity(substances.substances.len());
+        let mut substance_index = HashMap::new();
+        for (i, e) in substances.substances.iter().enumerate() {
+            let ctx = |m: String| bad(substances_file, format!("substance `{}`: {m}", e.name));
+            let gives = e.gives.clone().unwrap_or_default();
+            let mut fams = Vec::new();
+            for (id, n) in &gives.families {
+                let fid = family_index
+                    .get(id)
+                    .ok_or_else(|| ctx(format!("unknown family `{id}`")))?;
+                if !(n.is_finite() && *n > 0.0) {
+                    return Err(ctx(format!("family `{id}` count must be positive")));
+                }
+                fams.push((*fid, *n));
+            }
+            let mut ions = Vec::new();
+            for (id, n) in &gives.ions {
+                let iid = ion_index
+                    .get(id)
+                    .ok_or_else(|| ctx(format!("unknown strong ion `{id}`")))?;
+                if !(n.is_finite() && *n > 0.0) {
+                    return Err(ctx(format!("ion `{id}` count must be positive")));
+                }
+                ions.push((*iid, *n));
+            }
+            for c in &e.classes {
+                if !class_ids.contains(c.as_str()) {
+                    return Err(ctx(format!("unknown hazard class `{c}`")));
+                }
+            }
+            if e.state == PhysicalState::Solution {
+                if e.solution_of.is_none() || e.mass_percent.is_none() || e.density.is_none() {
+                    return Err(ctx(
+                        "a solution needs solution_of, mass_percent and density".into(),
+                    ));
+                }
+            } else if e.molar_mass.is_none() {
+                return Err(ctx("molar_mass is missing".into()));
+            }
+            resolved.push(Substance {
+                name: e.name.clone(),
+                synonyms: e.synonyms.clone(),
+                cas: e.cas.clone(),
+                formula: e.formula.clone(),
+                molar_mass: e.molar_mass,
+                state: e.state,
+                families: fams,
+                ions,
+                solubility_g_per_l: e.solubility.as_ref().map(|s| s.value),
+                density_g_per_ml: e.density.as_ref().map(|s| s.value),
+                solution: None,
+                classes: e.classes.clone(),
+                entry: e.clone(),
+            });
+            let key = normalize_name(&e.name);
+            if substance_index.insert(key, SubstanceId(i)).is_some() {
+                return Err(ctx("the name appears twice".into()));
+            }
+        }
+        // Synonyms, formulas and CAS numbers come second so that a name always wins.
+        for (i, s) in resolved.iter().enumerate() {
+            let keys = s
+                .synonyms
+                .iter()
+                .chain(s.formula.iter())
+                .chain(s.cas.iter());
+            for k in keys {
+                substance_index
+                    .entry(normalize_name(k))
+                    .or_insert(SubstanceId(i));
+            }
+        }
+        // Solutions borrow the solute's chemistry.
+        for i in 0..resolved.len() {
+            let Some(solute_name) = resolved[i].entry.solution_of.clone() else {
+                continue;
+            };
+            let e = &resolved[i].entry;
+            let sid = *substance_index
+                .get(&normalize_name(&solute_name))
+                .ok_or_else(|| {
+                    bad(
+                        substances_file,
+                        format!(
+                            "substance `{}`: solute `{solute_name}` is not in the file",
+                            e.name
+                        ),
+                    )
+                })?;
+            let solute = resolved[sid.0].clone();
+            if solute.solution.is_some() || solute.state == PhysicalState::Solution {
+                return Err(bad(
+                    substances_file,
+                    format!(
+                        "substance `{}`: solute `{solute_name}` is itself a solution",
+                        e.name
+                    ),
+                ));
+            }
+            let mass_percent = e.mass_percent.as_ref().map(|m| m.value).unwrap_or(0.0);
+            let density = e.density.as_ref().map(|d| d.value).unwrap_or(0.0);
+            let molar_mass = solute.molar_mass.unwrap_or(f64::NAN);
+            if !(mass_percent > 0.0 && mass_percent <= 100.0 && density > 0.0) {
+                return Err(bad(
+                    substances_file,
+                    format!(
+                        "substance `{}`: mass_percent and density must be positive",
+                        e.name
+                    ),
+                ));
+            }
+            let s = &mut resolved[i];
+            s.families = solute.families.clone();
+            s.ions = solute.ions.clone();
+            s.molar_mass = Some(molar_mass);
+            if s.formula.is_none() {
+                s.formula = solute.formula.clone();
+            }
+            s.solution = Some(SolutionForm {
+                solute: sid,
+                mass_percent,
+                solute_mol_per_ml: density * mass_percent / 100.0 / molar_mass,
+            });
+        }
+
+        let mut gas_index = HashMap::new();
+        for (i, g) in limits.gases.iter().enumerate() {
+            gas_index.insert(g.gas.clone(), i);
+        }
+
+        Ok(Catalog {
+            families: species.families,
+            strong_ions: species.strong_ions,
+            substances: resolved,
+            classes: classes.classes,
+            limits,
+            physical: physical.into(),
+            water,
+            family_index,
+            ion_index,
+            substance_index,
+            gas_index,
+        })
+    }
+
+    pub fn family(&self, id: FamilyId) -> &Family {
+        &self.families[id.0]
+    }
+    pub fn family_by_id(&self, id: &str) -> Option<FamilyId> {
+        self.family_index.get(id).copied()
+    }
+    pub fn ion(&self, id: IonId) -> &StrongIon {
+        &self.strong_ions[id.0]
+    }
+    pub fn ion_by_formula(&self, f: &str) -> Option<IonId> {
+        self.ion_index.get(f).copied()
+    }
+    pub fn substance(&self, id: SubstanceId) -> &Substance {
+        &self.substances[id.0]
+    }
+    pub fn class(&self, id: &str) -> Option<&HazardClass> {
+        self.classes.iter().find(|c| c.id == id)
+    }
+    pub fn gas_limits(&self, gas: &str) -> Option<&GasLimits> {
+        self.gas_index.get(gas).map(|&i| &self.limits.gases[i])
+    }
+    pub fn judged_levels(&self, gas: &str) -> Option<JudgedLevels> {
+        self.gas_limits(gas)?.judged(&self.limits.fallback)
+    }
+
+    /// Finds a substance by name, synonym, formula or CAS number.
+    pub fn find_substance(&self, query: &str) -> Option<SubstanceId> {
+        self.substance_index.get(&normalize_name(query)).copied()
+    }
+
+    /// The known names closest to an unknown one, best first.
+    pub fn closest_names(&self, query: &str, n: usize) -> Vec<String> {
+        let q = normalize_name(query);
+        let mut scored: Vec<(f64, &str)> = self
+            .substance_index
+            .keys()
+            .map(|k| {
+                let mut score = strsim::jaro_winkler(&q, k);
+                if k.contains(&q) || q.contains(k.as_str()) {
+                    score += 0.2;
+                }
+                (score, k.as_str())
+            })
+            .collect();
+        scored.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(b.1)));
+        let mut out: Vec<String> = Vec::new();
+        for (_, k) in scored {
+            let name = &self.substances[self.substance_index[k].0].name;
+            if !out.contains(name) {
+                out.push(name.clone());
+            }
+            if out.len() == n {
+                break;
+            }
+        }
+        out
+    }
+
+    /// Families whose id, name, species formula or gas matches the query.
+    pub fn find_families(&self, query: &str) -> Vec<FamilyId> {
+        let q = normalize_name(query);
+        (0..self.families.len())
+            .map(FamilyId)
+            .filter(|&id| {
+                let f = self.family(id);
+                normalize_name(&f.id) == q
+                    || normalize_name(&f.name).split(" / ").any(|n| n == q)
+                    || f.species.iter().any(|s| normalize_name(&s.formula) == q)
+                    || f.volatile
+                        .as_ref()
+                        .is_some_and(|v| normalize_name(&v.gas) == q)
+            })
+            .collect()
+    }
+}
+
+fn validate_family(f: &Family) -> Result<(), String> {
+    if f.species.len() < 2 {
+        return Err("needs at least two species".into());
+    }
+    if f.steps.len() + 1 != f.species.len() {
+        return Err(format!(
+            "{} species need {} steps, found {}",
+            f.species.len(),
+            f.species.len() - 1,
+            f.steps.len()
+        ));
+    }
+    if f.species.iter().any(|s| s.charge.abs() > 7) {
+        return Err("charges beyond ±7 are not supported".into());
+    }
+    for w in f.species.windows(2) {
+        if w[1].charge != w[0].charge - 1 {
+            return Err(format!(
+                "charge must fall by one from `{}` to `{}`",
+                w[0].formula, w[1].formula
+            ));
+        }
+    }
+    for (i, s) in f.steps.iter().enumerate() {
+        if !s.pka.is_finite() || !s.dh.is_finite() {
+            return Err(format!("step {} has a non-finite constant", i + 1));
+        }
+        if s.pka_source.trim().is_empty() || s.dh_source.trim().is_empty() {
+            return Err(format!("step {} has no source", i + 1));
+        }
+    }
+    if let Some(v) = &f.volatile {
+        let sp = f
+            .species
+            .iter()
+            .find(|s| s.formula == v.species)
+            .ok_or_else(|| format!("volatile species `{}` is not in the family", v.species))?;
+        if sp.charge != 0 {
+            return Err(format!("volatile species `{}` is charged", v.species));
+        }
+        if !(v.hcp > 0.0 && v.hcp.is_finite() && v.hcp_b.is_finite()) {
+            return Err("Henry's law constant must be positive and finite".into());
+        }
+        if v.source.trim().is_empty() {
+            return Err("Henry's law constant has no source".into());
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,10 @@
+//! The chemistry: temperature-adjusted constants, activity coefficients, and the
+//! equilibrium of a mixed liquid with its headspace. No I/O, no knowledge of files.
+
+pub mod activity;
+pub mod mixture;
+pub mod speciation;
+pub mod temperature;
+
+pub use mixture::{Closure, Mixture};
+pub use speciation::{solve, Equilibrium, FamilyState, GasState, SolveError, SolverSettings};

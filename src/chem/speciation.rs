@@ -1,0 +1,456 @@
+//! The equilibrium of a mixed liquid and its headspace.
+//!
+//! One unknown: x = a(H+). Every family's species follow from x through its conditional
+//! constants; volatile neutral species share their family's moles with the headspace by
+//! Henry's law; the charge balance F(x) = 0 closes the system. F rises monotonically with
+//! ln x, so a Newton step guarded by a bisection bracket always converges. Activity
+//! coefficients (Davies) depend on the ionic strength, which an outer fixed-point loop
+//! settles.
+
+use super::activity::{Gammas, MAX_CHARGE};
+use super::mixture::{Closure, Mixture};
+use super::temperature::{henry_hcp, log_ka, log_kw};
+use crate::catalog::{Catalog, FamilyId};
+
+/// Most steps any family may have (EDTA has six).
+const MAX_STEPS: usize = 8;
+
+#[derive(Debug, Clone, Copy)]
+pub struct SolverSettings {
+    /// Ionic strength above which Davies is outside its validity; coefficients are held
+    /// at their value there rather than following Davies' rise at high I.
+    pub activity_limit: f64,
+    /// Convergence of ln a(H+).
+    pub tolerance: f64,
+    pub max_iterations: usize,
+}
+
+impl Default for SolverSettings {
+    fn default() -> Self {
+        SolverSettings {
+            activity_limit: 0.5,
+            tolerance: 1e-11,
+            max_iterations: 200,
+        }
+    }
+}
+
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum SolveError {
+    #[error("the mixture has no liquid")]
+    NoLiquid,
+    #[error("a total is negative or not a number")]
+    BadTotals,
+    #[error("temperature {0:.1} K is outside 273–373 K")]
+    Temperature(f64),
+    #[error("family `{0}` has more steps than the solver supports")]
+    TooManySteps(String),
+    #[error("the charge balance could not be bracketed")]
+    NoBracket,
+    #[error("the solver did not converge after {0} iterations")]
+    NoConvergence(usize),
+}
+
+/// The state of one family at equilibrium.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FamilyState {
+    pub family: FamilyId,
+    /// Moles in liquid and gas together.
+    pub total_mol: f64,
+    /// mol/L of each species in the liquid, most protonated first.
+    pub concentrations: Vec<f64>,
+    /// Fraction of the liquid total in each species.
+    pub fractions: Vec<f64>,
+}
+
+/// A volatile species in the headspace.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GasState {
+    pub family: FamilyId,
+    pub gas: String,
+    pub partial_pressure_pa: f64,
+    pub moles_in_gas: f64,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct Equilibrium {
+    pub ph: f64,
+    pub ionic_strength: f64,
+    pub temperature_k: f64,
+    pub liquid_l: f64,
+    pub headspace_l: f64,
+    pub closure: Closure,
+    pub h_mol_per_l: f64,
+    pub oh_mol_per_l: f64,
+    pub families: Vec<FamilyState>,
+    pub gases: Vec<GasState>,
+    /// Charge balance residual over the sum of absolute charge concentrations.
+    pub relative_charge_residual: f64,
+    /// True when the ionic strength passed the activity limit.
+    pub activity_limited: bool,
+    pub iterations: usize,
+}
+
+impl Equilibrium {
+    pub fn family(&self, id: FamilyId) -> Option<&FamilyState> {
+        self.families.iter().find(|f| f.family == id)
+    }
+    pub fn total_gas_pressure_pa(&self) -> f64 {
+        self.gases.iter().map(|g| g.partial_pressure_pa).sum()
+    }
+}
+
+/// A family prepared for fast evaluation at one temperature and ionic strength.
+#[derive(Clone, Copy)]
+struct Term {
+    /// mol per litre of liquid if nothing went to the gas.
+    c_total: f64,
+    n: usize,
+    z0: i32,
+    /// Ka of each step at the temperature (thermodynamic).
+    ka: [f64; MAX_STEPS],
+    /// Cumulative conditional constants: beta[j] = Π_{i<=j} K'_i; beta[0] = 1.
+    beta: [f64; MAX_STEPS + 1],
+    /// Moles in gas per mole in liquid, per unit volatile fraction: V_g / (Hcp R T V_l).
+    gas_factor: f64,
+    volatile: usize,
+}
+
+struct Point {
+    f: f64,
+    dfdlnx: f64,
+}
+
+struct Prepared {
+    terms: Vec<Term>,
+    strong_charge: f64,
+    strong_ionic: f64,
+    kw: f64,
+    gamma1: f64,
+}
+
+impl Prepared {
+    fn set_activity(&mut self, g: &Gammas) {
+        self.gamma1 = g.gamma(1);
+        // γ(z) = γ(1)^(z²): one table per ionic strength instead of a power per step.
+        let mut table = [1.0; 2 * MAX_CHARGE as usize + 1];
+        for (k, v) in table.iter_mut().enumerate() {
+            let z = k as i32 - MAX_CHARGE;
+            *v = self.gamma1.powi(z * z);
+        }
+        let gamma = |z: i32| table[(z.clamp(-MAX_CHARGE, MAX_CHARGE) + MAX_CHARGE) as usize];
+        for t in &mut self.terms {
+            t.beta[0] = 1.0;
+            for j in 1..=t.n {
+                let z_acid = t.z0 - (j as i32 - 1);
+                let k = t.ka[j - 1] * gamma(z_acid) / gamma(z_acid - 1);
+                t.beta[j] = t.beta[j - 1] * k;
+            }
+        }
+    }
+
+    /// Charge balance and its slope in ln x.
+    fn eval(&self, x: f64) -> Point {
+        let h = x / self.gamma1;
+        let oh = self.kw / (x * self.gamma1);
+        let mut f = h - oh + self.strong_charge;
+        let mut d = h + oh;
+        for t in &self.terms {
+            let (q, dq) = term_charge(t, x);
+            f += q;
+            d += dq;
+        }
+        Point { f, dfdlnx: d }
+    }
+}
+
+/// Unnormalised species weights w_j = beta_j x^(n−j), and their sum.
+#[inline]
+fn weights(t: &Term, x: f64, w: &mut [f64; MAX_STEPS + 1]) -> f64 {
+    let mut sum = 0.0;
+    let mut xp = 1.0;
+    for j in (0..=t.n).rev() {
+        w[j] = t.beta[j] * xp;
+        sum += w[j];
+        xp *= x;
+    }
+    sum
+}
+
+/// A family's charge concentration in the liquid and its slope in ln x.
+#[inline]
+fn term_charge(t: &Term, x: f64) -> (f64, f64) {
+    let mut w = [0.0; MAX_STEPS + 1];
+    let d = weights(t, x, &mut w);
+    // m_j = n − j protons above the bare base; z_j = (z0 − n) + m_j.
+    let mut m1 = 0.0;
+    let mut m2 = 0.0;
+    for (j, wj) in w.iter().enumerate().take(t.n + 1) {
+        let m = (t.n - j) as f64;
+        m1 += m * wj;
+        m2 += m * m * wj;
+    }
+    m1 /= d;
+    m2 /= d;
+    let zbar = (t.z0 - t.n as i32) as f64 + m1;
+    let dzbar = m2 - m1 * m1;
+    if t.gas_factor == 0.0 {
+        return (t.c_total * zbar, t.c_total * dzbar);
+    }
+    let av = w[t.volatile] / d;
+    let dav = av * ((t.n - t.volatile) as f64 - m1);
+    let denom = 1.0 + t.gas_factor * av;
+    let c_aq = t.c_total / denom;
+    let q = c_aq * zbar;
+    let dq = c_aq * dzbar - t.c_total * zbar * t.gas_factor * dav / (denom * denom);
+    (q, dq)
+}
+
+/// Solves the equilibrium of `m` and its headspace.
+pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibrium, SolveError> {
+    if !(m.liquid_l > 0.0 && m.liquid_l.is_finite()) {
+        return Err(SolveError::NoLiquid);
+    }
+    if !(273.0..=373.5).contains(&m.temperature_k) {
+        return Err(SolveError::Temperature(m.temperature_k));
+    }
+    let phys = &cat.physical;
+    let t_k = m.temperature_k;
+    let vl = m.liquid_l;
+    let vg = if m.closure == Closure::Open {
+        // An open vessel's air is the room: the liquid keeps its gas, which is the
+        // conservative figure for what reaches a face at the opening.
+        0.0
+    } else {
+        m.headspace_l.max(0.0)
+    };
+
+    let mut strong_charge = 0.0;
+    let mut strong_ionic = 0.0;
+    for &(ion, n) in &m.ions {
+        if !(n.is_finite() && n >= 0.0) {
+            return Err(SolveError::BadTotals);
+        }
+        let z = cat.ion(ion).charge as f64;
+        strong_charge += z * n / vl;
+        strong_ionic += z * z * n / vl;
+    }
+    let mut terms = Vec::with_capacity(m.families.len());
+    for &(fid, n) in &m.families {
+        if !(n.is_finite() && n >= 0.0) {
+            return Err(SolveError::BadTotals);
+        }
+        if fid == cat.water || n == 0.0 {
+            continue;
+        }
+        let fam = cat.family(fid);
+        let steps = fam.steps.len();
+        if steps > MAX_STEPS {
+            return Err(SolveError::TooManySteps(fam.id.clone()));
+        }
+        let mut ka = [0.0; MAX_STEPS];
+        for (j, v) in ka.iter_mut().enumerate().take(steps) {
+            *v = 10f64.powf(log_ka(phys, fam, j, t_k));
+        }
+        let (gas_factor, volatile) = match (&fam.volatile, fam.volatile_index()) {
+            (Some(v), Some(idx)) if vg > 0.0 => {
+                let hcp = henry_hcp(phys, v, t_k);
+                ((vg / vl) / (hcp * phys.r * t_k), idx)
+            }
+            _ => (0.0, 0),
+        };
+        terms.push(Term {
+            c_total: n / vl,
+            n: steps,
+            z0: fam.species[0].charge,
+            ka,
+            beta: [0.0; MAX_STEPS + 1],
+            gas_factor,
+            volatile,
+        });
+    }
+    let kw = 10f64.powf(log_kw(phys, cat.family(cat.water), t_k));
+    let mut p = Prepared {
+        terms,
+        strong_charge,
+        strong_ionic,
+        kw,
+        gamma1: 1.0,
+    };
+
+    // Ionic strength: start from the strong ions plus each family half-charged.
+    let mut ionic = 0.5 * strong_ionic + 0.5 * p.terms.iter().map(|t| t.c_total).sum::<f64>();
+    let mut ln_x = (1e-7f64).ln();
+    let mut iterations = 0;
+    let mut limited = false;
+    let mut converged = false;
+    for _ in 0..100 {
+        limited = ionic > s.activity_limit;
+        let g = Gammas::davies(phys, t_k, ionic.min(s.activity_limit));
+        p.set_activity(&g);
+        let (root, its) = find_root(&p, ln_x, s)?;
+        iterations += its;
+        ln_x = root;
+        let new_ionic = ionic_strength(&p, root.exp());
+        let close = (new_ionic - ionic).abs() <= 1e-10 * new_ionic.max(1e-12);
+        // Above the limit the coefficients no longer change with I, so one more pass is exact.
+        let frozen = ionic > s.activity_limit && new_ionic > s.activity_limit;
+        ionic = new_ionic;
+        if close || frozen {
+            converged = true;
+            if frozen {
+                limited = true;
+            }
+            break;
+        }
+    }
+    if !converged {
+        return Err(SolveError::NoConvergence(iterations));
+    }
+    Ok(assemble(
+        cat,
+        m,
+        &p,
+        ln_x.exp(),
+        ionic,
+        vg,
+        limited,
+        iterations,
+    ))
+}
+
+/// Safeguarded Newton in ln x within a bracket where the charge balance changes sign.
+fn find_root(p: &Prepared, start: f64, s: &SolverSettings) -> Result<(f64, usize), SolveError> {
+    let mut lo = (1e-22f64).ln();
+    let mut hi = (1e4f64).ln();
+    if p.eval(lo.exp()).f > 0.0 || p.eval(hi.exp()).f < 0.0 {
+        return Err(SolveError::NoBracket);
+    }
+    let mut x = start.clamp(lo, hi);
+    for it in 1..=s.max_iterations {
+        let pt = p.eval(x.exp());
+        if !pt.f.is_finite() {
+            return Err(SolveError::NoConvergence(it));
+        }
+        if pt.f > 0.0 {
+            hi = x;
+        } else {
+            lo = x;
+        }
+        let newton = if pt.dfdlnx > 0.0 {
+            x - pt.f / pt.dfdlnx
+        } else {
+            f64::NAN
+        };
+        let next = if newton.is_finite() && newton > lo && newton < hi {
+            newton
+        } else {
+            0.5 * (lo + hi)
+        };
+        if (next - x).abs() < s.tolerance || hi - lo < s.tolerance {
+            return Ok((next, it));
+        }
+        x = next;
+    }
+    Err(SolveError::NoConvergence(s.max_iterations))
+}
+
+fn ionic_strength(p: &Prepared, x: f64) -> f64 {
+    let h = x / p.gamma1;
+    let oh = p.kw / (x * p.gamma1);
+    let mut sum = p.strong_ionic + h + oh;
+    let mut w = [0.0; MAX_STEPS + 1];
+    for t in &p.terms {
+        let d = weights(t, x, &mut w);
+        let c_aq = liquid_total(t, &w, d);
+        for (j, wj) in w.iter().enumerate().take(t.n + 1) {
+            let z = (t.z0 - j as i32) as f64;
+            sum += z * z * c_aq * wj / d;
+        }
+    }
+    0.5 * sum
+}
+
+fn liquid_total(t: &Term, w: &[f64; MAX_STEPS + 1], d: f64) -> f64 {
+    if t.gas_factor == 0.0 {
+        t.c_total
+    } else {
+        t.c_total / (1.0 + t.gas_factor * w[t.volatile] / d)
+    }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn assemble(
+    cat: &Catalog,
+    m: &Mixture,
+    p: &Prepared,
+    x: f64,
+    ionic: f64,
+    vg: f64,
+    limited: bool,
+    iterations: usize,
+) -> Equilibrium {
+    let phys = &cat.physical;
+    let t_k = m.temperature_k;
+    let h = x / p.gamma1;
+    let oh = p.kw / (x * p.gamma1);
+    let mut families = Vec::with_capacity(m.families.len());
+    let mut gases = Vec::new();
+    let mut charge = h - oh + p.strong_charge;
+    let mut scale = h + oh + p.strong_ionic;
+    let mut terms = p.terms.iter();
+    for &(fid, n) in &m.families {
+        if fid == cat.water || n == 0.0 {
+            continue;
+        }
+        let t = terms.next().expect("one term per non-empty family");
+        let fam = cat.family(fid);
+        let mut w = [0.0; MAX_STEPS + 1];
+        let d = weights(t, x, &mut w);
+        let c_aq = liquid_total(t, &w, d);
+        let fractions: Vec<f64> = w[..=t.n].iter().map(|wj| wj / d).collect();
+        let concentrations: Vec<f64> = fractions.iter().map(|a| a * c_aq).collect();
+        for (j, c) in concentrations.iter().enumerate() {
+            let z = fam.species[j].charge as f64;
+            charge += z * c;
+            scale += z.abs() * c;
+        }
+        if let (Some(v), Some(idx)) = (&fam.volatile, fam.volatile_index()) {
+            let hcp = henry_hcp(phys, v, t_k);
+            // c in mol/L → mol/m3; p = c / Hcp.
+            let pa = concentrations[idx] * 1e3 / hcp;
+            let moles_in_gas = pa * (vg / 1e3) / (phys.r * t_k);
+            gases.push(GasState {
+                family: fid,
+                gas: v.gas.clone(),
+                partial_pressure_pa: pa,
+                moles_in_gas,
+            });
+        }
+        families.push(FamilyState {
+            family: fid,
+            total_mol: n,
+            concentrations,
+            fractions,
+        });
+    }
+    Equilibrium {
+        ph: -x.log10(),
+        ionic_strength: ionic,
+        temperature_k: t_k,
+        liquid_l: m.liquid_l,
+        headspace_l: m.headspace_l,
+        closure: m.closure,
+        h_mol_per_l: h,
+        oh_mol_per_l: oh,
+        families,
+        gases,
+        relative_charge_residual: if scale > 0.0 {
+            charge.abs() / scale
+        } else {
+            0.0
+        },
+        activity_limited: limited,
+        iterations,
+    }
+}

@@ -1,0 +1,27 @@
+//! The bundled data files, compiled into the program so that it runs from anywhere.
+
+use crate::catalog::{Catalog, DataSources};
+use crate::thresholds::Thresholds;
+
+pub const SPECIES: &str = include_str!("../data/species.yaml");
+pub const SUBSTANCES: &str = include_str!("../data/substances.yaml");
+pub const CLASSES: &str = include_str!("../data/classes.yaml");
+pub const LIMITS: &str = include_str!("../data/limits.yaml");
+pub const PHYSICAL: &str = include_str!("../data/physical.yaml");
+pub const THRESHOLDS: &str = include_str!("../rules/thresholds.yaml");
+
+/// The bundled catalog. The bundled files are checked by the test suite, so a failure
+/// here is a build defect, reported as such.
+pub fn catalog() -> Result<Catalog, crate::catalog::CatalogError> {
+    Catalog::load(DataSources {
+        species: ("data/species.yaml", SPECIES),
+        substances: ("data/substances.yaml", SUBSTANCES),
+        classes: ("data/classes.yaml", CLASSES),
+        limits: ("data/limits.yaml", LIMITS),
+        physical: ("data/physical.yaml", PHYSICAL),
+    })
+}
+
+pub fn thresholds() -> Result<Thresholds, String> {
+    Thresholds::parse("rules/thresholds.yaml", THRESHOLDS)
+}

@@ -1,0 +1,17 @@
+//! offgas: what gas comes out if these meet?
+//!
+//! The library holds all the chemistry and knows nothing of files, terminals or command
+//! lines: callers hand it the text of data and batch files and get reports back.
+
+pub mod assess;
+pub mod batch;
+pub mod catalog;
+pub mod check;
+pub mod chem;
+pub mod embedded;
+pub mod pairs;
+pub mod path;
+pub mod quantity;
+pub mod render;
+pub mod report;
+pub mod thresholds;
