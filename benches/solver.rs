@@ -1,0 +1,62 @@
+//! Speed of one speciation solve (target: 5 µs for a 12-family mixture) and of one whole
+//! `check` computation in-process (mixing path both ways, pairs, findings).
+
+use criterion::{black_box, criterion_group, criterion_main, Criterion};
+use offgas::batch::Batch;
+use offgas::chem::{solve, Closure, Mixture, SolverSettings};
+
+const TWELVE: [(&str, f64); 12] = [
+    ("cyanide", 0.01),
+    ("sulfide", 0.005),
+    ("ammonia", 0.05),
+    ("carbonate", 0.02),
+    ("sulfite", 0.01),
+    ("fluoride", 0.01),
+    ("acetate", 0.05),
+    ("phosphate", 0.02),
+    ("citrate", 0.01),
+    ("chloride", 0.2),
+    ("sulfate", 0.05),
+    ("borate", 0.01),
+];
+
+fn twelve_family_mixture(cat: &offgas::catalog::Catalog) -> Mixture {
+    let mut m = Mixture::empty(295.15, Closure::Sealed);
+    for (f, c) in TWELVE {
+        m.add_family(cat.family_by_id(f).expect("family"), c * 10.0);
+    }
+    m.add_ion(cat.ion_by_formula("Na+").unwrap(), 0.3 * 10.0);
+    m.liquid_l = 10.0;
+    m.headspace_l = 10.0;
+    m
+}
+
+fn bench(c: &mut Criterion) {
+    let cat = offgas::embedded::catalog().unwrap();
+    let th = offgas::embedded::thresholds().unwrap();
+    let m = twelve_family_mixture(&cat);
+    let s = SolverSettings::default();
+    c.bench_function("solve 12-family mixture with headspace", |b| {
+        b.iter(|| solve(&cat, black_box(&m), &s).unwrap())
+    });
+    let container = Batch::parse(
+        &cat,
+        "carboy",
+        include_str!("../data/demo/carboy-cyanide-plating.yaml"),
+    )
+    .unwrap();
+    let stream = Batch::parse(
+        &cat,
+        "stream",
+        include_str!("../data/demo/stream-acid-descale.yaml"),
+    )
+    .unwrap();
+    c.bench_function("check: whole computation in-process", |b| {
+        b.iter(|| {
+            offgas::check::check(&cat, &th, &container, &stream, &Default::default()).unwrap()
+        })
+    });
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

@@ -1,0 +1,440 @@
+//! Batch files: a container or a stream, as a user writes it in YAML.
+//!
+//! Parsing turns the user's words into resolved substances and moles, and every mistake
+//! into an `InputError` that names the file, the line where it can be found, and the fix.
+
+use crate::catalog::{Catalog, PhysicalState, SubstanceId};
+use crate::chem::{Closure, Mixture};
+use crate::quantity::{parse_amount, parse_temperature, parse_volume, Amount, QuantityError};
+use serde::Deserialize;
+use std::fmt;
+
+/// A mistake in something the user wrote.
+#[derive(Debug, Clone, PartialEq)]
+pub struct InputError {
+    pub file: String,
+    pub line: Option<usize>,
+    pub message: String,
+    pub fix: Option<String>,
+}
+
+impl fmt::Display for InputError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self.line {
+            Some(l) => write!(f, "{}:{}: {}", self.file, l, self.message)?,
+            None => write!(f, "{}: {}", self.file, self.message)?,
+        }
+        if let Some(fix) = &self.fix {
+            write!(f, "\n  fix: {fix}")?;
+        }
+        Ok(())
+    }
+}
+
+impl std::error::Error for InputError {}
+
+/// One component as resolved against the catalog.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Component {
+    pub written: String,
+    pub substance: SubstanceId,
+    pub amount: Amount,
+    /// Moles of the substance (for a commercial solution, of its solute).
+    pub moles: f64,
+    pub line: Option<usize>,
+}
+
+/// A container (with capacity and closure) or a stream.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Batch {
+    pub file: String,
+    pub name: String,
+    pub capacity_l: Option<f64>,
+    pub volume_l: f64,
+    pub temperature_k: f64,
+    pub temperature_given: bool,
+    pub closure: Closure,
+    pub density_g_per_ml: f64,
+    pub density_given: bool,
+    pub components: Vec<Component>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawBatch {
+    name: Option<String>,
+    capacity: Option<serde_yaml::Value>,
+    volume: Option<serde_yaml::Value>,
+    temperature: Option<serde_yaml::Value>,
+    closure: Option<String>,
+    density: Option<serde_yaml::Value>,
+    #[serde(default)]
+    contents: Vec<serde_yaml::Value>,
+    #[serde(default)]
+    #[allow(dead_code)]
+    note: Option<String>,
+}
+
+/// First line (1-based) at or after `from` whose text contains `needle`.
+fn line_of(text: &str, needle: &str, from: usize) -> Option<usize> {
+    text.lines()
+        .enumerate()
+        .skip(from.saturating_sub(1))
+        .find(|(_, l)| l.contains(needle))
+        .map(|(i, _)| i + 1)
+}
+
+fn scalar_text(v: &serde_yaml::Value) -> Option<String> {
+    match v {
+        serde_yaml::Value::String(s) => Some(s.clone()),
+        serde_yaml::Value::Number(n) => Some(n.to_string()),
+        _ => None,
+    }
+}
+
+struct Ctx<'a> {
+    file: &'a str,
+    text: &'a str,
+}
+
+impl Ctx<'_> {
+    fn err(
+        &self,
+        line: Option<usize>,
+        message: impl Into<String>,
+        fix: Option<String>,
+    ) -> InputError {
+        InputError {
+            file: self.file.to_string(),
+            line,
+            message: message.into(),
+            fix,
+        }
+    }
+    fn key_line(&self, key: &str) -> Option<usize> {
+        self.text
+            .lines()
+            .position(|l| l.trim_start().starts_with(&format!("{key}:")))
+            .map(|i| i + 1)
+    }
+    fn quantity<T>(
+        &self,
+        key: &str,
+        v: &serde_yaml::Value,
+        parse: fn(&str) -> Result<T, QuantityError>,
+    ) -> Result<T, InputError> {
+        let line = self.key_line(key);
+        let text = scalar_text(v)
+            .ok_or_else(|| self.err(line, format!("`{key}` must be a value with a unit"), None))?;
+        parse(&text).map_err(|e| self.err(line, format!("`{key}`: {e}"), None))
+    }
+}
+
+impl Batch {
+    /// Parses a batch file. `file` names it in messages.
+    pub fn parse(cat: &Catalog, file: &str, text: &str) -> Result<Batch, InputError> {
+        let ctx = Ctx { file, text };
+        let raw: RawBatch = serde_yaml::from_str(text).map_err(|e| {
+            let line = e.location().map(|l| l.line());
+            let msg = e.to_string();
+            let fix = if msg.contains("unknown field") {
+                Some("the keys a batch file knows are: name, capacity, volume, temperature, closure, density, contents, note".into())
+            } else {
+                Some("check the indentation and the `key: value` form; see data/demo/ for examples".into())
+            };
+            ctx.err(line, format!("not a readable batch file: {msg}"), fix)
+        })?;
+
+        let volume_v = raw.volume.as_ref().ok_or_else(|| {
+            ctx.err(
+                None,
+                "`volume` is missing",
+                Some("add the liquid volume, e.g. `volume: 12 L`".into()),
+            )
+        })?;
+        let volume = ctx.quantity("volume", volume_v, parse_volume)?.0;
+        if volume <= 0.0 {
+            return Err(ctx.err(
+                ctx.key_line("volume"),
+                "`volume` must be above zero",
+                Some("give the liquid volume in the batch, e.g. `volume: 12 L`".into()),
+            ));
+        }
+        let capacity = match &raw.capacity {
+            Some(v) => {
+                let c = ctx.quantity("capacity", v, parse_volume)?.0;
+                if c <= 0.0 {
+                    return Err(ctx.err(
+                        ctx.key_line("capacity"),
+                        "`capacity` must be above zero",
+                        None,
+                    ));
+                }
+                if volume > c * (1.0 + 1e-9) {
+                    return Err(ctx.err(
+                        ctx.key_line("volume"),
+                        format!("`volume` ({volume} L) is more than the `capacity` ({c} L)"),
+                        Some("the liquid cannot exceed the vessel; check both numbers".into()),
+                    ));
+                }
+                Some(c)
+            }
+            None => None,
+        };
+        let (temperature_k, temperature_given) = match &raw.temperature {
+            Some(v) => (ctx.quantity("temperature", v, parse_temperature)?.0, true),
+            None => (298.15, false),
+        };
+        check_temperature(&ctx, temperature_k)?;
+        let closure = match raw.closure.as_deref() {
+            None => Closure::Sealed,
+            Some(s) => match s.trim().to_lowercase().as_str() {
+                "sealed" => Closure::Sealed,
+                "vented" => Closure::Vented,
+                "open" => Closure::Open,
+                other => {
+                    return Err(ctx.err(
+                        ctx.key_line("closure"),
+                        format!("`closure: {other}` is not one offgas knows"),
+                        Some("use sealed, vented or open".into()),
+                    ))
+                }
+            },
+        };
+        let (density, density_given) = match &raw.density {
+            Some(v) => {
+                let line = ctx.key_line("density");
+                let t = scalar_text(v).unwrap_or_default();
+                let d = parse_density(&t).ok_or_else(|| {
+                    ctx.err(
+                        line,
+                        format!("`density: {t}` is not a density"),
+                        Some("write it like `density: 1.05 g/mL`".into()),
+                    )
+                })?;
+                (d, true)
+            }
+            None => (1.0, false),
+        };
+
+        let mut batch = Batch {
+            file: file.to_string(),
+            name: raw.name.unwrap_or_else(|| file.to_string()),
+            capacity_l: capacity,
+            volume_l: volume,
+            temperature_k,
+            temperature_given,
+            closure,
+            density_g_per_ml: density,
+            density_given,
+            components: Vec::new(),
+        };
+        let contents_line = ctx.key_line("contents").unwrap_or(1);
+        let mut search_from = contents_line;
+        let mut liquid_ml = 0.0;
+        for item in &raw.contents {
+            let (written, amount_text) = component_parts(item).ok_or_else(|| {
+                ctx.err(
+                    line_of(text, "-", search_from),
+                    "a contents entry must read `- substance: amount`",
+                    Some("e.g. `- sodium hydroxide: 0.1 mol/L` or `- {substance: sodium hydroxide, amount: 0.1 mol/L}`".into()),
+                )
+            })?;
+            let line = line_of(text, &written, search_from);
+            if let Some(l) = line {
+                search_from = l + 1;
+            }
+            let sid = cat.find_substance(&written).ok_or_else(|| {
+                let close = cat.closest_names(&written, 3);
+                ctx.err(
+                    line,
+                    format!("unknown substance `{written}`"),
+                    Some(format!(
+                        "did you mean: {}? (`offgas lookup NAME` searches names, synonyms, formulas and CAS numbers)",
+                        close.join(", ")
+                    )),
+                )
+            })?;
+            let amount = parse_amount(&amount_text)
+                .map_err(|e| ctx.err(line, format!("`{written}`: {e}"), None))?;
+            let (moles, ml) = moles_of(cat, sid, amount, volume, density)
+                .map_err(|m| ctx.err(line, format!("`{written}`: {m}"), None))?;
+            check_reachable(cat, sid, moles, volume)
+                .map_err(|(m, fix)| ctx.err(line, format!("`{written}`: {m}"), Some(fix)))?;
+            liquid_ml += ml;
+            batch.components.push(Component {
+                written,
+                substance: sid,
+                amount,
+                moles,
+                line,
+            });
+        }
+        if liquid_ml > volume * 1e3 * 1.001 {
+            return Err(ctx.err(
+                Some(contents_line),
+                format!(
+                    "the liquids listed add up to {:.3} L, more than the batch volume of {volume} L",
+                    liquid_ml / 1e3
+                ),
+                Some("raise `volume` or lower the amounts".into()),
+            ));
+        }
+        Ok(batch)
+    }
+
+    /// The batch as amounts for the solver, in a vessel of `capacity_l`.
+    pub fn to_mixture(&self, cat: &Catalog, capacity_l: f64) -> Mixture {
+        let mut m = Mixture::empty(self.temperature_k, self.closure);
+        for c in &self.components {
+            let s = cat.substance(c.substance);
+            for &(f, n) in &s.families {
+                m.add_family(f, n * c.moles);
+            }
+            for &(i, n) in &s.ions {
+                m.add_ion(i, n * c.moles);
+            }
+        }
+        m.liquid_l = self.volume_l;
+        m.headspace_l = (capacity_l - self.volume_l).max(0.0);
+        m
+    }
+}
+
+fn check_temperature(ctx: &Ctx<'_>, t_k: f64) -> Result<(), InputError> {
+    if !(273.15..=373.15).contains(&t_k) {
+        return Err(ctx.err(
+            ctx.key_line("temperature"),
+            format!(
+                "temperature {:.1} °C is outside 0–100 °C, the range of the aqueous model",
+                t_k - 273.15
+            ),
+            Some("offgas models liquid water only; check the unit (°C or K)".into()),
+        ));
+    }
+    Ok(())
+}
+
+fn parse_density(t: &str) -> Option<f64> {
+    let t = t.trim();
+    let num_end = t
+        .find(|c: char| !(c.is_ascii_digit() || c == '.'))
+        .unwrap_or(t.len());
+    let v: f64 = t[..num_end].parse().ok()?;
+    let unit: String = t[num_end..]
+        .chars()
+        .filter(|c| !c.is_whitespace())
+        .collect();
+    let d = match unit.to_lowercase().as_str() {
+        "g/ml" | "g/cm3" | "kg/l" | "" => v,
+        "kg/m3" | "g/l" => v / 1e3,
+        _ => return None,
+    };
+    (d > 0.3 && d < 3.0).then_some(d)
+}
+
+fn component_parts(item: &serde_yaml::Value) -> Option<(String, String)> {
+    let map = item.as_mapping()?;
+    if map.len() == 1 {
+        let (k, v) = map.iter().next()?;
+        let k = k.as_str()?.trim().to_string();
+        if k != "substance" {
+            return Some((k, scalar_text(v)?));
+        }
+    }
+    let s = map.get("substance")?.as_str()?.trim().to_string();
+    let a = scalar_text(map.get("amount")?)?;
+    if map.len() != 2 {
+        return None;
+    }
+    Some((s, a))
+}
+
+/// Moles of the substance (or its solute) and the millilitres of liquid it brings.
+fn moles_of(
+    cat: &Catalog,
+    sid: SubstanceId,
+    amount: Amount,
+    volume_l: f64,
+    batch_density: f64,
+) -> Result<(f64, f64), String> {
+    let s = cat.substance(sid);
+    let molar_mass = s.molar_mass.unwrap_or(f64::NAN);
+    let needs_density = || {
+        format!(
+            "a volume of `{}` needs its density, which the data do not have; give the amount as a mass or in mol",
+            s.name
+        )
+    };
+    // Grams of the entry as written (for a solution, grams of the solution).
+    let grams_to_mol = |g: f64| match &s.solution {
+        Some(sol) => g * sol.mass_percent / 100.0 / molar_mass,
+        None => g / molar_mass,
+    };
+    let ml_to_mol = |ml: f64| -> Result<f64, String> {
+        match (&s.solution, s.density_g_per_ml) {
+            (Some(sol), _) => Ok(ml * sol.solute_mol_per_ml),
+            (None, Some(d)) if matches!(s.state, PhysicalState::Liquid) => Ok(ml * d / molar_mass),
+            _ => Err(needs_density()),
+        }
+    };
+    let is_liquid = matches!(s.state, PhysicalState::Liquid | PhysicalState::Solution);
+    let out = match amount {
+        Amount::MolPerLitre(c) => (c * volume_l, 0.0),
+        Amount::GramPerLitre(g) => (grams_to_mol(g * volume_l), 0.0),
+        Amount::PercentWeightPerWeight(w) => (
+            grams_to_mol(w / 100.0 * batch_density * 1e3 * volume_l),
+            0.0,
+        ),
+        Amount::PercentWeightPerVolume(w) => (grams_to_mol(w * 10.0 * volume_l), 0.0),
+        Amount::MillilitrePerLitre(ml) => {
+            let total_ml = ml * volume_l;
+            (ml_to_mol(total_ml)?, total_ml)
+        }
+        Amount::Moles(n) => (n, 0.0),
+        Amount::Grams(g) => (grams_to_mol(g), 0.0),
+        Amount::Millilitres(ml) => (ml_to_mol(ml)?, if is_liquid { ml } else { 0.0 }),
+    };
+    if !out.0.is_finite() {
+        return Err(format!("`{}` has no molar mass in the data", s.name));
+    }
+    Ok(out)
+}
+
+/// Refuses amounts that cannot dissolve or exceed the neat substance.
+fn check_reachable(
+    cat: &Catalog,
+    sid: SubstanceId,
+    moles: f64,
+    volume_l: f64,
+) -> Result<(), (String, String)> {
+    let s = cat.substance(sid);
+    let Some(mm) = s.molar_mass else {
+        return Ok(());
+    };
+    let g_per_l = moles * mm / volume_l;
+    if let Some(sol) = s.solubility_g_per_l {
+        if g_per_l > sol * 1.0001 {
+            return Err((
+                format!(
+                    "{g_per_l:.0} g/L is above its solubility of about {sol} g/L; offgas models dissolved substances only"
+                ),
+                "lower the amount, or raise the batch volume so that it can dissolve".into(),
+            ));
+        }
+    }
+    let neat = match (&s.solution, s.state, s.density_g_per_ml) {
+        (Some(sol), _, _) => Some(sol.solute_mol_per_ml * 1e3 * mm),
+        (None, PhysicalState::Liquid, Some(d)) => Some(d * 1e3),
+        _ => None,
+    };
+    if let Some(max) = neat {
+        if g_per_l > max * 1.0001 {
+            return Err((
+                format!("{g_per_l:.0} g/L is more than the neat substance holds ({max:.0} g/L)"),
+                "check the amount and its unit".into(),
+            ));
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,324 @@
+//! `check`: can this stream go into that container? The whole computation for one pour.
+
+use crate::assess::{fmt_times, score, state_findings, state_report, where_in_pour};
+use crate::batch::{Batch, InputError};
+use crate::catalog::Catalog;
+use crate::chem::{solve, Closure, SolveError, SolverSettings};
+use crate::pairs::pair_table;
+use crate::path::{scan, PathScan};
+use crate::report::{
+    BatchReport, CheckReport, ComponentReport, Finding, OrderReport, Severity, WorstStateReport,
+};
+use crate::thresholds::Thresholds;
+
+#[derive(Debug, Clone, Default)]
+pub struct CheckOptions {
+    /// Overrides the temperature of both batches (K).
+    pub temperature_k: Option<f64>,
+}
+
+#[derive(Debug, thiserror::Error)]
+pub enum CheckError {
+    #[error("{0}")]
+    Input(#[from] InputError),
+    #[error("could not be assessed: {what}: {error}. Treat the mixture as unsafe until it is checked another way.")]
+    Solve { what: String, error: SolveError },
+}
+
+fn settings(th: &Thresholds) -> SolverSettings {
+    SolverSettings {
+        activity_limit: th.activity_model.max_ionic_strength,
+        ..SolverSettings::default()
+    }
+}
+
+/// Checks pouring `stream` into `container`, both ways round, and builds the report.
+pub fn check(
+    cat: &Catalog,
+    th: &Thresholds,
+    container: &Batch,
+    stream: &Batch,
+    opts: &CheckOptions,
+) -> Result<CheckReport, CheckError> {
+    let capacity = container.capacity_l.ok_or_else(|| InputError {
+        file: container.file.clone(),
+        line: None,
+        message: "the container has no `capacity`".into(),
+        fix: Some("add the vessel's full volume, e.g. `capacity: 20 L`".into()),
+    })?;
+    let total = container.volume_l + stream.volume_l;
+    if total > capacity * (1.0 + 1e-9) {
+        return Err(InputError {
+            file: stream.file.clone(),
+            line: None,
+            message: format!(
+                "adding {} L to the {} L already in `{}` makes {} L, more than its capacity of {} L",
+                stream.volume_l, container.volume_l, container.name, total, capacity
+            ),
+            fix: Some("pour less, or use a larger or emptier container".into()),
+        }
+        .into());
+    }
+    let mut a = container.to_mixture(cat, capacity);
+    let mut b = stream.to_mixture(cat, capacity);
+    b.closure = container.closure;
+    if let Some(t) = opts.temperature_k {
+        a.temperature_k = t;
+        b.temperature_k = t;
+    }
+    let s = settings(th);
+    let scorer = |eq: &crate::chem::Equilibrium| score(cat, th, eq);
+    let solve_err = |what: &str| {
+        let what = what.to_string();
+        move |(f, error): (f64, SolveError)| CheckError::Solve {
+            what: format!("{what}, {}", where_in_pour(f)),
+            error,
+        }
+    };
+    let forward = scan(cat, &a, &b, capacity, &s, &scorer)
+        .map_err(solve_err("pouring the stream into the container"))?;
+    // The other way: the stream stands in the vessel and the container's contents go in.
+    let mut b_in_vessel = b.clone();
+    b_in_vessel.headspace_l = (capacity - b.liquid_l).max(0.0);
+    let backward = scan(cat, &b_in_vessel, &a, capacity, &s, &scorer)
+        .map_err(solve_err("pouring the container into the stream"))?;
+
+    // Each batch alone, for the pair table.
+    let alone = |m: &crate::chem::Mixture, what: &str| {
+        solve(cat, m, &s).map_err(|error| CheckError::Solve {
+            what: format!("{what} on its own"),
+            error,
+        })
+    };
+    let eq_a = alone(&a, "the container")?;
+    let eq_b = alone(&b_in_vessel, "the stream")?;
+    let pairs = pair_table(
+        cat,
+        &eq_a,
+        &eq_b,
+        forward.end.state.temperature_k,
+        &th.proton_transfer,
+    );
+
+    let end = state_report(cat, th, &forward.end.state);
+    let worst = state_report(cat, th, &forward.worst.state);
+    let sealed = container.closure == Closure::Sealed;
+    let mut findings = state_findings(th, &end, &worst, forward.worst.fraction_added, sealed);
+    findings.extend(order_findings(th, &forward, &backward));
+    findings.extend(unmodelled_findings(cat, container, stream));
+    let inert = inert_names(cat, container, stream);
+    if !inert.is_empty() {
+        findings.push(Finding {
+            severity: Severity::Info,
+            code: "inert-components",
+            message: format!(
+                "Treated as taking no part in proton transfer: {}.",
+                inert.join(", ")
+            ),
+            caution: "Solvents can still burn, form a separate layer or react by other routes; see their safety data sheets.".into(),
+        });
+    }
+    findings.sort_by_key(|f| std::cmp::Reverse(f.severity));
+    let severity = Severity::verdict(&findings);
+
+    let order = |p: &PathScan, description: &str| OrderReport {
+        description: description.into(),
+        worst_state: WorstStateReport {
+            fraction_added: p.worst.fraction_added,
+            state: state_report(cat, th, &p.worst.state),
+        },
+        worst_limit_ratio: p.worst.score,
+    };
+    Ok(CheckReport {
+        tool: "offgas",
+        version: env!("CARGO_PKG_VERSION"),
+        severity,
+        container: batch_report(cat, container, true),
+        stream: batch_report(cat, stream, false),
+        end_state: end,
+        worst_state: WorstStateReport {
+            fraction_added: forward.worst.fraction_added,
+            state: worst,
+        },
+        poured_as_written: order(&forward, "the stream poured into the container"),
+        poured_other_way: Some(order(
+            &backward,
+            "the container's contents poured into the stream",
+        )),
+        pairs,
+        findings,
+        inert_components: inert,
+        assumptions: assumptions(container, stream, opts, th),
+        cautions: th.cautions.clone(),
+    })
+}
+
+fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> Vec<Finding> {
+    let mut out = Vec::new();
+    let factor = th.mixing_path.safer_order_factor;
+    let (fw, bw) = (forward.worst.score, backward.worst.score);
+    if fw >= 1.0 && bw * factor <= fw {
+        out.push(Finding {
+            severity: Severity::Info,
+            code: "safer-order",
+            message: format!(
+                "The order matters: pouring the container's contents into the stream instead keeps the worst headspace at {} the short-term level, against {} as written.",
+                fmt_times(bw), fmt_times(fw)
+            ),
+            caution: "If you change the order, check the new order as its own pour; add slowly, with stirring, in a fume hood.".into(),
+        });
+    } else if bw >= 1.0 && fw * factor <= bw {
+        out.push(Finding {
+            severity: Severity::Info,
+            code: "keep-this-order",
+            message: format!(
+                "The order matters: pouring the container's contents into the stream would reach {} the short-term level, against {} as written. Pour as written.",
+                fmt_times(bw), fmt_times(fw)
+            ),
+            caution: "Label the container so that nobody reverses the order.".into(),
+        });
+    }
+    let end = forward.end.score;
+    if fw >= 1.0 && forward.worst.fraction_added < 1.0 && fw >= factor * end {
+        out.push(Finding {
+            severity: Severity::Info,
+            code: "worst-while-pouring",
+            message: format!(
+                "The worst moment is {}, not the end: {} the short-term level there against {} at the end.",
+                where_in_pour(forward.worst.fraction_added),
+                fmt_times(fw),
+                fmt_times(end)
+            ),
+            caution: "Gas released during the pour escapes at the opening; the end state alone understates the exposure.".into(),
+        });
+    }
+    out
+}
+
+fn unmodelled_findings(cat: &Catalog, container: &Batch, stream: &Batch) -> Vec<Finding> {
+    let mut hits: Vec<String> = Vec::new();
+    for c in container.components.iter().chain(stream.components.iter()) {
+        let s = cat.substance(c.substance);
+        let classes: Vec<&str> = s
+            .classes
+            .iter()
+            .filter(|id| cat.class(id).is_some_and(|k| k.beyond_proton_model))
+            .map(|s| s.as_str())
+            .collect();
+        if !classes.is_empty() {
+            let line = format!("{} ({})", s.name, classes.join(", "));
+            if !hits.contains(&line) {
+                hits.push(line);
+            }
+        }
+    }
+    if hits.is_empty() {
+        return Vec::new();
+    }
+    vec![Finding {
+        severity: Severity::Review,
+        code: "hazard-not-assessed",
+        message: format!(
+            "These components carry hazards that are not proton transfers, which this check does not assess: {}.",
+            hits.join("; ")
+        ),
+        caution: "Until these are assessed, have a competent person review the mixture against the safety data sheets (oxidisers, hypochlorite, nitrite, azide, water-reactive and similar hazards).".into(),
+    }]
+}
+
+fn inert_names(cat: &Catalog, container: &Batch, stream: &Batch) -> Vec<String> {
+    let mut out: Vec<String> = Vec::new();
+    for c in container.components.iter().chain(stream.components.iter()) {
+        let s = cat.substance(c.substance);
+        if s.is_inert() && !out.contains(&s.name) {
+            out.push(s.name.clone());
+        }
+    }
+    out
+}
+
+fn batch_report(cat: &Catalog, b: &Batch, is_container: bool) -> BatchReport {
+    BatchReport {
+        file: b.file.clone(),
+        name: b.name.clone(),
+        volume_l: b.volume_l,
+        capacity_l: if is_container { b.capacity_l } else { None },
+        closure: is_container.then_some(b.closure),
+        temperature_c: b.temperature_k - cat.physical.kelvin_offset,
+        components: b
+            .components
+            .iter()
+            .map(|c| {
+                let s = cat.substance(c.substance);
+                ComponentReport {
+                    written: c.written.clone(),
+                    substance: s.name.clone(),
+                    amount: format_amount(c.amount),
+                    moles: c.moles,
+                    inert: s.is_inert(),
+                    classes: s.classes.clone(),
+                }
+            })
+            .collect(),
+    }
+}
+
+fn format_amount(a: crate::quantity::Amount) -> String {
+    use crate::quantity::Amount::*;
+    match a {
+        MolPerLitre(v) => format!("{v} mol/L"),
+        GramPerLitre(v) => format!("{v} g/L"),
+        PercentWeightPerWeight(v) => format!("{v} % w/w"),
+        PercentWeightPerVolume(v) => format!("{v} % w/v"),
+        MillilitrePerLitre(v) => format!("{v} mL/L"),
+        Moles(v) => format!("{v} mol"),
+        Grams(v) => format!("{v} g"),
+        Millilitres(v) => format!("{v} mL"),
+    }
+}
+
+fn assumptions(
+    container: &Batch,
+    stream: &Batch,
+    opts: &CheckOptions,
+    th: &Thresholds,
+) -> Vec<String> {
+    let mut out = vec![
+        "Equilibrium of a well-mixed liquid with its headspace; the headspace starts as air at 1 atm and each volatile form shares its moles with it by Henry's law.".to_string(),
+        format!(
+            "Activity coefficients by the Davies equation, held at their value at I = {} mol/L above that.",
+            th.activity_model.max_ionic_strength
+        ),
+        "Constants adjusted to the mixture temperature by the van 't Hoff equation with each step's ionization enthalpy; Kw from its temperature equation.".to_string(),
+        "Heat of mixing is not yet counted: the mixture is taken at the volume-weighted mean of the two temperatures.".to_string(),
+        "Metal cyanide and other metal complexes are not modelled; cyanide is counted as free, which overstates HCN.".to_string(),
+        "The other order of pouring is computed in the same vessel with the same closure.".to_string(),
+    ];
+    if let Some(t) = opts.temperature_k {
+        out.push(format!(
+            "Temperature set on the command line: {:.1} °C for both batches.",
+            t - 273.15
+        ));
+    }
+    for b in [container, stream] {
+        if !b.temperature_given && opts.temperature_k.is_none() {
+            out.push(format!("`{}` has no temperature: 25 °C assumed.", b.name));
+        }
+        let uses_ww = b
+            .components
+            .iter()
+            .any(|c| matches!(c.amount, crate::quantity::Amount::PercentWeightPerWeight(_)));
+        if uses_ww && !b.density_given {
+            out.push(format!(
+                "`{}` gives % w/w amounts without a density: 1.00 g/mL assumed.",
+                b.name
+            ));
+        }
+    }
+    match container.closure {
+        Closure::Sealed => {}
+        Closure::Vented => out.push("Vented container: gas above atmospheric pressure leaves through the vent, so no overpressure builds; the headspace figures are those just above the liquid.".into()),
+        Closure::Open => out.push("Open container: the liquid is taken to keep its gas, and the headspace figure is the concentration in air in equilibrium with the liquid surface, the most a person at the opening could meet.".into()),
+    }
+    out
+}

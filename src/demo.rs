@@ -1,0 +1,132 @@
+//! `offgas demo`: the bundled scenario, a fictional building's waste checks.
+
+use crate::Format;
+use anyhow::{anyhow, Result};
+use offgas::batch::Batch;
+use offgas::check::{check, CheckOptions};
+use serde::Deserialize;
+
+const SCENARIO: &str = include_str!("../data/demo/scenario.yaml");
+
+/// The demo's batch files, embedded so that `offgas demo` runs from anywhere.
+const FILES: &[(&str, &str)] = &[
+    (
+        "carboy-basic-rinse.yaml",
+        include_str!("../data/demo/carboy-basic-rinse.yaml"),
+    ),
+    (
+        "carboy-cyanide-plating.yaml",
+        include_str!("../data/demo/carboy-cyanide-plating.yaml"),
+    ),
+    (
+        "carboy-acid-etch.yaml",
+        include_str!("../data/demo/carboy-acid-etch.yaml"),
+    ),
+    (
+        "carboy-ammonium-buffer.yaml",
+        include_str!("../data/demo/carboy-ammonium-buffer.yaml"),
+    ),
+    (
+        "stream-citrate-rinse.yaml",
+        include_str!("../data/demo/stream-citrate-rinse.yaml"),
+    ),
+    (
+        "stream-acid-descale.yaml",
+        include_str!("../data/demo/stream-acid-descale.yaml"),
+    ),
+    (
+        "stream-sulfide-strip.yaml",
+        include_str!("../data/demo/stream-sulfide-strip.yaml"),
+    ),
+    (
+        "stream-caustic-wash.yaml",
+        include_str!("../data/demo/stream-caustic-wash.yaml"),
+    ),
+];
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct Scenario {
+    title: String,
+    story: String,
+    checks: Vec<DemoCheck>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct DemoCheck {
+    title: String,
+    container: String,
+    add: String,
+    expect: String,
+    why: String,
+}
+
+fn file(name: &str) -> Result<&'static str> {
+    FILES
+        .iter()
+        .find(|(n, _)| *n == name)
+        .map(|(_, t)| *t)
+        .ok_or_else(|| anyhow!("demo file {name} is not bundled (a build defect)"))
+}
+
+/// Runs every check of the scenario and prints each report. Exits 0 when every verdict is
+/// the one the scenario expects (the demo is a demonstration, not a check of real waste),
+/// and 1 when one is not, since that means the bundled data or engine changed.
+pub fn run(format: Format) -> Result<u8> {
+    let cat = crate::load_catalog()?;
+    let th = crate::load_thresholds(None)?;
+    let scenario: Scenario = serde_yaml::from_str(SCENARIO)?;
+    let mut surprises = Vec::new();
+    let mut out = String::new();
+    let mut json_reports = Vec::new();
+    if !matches!(format, Format::Json) {
+        out.push_str(&format!(
+            "{}\n\n{}\n",
+            scenario.title,
+            scenario.story.trim()
+        ));
+    }
+    for (i, c) in scenario.checks.iter().enumerate() {
+        let path = |n: &str| format!("data/demo/{n}");
+        let a = Batch::parse(&cat, &path(&c.container), file(&c.container)?)
+            .map_err(|e| anyhow!("{e}"))?;
+        let b = Batch::parse(&cat, &path(&c.add), file(&c.add)?).map_err(|e| anyhow!("{e}"))?;
+        let report =
+            check(&cat, &th, &a, &b, &CheckOptions::default()).map_err(|e| anyhow!("{e}"))?;
+        if report.severity.word() != c.expect {
+            surprises.push(format!(
+                "{}: expected {}, got {}",
+                c.title, c.expect, report.severity
+            ));
+        }
+        match format {
+            Format::Json => json_reports.push(serde_json::json!({
+                "title": c.title, "expect": c.expect, "report": report
+            })),
+            _ => {
+                out.push_str(&format!(
+                    "\n{}\nDemo check {} of {}: {}\n(expected: {}; {})\n\n",
+                    "=".repeat(78),
+                    i + 1,
+                    scenario.checks.len(),
+                    c.title,
+                    c.expect,
+                    c.why.trim()
+                ));
+                out.push_str(&crate::render(&report, format, false)?);
+            }
+        }
+    }
+    if matches!(format, Format::Json) {
+        out = serde_json::to_string_pretty(&json_reports)? + "\n";
+    }
+    crate::print(&out)?;
+    if !surprises.is_empty() {
+        return Err(anyhow!(
+            "the demo did not come out as expected: {}",
+            surprises.join("; ")
+        ));
+    }
+    Ok(0)
+}

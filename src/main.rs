@@ -1,0 +1,201 @@
+//! The offgas command line: parse, call the library, print. One function per command.
+//!
+//! Exit status: 0 clear, 3 review, 4 stop, 1 error in the input or the run, 2 usage error.
+
+use anyhow::{anyhow, Context, Result};
+use clap::{Parser, Subcommand, ValueEnum};
+use offgas::batch::Batch;
+use offgas::catalog::Catalog;
+use offgas::check::{check, CheckError, CheckOptions};
+use offgas::render::{check_markdown, check_table, View};
+use offgas::report::Severity;
+use offgas::thresholds::Thresholds;
+use std::io::{IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+mod demo;
+mod lookup;
+
+/// What gas comes out if these meet? Speciation and headspace gas for chemical waste.
+#[derive(Parser)]
+#[command(name = "offgas", version, about, long_about = None)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Check pouring a stream into a container: gas in the headspace, along the pour and at the end.
+    Check {
+        /// The container file (YAML): capacity, volume, closure, contents.
+        container: PathBuf,
+        /// The stream file (YAML) to pour in.
+        #[arg(long = "add", value_name = "STREAM")]
+        stream: PathBuf,
+        #[arg(long, value_enum, default_value_t = Format::Table)]
+        format: Format,
+        /// Temperature of both batches, e.g. "30 °C" (overrides the files).
+        #[arg(long, value_name = "T")]
+        temperature: Option<String>,
+        /// A thresholds file to use instead of the bundled rules/thresholds.yaml.
+        #[arg(long, value_name = "FILE")]
+        thresholds: Option<PathBuf>,
+        /// Show every proton-transfer pair, not only those that matter.
+        #[arg(long)]
+        all_pairs: bool,
+    },
+    /// Find a substance or acid–base family by name, synonym, formula or CAS number.
+    Lookup {
+        query: String,
+        #[arg(long, value_enum, default_value_t = LookupFormat::Text)]
+        format: LookupFormat,
+    },
+    /// Run the bundled demonstration: a fictional building's waste checks.
+    Demo {
+        #[arg(long, value_enum, default_value_t = Format::Table)]
+        format: Format,
+    },
+}
+
+#[derive(Clone, Copy, ValueEnum)]
+enum Format {
+    Table,
+    Json,
+    Markdown,
+}
+
+#[derive(Clone, Copy, ValueEnum)]
+enum LookupFormat {
+    Text,
+    Json,
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Check {
+            container,
+            stream,
+            format,
+            temperature,
+            thresholds,
+            all_pairs,
+        } => run_check(
+            &container,
+            &stream,
+            format,
+            temperature,
+            thresholds,
+            all_pairs,
+        ),
+        Command::Lookup { query, format } => {
+            lookup::run(&query, matches!(format, LookupFormat::Json))
+        }
+        Command::Demo { format } => demo::run(format),
+    };
+    match result {
+        Ok(code) => ExitCode::from(code),
+        Err(e) => {
+            if is_broken_pipe(&e) {
+                return ExitCode::SUCCESS;
+            }
+            eprintln!("offgas: {e:#}");
+            ExitCode::from(1)
+        }
+    }
+}
+
+fn is_broken_pipe(e: &anyhow::Error) -> bool {
+    e.chain().any(|c| {
+        c.downcast_ref::<std::io::Error>()
+            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+    })
+}
+
+pub(crate) fn load_catalog() -> Result<Catalog> {
+    offgas::embedded::catalog()
+        .map_err(|e| anyhow!("the bundled data is broken (a build defect): {e}"))
+}
+
+pub(crate) fn load_thresholds(path: Option<&Path>) -> Result<Thresholds> {
+    match path {
+        None => offgas::embedded::thresholds().map_err(|e| anyhow!(e)),
+        Some(p) => {
+            let text = std::fs::read_to_string(p)
+                .with_context(|| format!("cannot read thresholds file {}", p.display()))?;
+            Thresholds::parse(&p.display().to_string(), &text).map_err(|e| anyhow!(e))
+        }
+    }
+}
+
+pub(crate) fn read_batch(cat: &Catalog, path: &Path) -> Result<Batch> {
+    let text = std::fs::read_to_string(path)
+        .with_context(|| format!("cannot read {}: check the path", path.display()))?;
+    Batch::parse(cat, &path.display().to_string(), &text).map_err(|e| anyhow!("{e}"))
+}
+
+pub(crate) fn view(all_pairs: bool) -> View {
+    let color = std::env::var_os("NO_COLOR").is_none() && std::io::stdout().is_terminal();
+    View { color, all_pairs }
+}
+
+/// Prints text to stdout; a closed pipe surfaces as an io error that main treats as done.
+pub(crate) fn print(text: &str) -> Result<()> {
+    let mut out = std::io::stdout().lock();
+    out.write_all(text.as_bytes())?;
+    out.flush()?;
+    Ok(())
+}
+
+pub(crate) fn render(
+    report: &offgas::report::CheckReport,
+    format: Format,
+    all_pairs: bool,
+) -> Result<String> {
+    Ok(match format {
+        Format::Table => check_table(report, view(all_pairs)),
+        Format::Markdown => check_markdown(report, view(all_pairs)),
+        Format::Json => serde_json::to_string_pretty(report)? + "\n",
+    })
+}
+
+/// `offgas check`: one pour, both orders, and the verdict as exit status.
+fn run_check(
+    container: &Path,
+    stream: &Path,
+    format: Format,
+    temperature: Option<String>,
+    thresholds: Option<PathBuf>,
+    all_pairs: bool,
+) -> Result<u8> {
+    let cat = load_catalog()?;
+    let th = load_thresholds(thresholds.as_deref())?;
+    let temperature_k = match temperature {
+        None => None,
+        Some(t) => {
+            let k = offgas::quantity::parse_temperature(&t)
+                .map_err(|e| anyhow!("--temperature: {e}"))?;
+            if !(273.15..=373.15).contains(&k.0) {
+                return Err(anyhow!(
+                    "--temperature {t} is outside 0–100 °C, the range of the aqueous model"
+                ));
+            }
+            Some(k.0)
+        }
+    };
+    let a = read_batch(&cat, container)?;
+    let b = read_batch(&cat, stream)?;
+    let report = match check(&cat, &th, &a, &b, &CheckOptions { temperature_k }) {
+        Ok(r) => r,
+        Err(CheckError::Input(e)) => return Err(anyhow!("{e}")),
+        Err(e @ CheckError::Solve { .. }) => return Err(anyhow!("{e}")),
+    };
+    print(&render(&report, format, all_pairs)?)?;
+    Ok(exit_status(report.severity))
+}
+
+pub(crate) fn exit_status(s: Severity) -> u8 {
+    s.exit_code() as u8
+}

@@ -1,0 +1,104 @@
+//! The path of mixing: every state the vessel passes through while a stream is poured in.
+//!
+//! The scan is fine near both ends (the first drops and the last ones are where a small
+//! amount meets a large excess) and refined around the worst point found.
+
+use crate::catalog::Catalog;
+use crate::chem::{solve, Equilibrium, Mixture, SolveError, SolverSettings};
+
+/// Fractions of the stream added at which the vessel is solved before refinement.
+pub const SCAN: [f64; 33] = [
+    0.0, 1e-4, 3e-4, 1e-3, 3e-3, 0.01, 0.02, 0.035, 0.05, 0.075, 0.1, 0.15, 0.2, 0.25, 0.3, 0.35,
+    0.4, 0.45, 0.5, 0.55, 0.6, 0.65, 0.7, 0.75, 0.8, 0.85, 0.9, 0.95, 0.98, 0.99, 0.995, 0.999,
+    1.0,
+];
+
+/// Golden-section steps around the worst scanned point.
+const REFINE_STEPS: usize = 16;
+
+#[derive(Debug, Clone)]
+pub struct PathState {
+    pub fraction_added: f64,
+    pub score: f64,
+    pub state: Equilibrium,
+}
+
+#[derive(Debug, Clone)]
+pub struct PathScan {
+    pub worst: PathState,
+    pub end: PathState,
+    /// (fraction added, score) of every state solved, in order of fraction.
+    pub profile: Vec<(f64, f64)>,
+}
+
+/// Pours `stream` into `vessel` (of `capacity_l`) and finds the worst state by `score`.
+pub fn scan(
+    cat: &Catalog,
+    vessel: &Mixture,
+    stream: &Mixture,
+    capacity_l: f64,
+    settings: &SolverSettings,
+    score: &dyn Fn(&Equilibrium) -> f64,
+) -> Result<PathScan, (f64, SolveError)> {
+    let at = |f: f64| -> Result<PathState, (f64, SolveError)> {
+        let m = vessel.pour(stream, f, capacity_l);
+        let state = solve(cat, &m, settings).map_err(|e| (f, e))?;
+        Ok(PathState {
+            fraction_added: f,
+            score: score(&state),
+            state,
+        })
+    };
+    // A vessel that starts empty has no state at "nothing added yet".
+    let start = if vessel.liquid_l > 0.0 { 0 } else { 1 };
+    let mut states = Vec::with_capacity(SCAN.len() + REFINE_STEPS);
+    for &f in &SCAN[start..] {
+        states.push(at(f)?);
+    }
+    let (wi, _) = states
+        .iter()
+        .enumerate()
+        .max_by(|a, b| a.1.score.total_cmp(&b.1.score))
+        .expect("the scan has points");
+    let mut worst = states[wi].clone();
+    let lo_i = wi.saturating_sub(1);
+    let hi_i = (wi + 1).min(states.len() - 1);
+    let (mut lo, mut hi) = (states[lo_i].fraction_added, states[hi_i].fraction_added);
+    if hi > lo && worst.score > 0.0 {
+        let g = 0.5 * (5f64.sqrt() - 1.0);
+        let mut c = at(hi - g * (hi - lo))?;
+        let mut d = at(lo + g * (hi - lo))?;
+        states.push(c.clone());
+        states.push(d.clone());
+        for _ in 0..REFINE_STEPS {
+            if c.score >= d.score {
+                hi = d.fraction_added;
+                d = c;
+                c = at(hi - g * (hi - lo))?;
+                states.push(c.clone());
+            } else {
+                lo = c.fraction_added;
+                c = d;
+                d = at(lo + g * (hi - lo))?;
+                states.push(d.clone());
+            }
+        }
+        for s in &states {
+            if s.score > worst.score {
+                worst = s.clone();
+            }
+        }
+    }
+    let end = states
+        .iter()
+        .find(|s| s.fraction_added == 1.0)
+        .cloned()
+        .expect("the scan ends at 1");
+    let mut profile: Vec<(f64, f64)> = states.iter().map(|s| (s.fraction_added, s.score)).collect();
+    profile.sort_by(|a, b| a.0.total_cmp(&b.0));
+    Ok(PathScan {
+        worst,
+        end,
+        profile,
+    })
+}

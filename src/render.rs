@@ -1,0 +1,390 @@
+//! Laying out a report as a terminal table or markdown. No chemistry here.
+
+use crate::pairs::{pairs_that_matter, Extent, Pair};
+use crate::report::{CheckReport, Finding, GasReport, Severity, StateReport};
+use comfy_table::{presets, Cell, CellAlignment, ContentArrangement, Table};
+use owo_colors::OwoColorize;
+use std::fmt::Write;
+
+/// How many pairs the default view shows.
+pub const DEFAULT_PAIRS: usize = 12;
+
+#[derive(Debug, Clone, Copy)]
+pub struct View {
+    pub color: bool,
+    pub all_pairs: bool,
+}
+
+fn verdict_word(s: Severity, color: bool) -> String {
+    let w = s.word().to_uppercase();
+    if !color {
+        return w;
+    }
+    match s {
+        Severity::Stop => w.red().bold().to_string(),
+        Severity::Review => w.yellow().bold().to_string(),
+        Severity::Clear => w.green().bold().to_string(),
+        Severity::Info => w,
+    }
+}
+
+fn fmt_ppm(v: f64) -> String {
+    if v >= 1e5 {
+        format!("{v:.2e}")
+    } else if v >= 100.0 {
+        format!("{v:.0}")
+    } else if v >= 1.0 {
+        format!("{v:.1}")
+    } else if v >= 0.01 {
+        format!("{v:.3}")
+    } else {
+        format!("{v:.1e}")
+    }
+}
+
+fn fmt_opt(v: Option<f64>) -> String {
+    v.map(fmt_ppm).unwrap_or_else(|| "none".into())
+}
+
+fn fmt_ratio(v: Option<f64>) -> String {
+    match v {
+        Some(r) if r >= 10.0 => format!("{r:.0}×"),
+        Some(r) if r >= 0.01 => format!("{r:.2}×"),
+        Some(r) => format!("{r:.0e}×"),
+        None => "-".into(),
+    }
+}
+
+fn table() -> Table {
+    let mut t = Table::new();
+    t.load_preset(presets::UTF8_FULL_CONDENSED)
+        .set_content_arrangement(ContentArrangement::Dynamic)
+        .set_width(110);
+    t
+}
+
+fn finding_line(f: &Finding, color: bool) -> String {
+    let tag = match f.severity {
+        Severity::Info => "note".to_string(),
+        s => s.word().to_string(),
+    };
+    let tag = if color {
+        match f.severity {
+            Severity::Stop => tag.red().bold().to_string(),
+            Severity::Review => tag.yellow().bold().to_string(),
+            _ => tag.dimmed().to_string(),
+        }
+    } else {
+        tag
+    };
+    format!("  [{tag}] {}\n         {}", f.message, f.caution)
+}
+
+/// One gas across the states a report shows: at the end, worst as written, worst the other way.
+struct GasRow<'a> {
+    formula: String,
+    end: Option<&'a GasReport>,
+    worst: Option<&'a GasReport>,
+    other: Option<&'a GasReport>,
+}
+
+impl GasRow<'_> {
+    fn any(&self) -> &GasReport {
+        self.worst
+            .or(self.end)
+            .or(self.other)
+            .expect("a row exists because one state lists the gas")
+    }
+}
+
+fn gas_rows(report: &CheckReport) -> Vec<GasRow<'_>> {
+    let mut names: Vec<&str> = Vec::new();
+    for s in [&report.end_state, &report.worst_state.state] {
+        for g in &s.gases {
+            if !names.contains(&g.formula.as_str()) {
+                names.push(&g.formula);
+            }
+        }
+    }
+    let find = |s: &'_ StateReport, n: &str| -> Option<usize> {
+        s.gases.iter().position(|g| g.formula == n)
+    };
+    names
+        .into_iter()
+        .map(|n| GasRow {
+            formula: n.to_string(),
+            end: find(&report.end_state, n).map(|i| &report.end_state.gases[i]),
+            worst: find(&report.worst_state.state, n).map(|i| &report.worst_state.state.gases[i]),
+            other: report
+                .poured_other_way
+                .as_ref()
+                .and_then(|o| find(&o.worst_state.state, n).map(|i| &o.worst_state.state.gases[i])),
+        })
+        .collect()
+}
+
+/// The terminal view: verdict and reasons first, then gases, states, pairs, cautions.
+pub fn check_table(r: &CheckReport, v: View) -> String {
+    let mut out = String::new();
+    let _ = writeln!(
+        out,
+        "offgas check: {} ({}) into {} ({})",
+        r.stream.name, r.stream.file, r.container.name, r.container.file
+    );
+    let _ = writeln!(out, "\nVerdict: {}", verdict_word(r.severity, v.color));
+    let shown: Vec<&Finding> = r.findings.iter().collect();
+    if shown.is_empty() {
+        let _ = writeln!(
+            out,
+            "  No gas reaches a level of concern, and nothing was left unassessed."
+        );
+    }
+    for f in shown {
+        let _ = writeln!(out, "{}", finding_line(f, v.color));
+    }
+
+    let rows = gas_rows(r);
+    let _ = writeln!(out, "\nGas in the headspace (ppm by volume at 1 atm)");
+    if rows.is_empty() {
+        let _ = writeln!(out, "  No volatile form reaches 1e-6 ppm.");
+    } else {
+        let mut t = table();
+        t.set_header(vec![
+            "gas",
+            "at the end",
+            "worst while pouring",
+            "other order, worst",
+            "review at",
+            "stop at",
+            "worst / review",
+        ]);
+        for row in rows {
+            let (e, w, o) = (row.end, row.worst, row.other);
+            let any = row.any();
+            t.add_row(vec![
+                Cell::new(&row.formula),
+                Cell::new(e.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()))
+                    .set_alignment(CellAlignment::Right),
+                Cell::new(w.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()))
+                    .set_alignment(CellAlignment::Right),
+                Cell::new(o.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()))
+                    .set_alignment(CellAlignment::Right),
+                Cell::new(fmt_opt(any.limit_ppm)).set_alignment(CellAlignment::Right),
+                Cell::new(fmt_opt(any.idlh_ppm)).set_alignment(CellAlignment::Right),
+                Cell::new(fmt_ratio(w.and_then(|g| g.limit_ratio)))
+                    .set_alignment(CellAlignment::Right),
+            ]);
+        }
+        let _ = writeln!(out, "{t}");
+    }
+
+    let _ = writeln!(out, "\nStates of the liquid");
+    let mut t = table();
+    t.set_header(vec![
+        "state",
+        "stream added",
+        "pH",
+        "°C",
+        "I mol/L",
+        "liquid L",
+        "headspace L",
+        "gas kPa",
+    ]);
+    let mut state_row = |label: &str, frac: String, s: &StateReport| {
+        t.add_row(vec![
+            label.to_string(),
+            frac,
+            format!("{:.2}", s.ph),
+            format!("{:.1}", s.temperature_c),
+            format!(
+                "{:.3}{}",
+                s.ionic_strength,
+                if s.activity_model_exceeded {
+                    " (!)"
+                } else {
+                    ""
+                }
+            ),
+            format!("{:.2}", s.volume_l),
+            format!("{:.2}", s.headspace_l),
+            format!("{:.3}", s.overpressure_kpa),
+        ]);
+    };
+    state_row("end", "100 %".into(), &r.end_state);
+    state_row(
+        "worst while pouring",
+        format!("{:.1} %", r.worst_state.fraction_added * 100.0),
+        &r.worst_state.state,
+    );
+    if let Some(o) = &r.poured_other_way {
+        state_row(
+            "other order, worst",
+            format!("{:.1} %", o.worst_state.fraction_added * 100.0),
+            &o.worst_state.state,
+        );
+    }
+    let _ = writeln!(out, "{t}");
+
+    let pairs: Vec<&Pair> = if v.all_pairs {
+        r.pairs.iter().collect()
+    } else {
+        pairs_that_matter(&r.pairs, DEFAULT_PAIRS)
+    };
+    let _ = writeln!(
+        out,
+        "\nWhy: proton transfers between the two batches ({} of {} shown{})",
+        pairs.len(),
+        r.pairs.len(),
+        if v.all_pairs {
+            ""
+        } else {
+            "; --all-pairs shows every one"
+        }
+    );
+    if !pairs.is_empty() {
+        let mut t = table();
+        t.set_header(vec![
+            "donor",
+            "from",
+            "acceptor",
+            "from",
+            "gives",
+            "log K",
+            "extent",
+            "gas formed",
+        ]);
+        for p in pairs {
+            t.add_row(vec![
+                p.donor.clone(),
+                format!("{:?}", p.donor_side).to_lowercase(),
+                p.acceptor.clone(),
+                format!("{:?}", p.acceptor_side).to_lowercase(),
+                format!("{} + {}", p.produced_base, p.produced_acid),
+                format!("{:.1}", p.log_k),
+                extent_word(p.extent).to_string(),
+                p.volatile_products.join(", "),
+            ]);
+        }
+        let _ = writeln!(out, "{t}");
+    }
+    let _ = writeln!(out, "\nAssumptions");
+    for a in &r.assumptions {
+        let _ = writeln!(out, "  - {a}");
+    }
+    let _ = writeln!(out, "\nCautions");
+    for c in &r.cautions {
+        let _ = writeln!(out, "  - {c}");
+    }
+    out
+}
+
+fn extent_word(e: Extent) -> &'static str {
+    match e {
+        Extent::Complete => "complete",
+        Extent::Equilibrium => "equilibrium",
+        Extent::Negligible => "negligible",
+    }
+}
+
+/// Markdown for pasting into a ticket or a procedure file.
+pub fn check_markdown(r: &CheckReport, v: View) -> String {
+    let mut out = String::new();
+    let _ = writeln!(
+        out,
+        "# offgas check: {} into {}\n",
+        r.stream.name, r.container.name
+    );
+    let _ = writeln!(out, "**Verdict: {}**\n", r.severity.word().to_uppercase());
+    for f in &r.findings {
+        let tag = if f.severity == Severity::Info {
+            "note"
+        } else {
+            f.severity.word()
+        };
+        let _ = writeln!(out, "- **{tag}** ({}) {} {}", f.code, f.message, f.caution);
+    }
+    let _ = writeln!(out, "\n## Gas in the headspace\n");
+    let _ = writeln!(
+        out,
+        "| gas | end ppm | worst ppm | review at | stop at | worst / review |"
+    );
+    let _ = writeln!(out, "|---|---:|---:|---:|---:|---:|");
+    for row in gas_rows(r) {
+        let (e, w, any) = (row.end, row.worst, row.any());
+        let _ = writeln!(
+            out,
+            "| {} | {} | {} | {} | {} | {} |",
+            row.formula,
+            e.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()),
+            w.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()),
+            fmt_opt(any.limit_ppm),
+            fmt_opt(any.idlh_ppm),
+            fmt_ratio(w.and_then(|g| g.limit_ratio))
+        );
+    }
+    let _ = writeln!(out, "\n## States\n");
+    let _ = writeln!(
+        out,
+        "| state | stream added | pH | °C | I (mol/L) | gas kPa |"
+    );
+    let _ = writeln!(out, "|---|---:|---:|---:|---:|---:|");
+    let mut row = |label: &str, f: f64, s: &StateReport| {
+        let _ = writeln!(
+            out,
+            "| {label} | {:.1} % | {:.2} | {:.1} | {:.3} | {:.3} |",
+            f * 100.0,
+            s.ph,
+            s.temperature_c,
+            s.ionic_strength,
+            s.overpressure_kpa
+        );
+    };
+    row("end", 1.0, &r.end_state);
+    row(
+        "worst while pouring",
+        r.worst_state.fraction_added,
+        &r.worst_state.state,
+    );
+    if let Some(o) = &r.poured_other_way {
+        row(
+            "other order, worst",
+            o.worst_state.fraction_added,
+            &o.worst_state.state,
+        );
+    }
+    let pairs: Vec<&Pair> = if v.all_pairs {
+        r.pairs.iter().collect()
+    } else {
+        pairs_that_matter(&r.pairs, DEFAULT_PAIRS)
+    };
+    let _ = writeln!(out, "\n## Why: proton transfers\n");
+    let _ = writeln!(
+        out,
+        "| donor | acceptor | gives | log K | extent | gas formed |"
+    );
+    let _ = writeln!(out, "|---|---|---|---:|---|---|");
+    for p in pairs {
+        let _ = writeln!(
+            out,
+            "| {} ({:?}) | {} ({:?}) | {} + {} | {:.1} | {} | {} |",
+            p.donor,
+            p.donor_side,
+            p.acceptor,
+            p.acceptor_side,
+            p.produced_base,
+            p.produced_acid,
+            p.log_k,
+            extent_word(p.extent),
+            p.volatile_products.join(", ")
+        );
+    }
+    let _ = writeln!(out, "\n## Assumptions\n");
+    for a in &r.assumptions {
+        let _ = writeln!(out, "- {a}");
+    }
+    let _ = writeln!(out, "\n## Cautions\n");
+    for c in &r.cautions {
+        let _ = writeln!(out, "- {c}");
+    }
+    out
+}

@@ -1,0 +1,148 @@
+//! The report model: one structure per check, rendered as a table, markdown or JSON.
+//!
+//! Field names here are the JSON contract of brief section 6; renderers never compute
+//! chemistry, they only lay this out.
+
+use crate::pairs::Pair;
+use serde::Serialize;
+use std::fmt;
+
+/// The verdict of a check, and the severity of each finding.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Severity {
+    /// A note that does not change the verdict.
+    Info,
+    Clear,
+    Review,
+    Stop,
+}
+
+impl Severity {
+    /// The verdict word for the whole check (an `Info` finding never decides it).
+    pub fn verdict(findings: &[Finding]) -> Severity {
+        findings
+            .iter()
+            .map(|f| f.severity)
+            .max()
+            .unwrap_or(Severity::Clear)
+            .max(Severity::Clear)
+    }
+    /// Process exit status: 0 clear, 3 review, 4 stop.
+    pub fn exit_code(self) -> i32 {
+        match self {
+            Severity::Info | Severity::Clear => 0,
+            Severity::Review => 3,
+            Severity::Stop => 4,
+        }
+    }
+    pub fn word(self) -> &'static str {
+        match self {
+            Severity::Info => "info",
+            Severity::Clear => "clear",
+            Severity::Review => "review",
+            Severity::Stop => "stop",
+        }
+    }
+}
+
+impl fmt::Display for Severity {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.word())
+    }
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Finding {
+    pub severity: Severity,
+    pub code: &'static str,
+    pub message: String,
+    pub caution: String,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GasReport {
+    pub formula: String,
+    pub partial_pressure_kpa: f64,
+    pub headspace_ppm: f64,
+    /// The review level (ceiling or STEL, or its stated substitute).
+    pub limit_ppm: Option<f64>,
+    pub limit_basis: Option<String>,
+    pub limit_ratio: Option<f64>,
+    pub limit_source: Option<String>,
+    /// The stop level (IDLH, or its stated substitute).
+    pub idlh_ppm: Option<f64>,
+    pub idlh_basis: Option<String>,
+    pub idlh_ratio: Option<f64>,
+    pub idlh_source: Option<String>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct StateReport {
+    pub ph: f64,
+    pub temperature_c: f64,
+    pub ionic_strength: f64,
+    pub volume_l: f64,
+    pub headspace_l: f64,
+    /// Absolute pressure in the headspace.
+    pub total_pressure_kpa: f64,
+    /// Sum of the partial pressures of the gases the liquid gives off; for a sealed vessel,
+    /// the pressure above atmospheric.
+    pub overpressure_kpa: f64,
+    pub activity_model_exceeded: bool,
+    pub gases: Vec<GasReport>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct WorstStateReport {
+    pub fraction_added: f64,
+    #[serde(flatten)]
+    pub state: StateReport,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ComponentReport {
+    pub written: String,
+    pub substance: String,
+    pub amount: String,
+    pub moles: f64,
+    pub inert: bool,
+    pub classes: Vec<String>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BatchReport {
+    pub file: String,
+    pub name: String,
+    pub volume_l: f64,
+    pub capacity_l: Option<f64>,
+    pub closure: Option<crate::chem::Closure>,
+    pub temperature_c: f64,
+    pub components: Vec<ComponentReport>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct OrderReport {
+    pub description: String,
+    pub worst_state: WorstStateReport,
+    /// Highest ratio of any gas to its review level along this order.
+    pub worst_limit_ratio: f64,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CheckReport {
+    pub tool: &'static str,
+    pub version: &'static str,
+    pub severity: Severity,
+    pub container: BatchReport,
+    pub stream: BatchReport,
+    pub end_state: StateReport,
+    pub worst_state: WorstStateReport,
+    pub poured_as_written: OrderReport,
+    pub poured_other_way: Option<OrderReport>,
+    pub pairs: Vec<Pair>,
+    pub findings: Vec<Finding>,
+    pub inert_components: Vec<String>,
+    pub assumptions: Vec<String>,
+    pub cautions: Vec<String>,
+}

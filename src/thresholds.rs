@@ -1,0 +1,87 @@
+//! Verdict thresholds and report wording from `rules/thresholds.yaml`.
+
+use serde::Deserialize;
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Thresholds {
+    #[allow(dead_code)]
+    pub description: String,
+    #[allow(dead_code)]
+    pub units: serde_yaml::Value,
+    pub gas: GasThresholds,
+    pub sealed_overpressure: Overpressure,
+    pub activity_model: ActivityModel,
+    pub proton_transfer: ProtonTransfer,
+    pub mixing_path: MixingPath,
+    pub cautions: Vec<String>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct GasThresholds {
+    /// Review when headspace ppm reaches this fraction of the short-term level.
+    pub review_fraction_of_short_term: f64,
+    /// Stop when headspace ppm reaches this fraction of the IDLH.
+    pub stop_fraction_of_idlh: f64,
+    /// A gas with no exposure level at all is reviewed above this concentration.
+    pub unknown_level_floor_ppm: f64,
+    pub basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Overpressure {
+    pub review_kpa: f64,
+    pub stop_kpa: f64,
+    pub basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ActivityModel {
+    pub max_ionic_strength: f64,
+    pub basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ProtonTransfer {
+    pub complete_above_log_k: f64,
+    pub negligible_below_log_k: f64,
+    pub basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MixingPath {
+    /// The other order is advised when its worst state is this many times lower.
+    pub safer_order_factor: f64,
+}
+
+impl Thresholds {
+    pub fn parse(file: &str, text: &str) -> Result<Thresholds, String> {
+        let t: Thresholds = serde_yaml::from_str(text).map_err(|e| {
+            let at = e
+                .location()
+                .map(|l| format!(":{}", l.line()))
+                .unwrap_or_default();
+            format!("{file}{at}: not a readable thresholds file: {e}")
+        })?;
+        let g = &t.gas;
+        let ok = g.review_fraction_of_short_term > 0.0
+            && g.stop_fraction_of_idlh > 0.0
+            && g.unknown_level_floor_ppm >= 0.0
+            && t.sealed_overpressure.review_kpa > 0.0
+            && t.sealed_overpressure.stop_kpa >= t.sealed_overpressure.review_kpa
+            && t.activity_model.max_ionic_strength > 0.0
+            && t.proton_transfer.complete_above_log_k > t.proton_transfer.negligible_below_log_k
+            && t.mixing_path.safer_order_factor >= 1.0;
+        if !ok {
+            return Err(format!(
+                "{file}: thresholds must be positive, stop levels at or above review levels, and the safer-order factor at least 1"
+            ));
+        }
+        Ok(t)
+    }
+}

@@ -1,0 +1,334 @@
+//! The command line as a user meets it: exit statuses, the JSON contract of brief section 6,
+//! and a clear message for every kind of bad input.
+
+use assert_cmd::Command;
+use predicates::prelude::*;
+use std::path::PathBuf;
+
+fn offgas() -> Command {
+    let mut c = Command::cargo_bin("offgas").unwrap();
+    c.env("NO_COLOR", "1");
+    c
+}
+
+fn demo(name: &str) -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("data/demo")
+        .join(name)
+}
+
+struct Files {
+    dir: tempfile::TempDir,
+}
+
+impl Files {
+    fn new() -> Self {
+        Files {
+            dir: tempfile::tempdir().unwrap(),
+        }
+    }
+    fn write(&self, name: &str, text: &str) -> PathBuf {
+        let p = self.dir.path().join(name);
+        std::fs::write(&p, text).unwrap();
+        p
+    }
+}
+
+const CARBOY: &str =
+    "name: test carboy\ncapacity: 20 L\nvolume: 10 L\ncontents:\n  - sodium chloride: 0.05 mol/L\n";
+
+fn check(container: &PathBuf, stream: &PathBuf) -> Command {
+    let mut c = offgas();
+    c.arg("check").arg(container).arg("--add").arg(stream);
+    c
+}
+
+#[test]
+fn clear_review_and_stop_have_their_exit_statuses() {
+    check(
+        &demo("carboy-basic-rinse.yaml"),
+        &demo("stream-citrate-rinse.yaml"),
+    )
+    .assert()
+    .code(0)
+    .stdout(predicate::str::contains("Verdict: CLEAR"));
+    check(
+        &demo("carboy-ammonium-buffer.yaml"),
+        &demo("stream-caustic-wash.yaml"),
+    )
+    .assert()
+    .code(3)
+    .stdout(predicate::str::contains("Verdict: REVIEW"));
+    check(
+        &demo("carboy-cyanide-plating.yaml"),
+        &demo("stream-acid-descale.yaml"),
+    )
+    .assert()
+    .code(4)
+    .stdout(predicate::str::contains("Verdict: STOP"))
+    .stdout(predicate::str::contains("HCN"));
+}
+
+#[test]
+fn usage_errors_exit_2() {
+    offgas().arg("check").assert().code(2);
+    offgas().arg("frobnicate").assert().code(2);
+    check(
+        &demo("carboy-basic-rinse.yaml"),
+        &demo("stream-citrate-rinse.yaml"),
+    )
+    .args(["--format", "pdf"])
+    .assert()
+    .code(2);
+}
+
+#[test]
+fn json_document_follows_the_contract() {
+    let out = check(
+        &demo("carboy-cyanide-plating.yaml"),
+        &demo("stream-acid-descale.yaml"),
+    )
+    .args(["--format", "json"])
+    .output()
+    .unwrap();
+    assert_eq!(out.status.code(), Some(4));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("one JSON document");
+    assert_eq!(v["severity"], "stop");
+    for state in ["end_state", "worst_state"] {
+        let s = &v[state];
+        for key in [
+            "ph",
+            "temperature_c",
+            "ionic_strength",
+            "volume_l",
+            "headspace_l",
+            "total_pressure_kpa",
+        ] {
+            assert!(s[key].is_number(), "{state}.{key} missing: {s}");
+        }
+        let gases = s["gases"].as_array().expect("gases list");
+        let hcn = gases
+            .iter()
+            .find(|g| g["formula"] == "HCN")
+            .expect("HCN listed");
+        for key in [
+            "partial_pressure_kpa",
+            "headspace_ppm",
+            "limit_ppm",
+            "limit_ratio",
+        ] {
+            assert!(hcn[key].is_number(), "gas.{key}: {hcn}");
+        }
+        assert!(hcn["limit_basis"].is_string());
+    }
+    assert!(v["worst_state"]["fraction_added"].is_number());
+    let pairs = v["pairs"].as_array().unwrap();
+    assert!(!pairs.is_empty());
+    for key in ["donor", "acceptor", "produced_acid", "log_k", "extent"] {
+        assert!(!pairs[0][key].is_null(), "pair.{key}");
+    }
+    assert!(pairs
+        .iter()
+        .any(|p| p["acceptor"] == "CN-" && p["produced_acid"] == "HCN"));
+    let findings = v["findings"].as_array().unwrap();
+    assert!(findings.iter().any(|f| f["severity"] == "stop"
+        && f["code"].is_string()
+        && f["message"].as_str().unwrap().contains("HCN")
+        && f["caution"].is_string()));
+}
+
+#[test]
+fn markdown_format_prints_a_verdict() {
+    check(
+        &demo("carboy-basic-rinse.yaml"),
+        &demo("stream-citrate-rinse.yaml"),
+    )
+    .args(["--format", "markdown"])
+    .assert()
+    .code(0)
+    .stdout(predicate::str::contains("**Verdict: CLEAR**"));
+}
+
+#[test]
+fn temperature_option_is_used_and_range_checked() {
+    let out = check(
+        &demo("carboy-basic-rinse.yaml"),
+        &demo("stream-citrate-rinse.yaml"),
+    )
+    .args(["--format", "json", "--temperature", "35 °C"])
+    .output()
+    .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!((v["end_state"]["temperature_c"].as_f64().unwrap() - 35.0).abs() < 1e-6);
+    check(
+        &demo("carboy-basic-rinse.yaml"),
+        &demo("stream-citrate-rinse.yaml"),
+    )
+    .args(["--temperature", "150 °C"])
+    .assert()
+    .code(1)
+    .stderr(predicate::str::contains("outside 0–100 °C"));
+}
+
+/// Runs a check of `stream_text` into the plain test carboy and expects exit 1 with `needle`.
+fn bad_stream(stream_text: &str, needles: &[&str]) {
+    let f = Files::new();
+    let c = f.write("carboy.yaml", CARBOY);
+    let s = f.write("stream.yaml", stream_text);
+    let mut a = check(&c, &s)
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("stream.yaml"));
+    for n in needles {
+        a = a.stderr(predicate::str::contains(*n));
+    }
+}
+
+#[test]
+fn malformed_yaml_names_file_and_line() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium hydroxide: [0.1\n",
+        &["stream.yaml:", "not a readable batch file"],
+    );
+}
+
+#[test]
+fn unknown_key_is_refused_with_the_known_keys() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ncolour: blue\n",
+        &["unknown field", "the keys a batch file knows"],
+    );
+}
+
+#[test]
+fn unknown_substance_offers_close_names_and_is_never_clear() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium cyanid: 1 g/L\n",
+        &[
+            "stream.yaml:4",
+            "unknown substance `sodium cyanid`",
+            "sodium cyanide",
+        ],
+    );
+}
+
+#[test]
+fn unknown_unit_is_named() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium hydroxide: 3 furlongs\n",
+        &["stream.yaml:4", "furlongs", "mol/L"],
+    );
+}
+
+#[test]
+fn zero_or_negative_volume_is_refused() {
+    bad_stream("name: x\nvolume: 0 L\n", &["stream.yaml:2", "above zero"]);
+    bad_stream("name: x\nvolume: -2 L\n", &["stream.yaml:2", "negative"]);
+}
+
+#[test]
+fn volume_above_capacity_is_refused() {
+    let f = Files::new();
+    let c = f.write("carboy.yaml", "name: c\ncapacity: 5 L\nvolume: 6 L\n");
+    let s = f.write("stream.yaml", "name: s\nvolume: 1 L\n");
+    check(&c, &s)
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("carboy.yaml:3"))
+        .stderr(predicate::str::contains("more than the `capacity`"));
+    // and a pour that would overflow
+    let c = f.write("carboy2.yaml", "name: c\ncapacity: 5 L\nvolume: 4.5 L\n");
+    check(&c, &s)
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("more than its capacity"));
+}
+
+#[test]
+fn percent_above_hundred_is_refused() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium hydroxide: 120 % w/w\n",
+        &["stream.yaml:4", "above 100 %"],
+    );
+}
+
+#[test]
+fn concentration_beyond_solubility_is_refused() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium bicarbonate: 200 g/L\n",
+        &["stream.yaml:4", "solubility"],
+    );
+}
+
+#[test]
+fn temperature_outside_range_is_refused() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ntemperature: 120 °C\n",
+        &["stream.yaml:3", "outside 0–100 °C"],
+    );
+    bad_stream(
+        "name: x\nvolume: 1 L\ntemperature: 20\n",
+        &["stream.yaml:3", "no unit"],
+    );
+}
+
+#[test]
+fn missing_file_is_an_error_not_a_panic() {
+    let f = Files::new();
+    let c = f.write("carboy.yaml", CARBOY);
+    offgas()
+        .arg("check")
+        .arg(&c)
+        .arg("--add")
+        .arg(f.dir.path().join("nope.yaml"))
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("nope.yaml"));
+}
+
+#[test]
+fn lookup_finds_by_name_formula_and_cas_and_shows_sources() {
+    offgas()
+        .args(["lookup", "sodium cyanide"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("143-33-9"))
+        .stdout(predicate::str::contains("pKa 9.21"))
+        .stdout(predicate::str::contains("IDLH"));
+    offgas()
+        .args(["lookup", "NaCN"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("sodium cyanide"));
+    offgas()
+        .args(["lookup", "143-33-9"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("sodium cyanide"));
+    offgas()
+        .args(["lookup", "H2S"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("family sulfide"));
+    offgas()
+        .args(["lookup", "unobtainium chloride"])
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("closest names"));
+}
+
+#[test]
+fn demo_runs_and_every_verdict_is_as_the_scenario_expects() {
+    let out = offgas().arg("demo").output().unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    for v in ["Verdict: CLEAR", "Verdict: REVIEW", "Verdict: STOP"] {
+        assert!(text.contains(v), "demo lacks {v}");
+    }
+    assert!(text.contains("safer-order") || text.contains("The order matters"));
+}

@@ -1,0 +1,131 @@
+//! Properties the solver must keep for any mixture: charge and mass balance, monotone pH
+//! under added strong acid, order independence, splitting a pour, finite outputs.
+
+mod common;
+use common::*;
+use offgas::chem::{solve, Closure, Equilibrium, Mixture, SolverSettings};
+use proptest::prelude::*;
+
+/// Families and ions the generator draws from: every volatile family the brief names,
+/// polyprotic ones, amines, metal ions, and the strong ions that set the balance.
+const FAMILIES: [&str; 16] = [
+    "cyanide",
+    "sulfide",
+    "ammonia",
+    "carbonate",
+    "sulfite",
+    "fluoride",
+    "azide",
+    "acetate",
+    "phosphate",
+    "citrate",
+    "edta",
+    "triethylamine",
+    "chloride",
+    "sulfate",
+    "iron3",
+    "borate",
+];
+const IONS: [&str; 4] = ["Na+", "K+", "Ca+2", "Br-"];
+
+fn settings() -> SolverSettings {
+    SolverSettings::default()
+}
+
+prop_compose! {
+    fn arb_mixture()(
+        fams in proptest::collection::vec((0..FAMILIES.len(), -5.0f64..0.0), 0..8),
+        ions in proptest::collection::vec((0..IONS.len(), -5.0f64..-0.3), 0..4),
+        liquid in 0.1f64..20.0,
+        head in 0.0f64..20.0,
+        t_c in 0.0f64..100.0,
+        closure in prop_oneof![Just(Closure::Sealed), Just(Closure::Vented), Just(Closure::Open)],
+    ) -> Mixture {
+        let parts: Vec<(&str, f64)> = fams.iter().map(|&(i, lc)| (FAMILIES[i], 10f64.powf(lc)))
+            .chain(ions.iter().map(|&(i, lc)| (IONS[i], 10f64.powf(lc))))
+            .collect();
+        mix(&parts, liquid, head, t_c, closure)
+    }
+}
+
+fn gas_moles(eq: &Equilibrium, fam: offgas::catalog::FamilyId) -> f64 {
+    eq.gases
+        .iter()
+        .filter(|g| g.family == fam)
+        .map(|g| g.moles_in_gas)
+        .sum()
+}
+
+fn check_balances(m: &Mixture, eq: &Equilibrium) {
+    let cat = catalog();
+    assert!(eq.ph.is_finite() && eq.ionic_strength.is_finite());
+    assert!(
+        eq.relative_charge_residual < 1e-8,
+        "charge residual {}",
+        eq.relative_charge_residual
+    );
+    for fs in &eq.families {
+        let total = m.families.iter().find(|(f, _)| *f == fs.family).unwrap().1;
+        let dissolved: f64 = fs.concentrations.iter().sum::<f64>() * m.liquid_l;
+        let gas = gas_moles(eq, fs.family);
+        assert!(fs.concentrations.iter().all(|c| c.is_finite() && *c >= 0.0));
+        assert!(
+            (dissolved + gas - total).abs() <= 1e-9 * total + 1e-300,
+            "mass balance of {}: {} + {} vs {}",
+            cat.family(fs.family).id,
+            dissolved,
+            gas,
+            total
+        );
+    }
+    for g in &eq.gases {
+        assert!(g.partial_pressure_pa.is_finite() && g.partial_pressure_pa >= 0.0);
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(400))]
+
+    #[test]
+    fn charge_and_mass_balance_hold(m in arb_mixture()) {
+        let eq = solve(catalog(), &m, &settings()).expect("solves");
+        check_balances(&m, &eq);
+    }
+
+    #[test]
+    fn adding_strong_acid_never_raises_ph(m in arb_mixture(), extra in -4.0f64..0.5) {
+        let cat = catalog();
+        let before = solve(cat, &m, &settings()).unwrap();
+        let mut more = m.clone();
+        more.add_family(cat.family_by_id("chloride").unwrap(), 10f64.powf(extra) * m.liquid_l);
+        let after = solve(cat, &more, &settings()).unwrap();
+        prop_assert!(after.ph <= before.ph + 1e-9, "pH {} → {}", before.ph, after.ph);
+    }
+
+    #[test]
+    fn a_plus_b_equals_b_plus_a(a in arb_mixture(), b in arb_mixture()) {
+        let cap = a.liquid_l + b.liquid_l + 5.0;
+        let ab = a.pour(&b, 1.0, cap);
+        let mut ba = b.pour(&a, 1.0, cap);
+        ba.closure = ab.closure;
+        let e1 = solve(catalog(), &ab, &settings()).unwrap();
+        let e2 = solve(catalog(), &ba, &settings()).unwrap();
+        prop_assert!((e1.ph - e2.ph).abs() < 1e-8, "{} vs {}", e1.ph, e2.ph);
+        prop_assert!((e1.temperature_k - e2.temperature_k).abs() < 1e-9);
+        for (g1, g2) in e1.gases.iter().zip(e2.gases.iter()) {
+            prop_assert!((g1.partial_pressure_pa - g2.partial_pressure_pa).abs() <= 1e-7 * g1.partial_pressure_pa.max(1e-30));
+        }
+    }
+
+    #[test]
+    fn splitting_a_pour_in_two_gives_the_same_end(a in arb_mixture(), b in arb_mixture(), split in 0.05f64..0.95) {
+        let cap = a.liquid_l + b.liquid_l + 5.0;
+        let whole = a.pour(&b, 1.0, cap);
+        let halves = a.pour(&b, split, cap).pour(&b, 1.0 - split, cap);
+        let e1 = solve(catalog(), &whole, &settings()).unwrap();
+        let e2 = solve(catalog(), &halves, &settings()).unwrap();
+        prop_assert!((e1.ph - e2.ph).abs() < 1e-7, "{} vs {}", e1.ph, e2.ph);
+        prop_assert!((e1.liquid_l - e2.liquid_l).abs() < 1e-9);
+        prop_assert!((e1.temperature_k - e2.temperature_k).abs() < 1e-7);
+    }
+}
