@@ -34,6 +34,7 @@ fn twelve_family_mixture(cat: &offgas::catalog::Catalog) -> Mixture {
 fn bench(c: &mut Criterion) {
     let cat = offgas::embedded::catalog().unwrap();
     let th = offgas::embedded::thresholds().unwrap();
+    let rules = offgas::embedded::rules(&cat).unwrap();
     let m = twelve_family_mixture(&cat);
     let s = SolverSettings::default();
     c.bench_function("solve 12-family mixture with headspace", |b| {
@@ -53,7 +54,8 @@ fn bench(c: &mut Criterion) {
     .unwrap();
     c.bench_function("check: whole computation in-process", |b| {
         b.iter(|| {
-            offgas::check::check(&cat, &th, &container, &stream, &Default::default()).unwrap()
+            offgas::check::check(&cat, &th, &rules, &container, &stream, &Default::default())
+                .unwrap()
         })
     });
 }

@@ -215,9 +215,10 @@ pub fn state_findings(
         };
         out.push(Finding {
             severity: sev,
-            code,
+            code: code.into(),
             message,
             caution,
+            origin: "chemistry".into(),
         });
     }
     if sealed {
@@ -237,12 +238,13 @@ pub fn state_findings(
         if sev > Severity::Clear {
             out.push(Finding {
                 severity: sev,
-                code: "sealed-overpressure",
+                code: "sealed-overpressure".into(),
                 message: format!(
                     "The sealed vessel's gases add {p:.1} kPa above atmospheric {place} (review at {} kPa, stop at {} kPa; {}).",
                     op.review_kpa, op.stop_kpa, op.basis
                 ),
                 caution: "Do not cap a vessel that makes gas; use a vented cap or leave the mixture in a fume hood until it stops.".into(),
+                origin: "chemistry".into(),
             });
         }
     }
@@ -250,12 +252,13 @@ pub fn state_findings(
         let i = end.ionic_strength.max(worst.ionic_strength);
         out.push(Finding {
             severity: Severity::Review,
-            code: "outside-activity-model",
+            code: "outside-activity-model".into(),
             message: format!(
                 "The ionic strength reaches {i:.2} mol/L, past the {} mol/L where the activity model holds ({}); the figures are rough.",
                 th.activity_model.max_ionic_strength, th.activity_model.basis
             ),
             caution: "Concentrated mixtures can release more gas than this estimate; treat the figures as indicative only.".into(),
+            origin: "chemistry".into(),
         });
     }
     out

@@ -5,10 +5,14 @@ use crate::batch::{Batch, InputError};
 use crate::catalog::Catalog;
 use crate::chem::{solve, Closure, SolveError, SolverSettings};
 use crate::pairs::pair_table;
+use crate::pairs::Side;
 use crate::path::{scan, PathScan};
+use crate::report::StateReport;
 use crate::report::{
     BatchReport, CheckReport, ComponentReport, Finding, OrderReport, Severity, WorstStateReport,
 };
+use crate::rules::evaluate::{Present, RuleContext};
+use crate::rules::{Computed, Origin, RuleSet};
 use crate::thresholds::Thresholds;
 
 #[derive(Debug, Clone, Default)]
@@ -36,6 +40,7 @@ fn settings(th: &Thresholds) -> SolverSettings {
 pub fn check(
     cat: &Catalog,
     th: &Thresholds,
+    rules: &RuleSet,
     container: &Batch,
     stream: &Batch,
     opts: &CheckOptions,
@@ -105,17 +110,20 @@ pub fn check(
     let sealed = container.closure == Closure::Sealed;
     let mut findings = state_findings(th, &end, &worst, forward.worst.fraction_added, sealed);
     findings.extend(order_findings(th, &forward, &backward));
-    findings.extend(unmodelled_findings(cat, container, stream));
+    let ctx = rule_context(container, stream, &forward);
+    findings.extend(rule_findings(cat, rules, &ctx, &end, &worst));
+    findings.extend(unruled_findings(cat, rules, container, stream));
     let inert = inert_names(cat, container, stream);
     if !inert.is_empty() {
         findings.push(Finding {
             severity: Severity::Info,
-            code: "inert-components",
+            code: "inert-components".into(),
             message: format!(
                 "Treated as taking no part in proton transfer: {}.",
                 inert.join(", ")
             ),
             caution: "Solvents can still burn, form a separate layer or react by other routes; see their safety data sheets.".into(),
+            origin: "chemistry".into(),
         });
     }
     findings.sort_by_key(|f| std::cmp::Reverse(f.severity));
@@ -160,29 +168,31 @@ fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> V
     if fw >= 1.0 && bw * factor <= fw {
         out.push(Finding {
             severity: Severity::Info,
-            code: "safer-order",
+            code: "safer-order".into(),
             message: format!(
                 "The order matters: pouring the container's contents into the stream instead keeps the worst headspace at {} the short-term level, against {} as written.",
                 fmt_times(bw), fmt_times(fw)
             ),
             caution: "If you change the order, check the new order as its own pour; add slowly, with stirring, in a fume hood.".into(),
+            origin: "chemistry".into(),
         });
     } else if bw >= 1.0 && fw * factor <= bw {
         out.push(Finding {
             severity: Severity::Info,
-            code: "keep-this-order",
+            code: "keep-this-order".into(),
             message: format!(
                 "The order matters: pouring the container's contents into the stream would reach {} the short-term level, against {} as written. Pour as written.",
                 fmt_times(bw), fmt_times(fw)
             ),
             caution: "Label the container so that nobody reverses the order.".into(),
+            origin: "chemistry".into(),
         });
     }
     let end = forward.end.score;
     if fw >= 1.0 && forward.worst.fraction_added < 1.0 && fw >= factor * end {
         out.push(Finding {
             severity: Severity::Info,
-            code: "worst-while-pouring",
+            code: "worst-while-pouring".into(),
             message: format!(
                 "The worst moment is {}, not the end: {} the short-term level there against {} at the end.",
                 where_in_pour(forward.worst.fraction_added),
@@ -190,19 +200,142 @@ fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> V
                 fmt_times(end)
             ),
             caution: "Gas released during the pour escapes at the opening; the end state alone understates the exposure.".into(),
+            origin: "chemistry".into(),
         });
     }
     out
 }
 
-fn unmodelled_findings(cat: &Catalog, container: &Batch, stream: &Batch) -> Vec<Finding> {
+fn rule_context(container: &Batch, stream: &Batch, forward: &PathScan) -> RuleContext {
+    let present = container
+        .components
+        .iter()
+        .map(|c| (Side::Container, c))
+        .chain(stream.components.iter().map(|c| (Side::Stream, c)))
+        .map(|(side, c)| Present {
+            side,
+            substance: c.substance,
+            moles: c.moles,
+        })
+        .collect();
+    RuleContext {
+        present,
+        liquid_l: container.volume_l + stream.volume_l,
+        ph_min: forward.ph_range.0,
+        ph_max: forward.ph_range.1,
+        temperature_max_c: forward.temperature_max_k - 273.15,
+    }
+}
+
+/// What the engine computed for a rule's product, in words, or that it could not.
+fn computed_note(
+    kind: Option<Computed>,
+    forms: &[String],
+    end: &StateReport,
+    worst: &StateReport,
+) -> String {
+    let gas_figure = |formula: &str| {
+        let at = |s: &StateReport| {
+            s.gases
+                .iter()
+                .find(|g| g.formula == formula)
+                .map(|g| g.headspace_ppm)
+        };
+        at(worst)
+            .into_iter()
+            .chain(at(end))
+            .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))))
+    };
+    match kind {
+        Some(Computed::Chlorine) => match gas_figure("Cl2") {
+            Some(ppm) => format!(" Computed: Cl2 reaches {ppm:.3} ppm in the headspace at worst (see the gas findings)."),
+            None => " Chlorine could not be computed for this mixture; the severity rests on this rule.".into(),
+        },
+        Some(Computed::Hydrogen) => match gas_figure("H2") {
+            Some(ppm) => format!(" Computed: H2 reaches {:.2} % of the headspace (see the hydrogen finding).", ppm / 1e4),
+            None => " Hydrogen could not be computed for this mixture; the severity rests on this rule.".into(),
+        },
+        None => format!(
+            " Not computed{}: the severity rests on this rule.",
+            if forms.is_empty() { String::new() } else { format!(" ({})", forms.join(", ")) }
+        ),
+    }
+}
+
+fn origin_text(o: &Origin, id: &str) -> String {
+    match o {
+        Origin::BuiltIn { file } => format!("built-in rule {id} ({file})"),
+        Origin::Site { file } => format!("site rule {id} ({file})"),
+    }
+}
+
+/// Findings from the rules the mixture meets; a site rule that raises another lifts that
+/// finding's severity and never lowers it.
+fn rule_findings(
+    cat: &Catalog,
+    rules: &RuleSet,
+    ctx: &RuleContext,
+    end: &StateReport,
+    worst: &StateReport,
+) -> Vec<Finding> {
+    let hits = rules.evaluate(cat, ctx);
+    let mut out: Vec<Finding> = Vec::new();
+    for hit in &hits {
+        let r = &hit.rule.rule;
+        let met: Vec<String> = hit.groups.iter().map(|g| g.join(" or ")).collect();
+        out.push(Finding {
+            severity: r.severity.into(),
+            code: r.id.clone(),
+            message: format!(
+                "{} Met here: {}.{} Basis: {}.",
+                r.message,
+                met.join(" with "),
+                computed_note(r.computed, &r.forms, end, worst),
+                r.basis
+            ),
+            caution: r.caution.clone(),
+            origin: origin_text(&hit.rule.origin, &r.id),
+        });
+    }
+    for hit in &hits {
+        let r = &hit.rule.rule;
+        let Some(target) = &r.raises else { continue };
+        if let Some(f) = out.iter_mut().find(|f| &f.code == target) {
+            let raised: Severity = r.severity.into();
+            if raised > f.severity {
+                f.severity = raised;
+                f.origin = format!(
+                    "{}; raised by {}",
+                    f.origin,
+                    origin_text(&hit.rule.origin, &r.id)
+                );
+            }
+        }
+    }
+    out
+}
+
+/// Classes whose hazards are not proton transfers and that no rule in force covers:
+/// nothing has assessed them, so they can never pass as clear.
+fn unruled_findings(
+    cat: &Catalog,
+    rules: &RuleSet,
+    container: &Batch,
+    stream: &Batch,
+) -> Vec<Finding> {
+    let covered = |class: &str| {
+        rules
+            .rules
+            .iter()
+            .any(|r| r.rule.meet.iter().flatten().any(|c| c == class))
+    };
     let mut hits: Vec<String> = Vec::new();
     for c in container.components.iter().chain(stream.components.iter()) {
         let s = cat.substance(c.substance);
         let classes: Vec<&str> = s
             .classes
             .iter()
-            .filter(|id| cat.class(id).is_some_and(|k| k.beyond_proton_model))
+            .filter(|id| cat.class(id).is_some_and(|k| k.beyond_proton_model) && !covered(id))
             .map(|s| s.as_str())
             .collect();
         if !classes.is_empty() {
@@ -217,12 +350,13 @@ fn unmodelled_findings(cat: &Catalog, container: &Batch, stream: &Batch) -> Vec<
     }
     vec![Finding {
         severity: Severity::Review,
-        code: "hazard-not-assessed",
+        code: "hazard-not-assessed".into(),
         message: format!(
-            "These components carry hazards that are not proton transfers, which this check does not assess: {}.",
+            "These components carry hazards that are not proton transfers and that no rule in force covers: {}.",
             hits.join("; ")
         ),
-        caution: "Until these are assessed, have a competent person review the mixture against the safety data sheets (oxidisers, hypochlorite, nitrite, azide, water-reactive and similar hazards).".into(),
+        caution: "Until a rule covers them, have a competent person review the mixture against the safety data sheets.".into(),
+        origin: "chemistry".into(),
     }]
 }
 

@@ -76,6 +76,7 @@ fn file(name: &str) -> Result<&'static str> {
 pub fn run(format: Format) -> Result<u8> {
     let cat = crate::load_catalog()?;
     let th = crate::load_thresholds(None)?;
+    let rules = crate::rules_cmd::load(&cat, None)?;
     let scenario: Scenario = serde_yaml::from_str(SCENARIO)?;
     let mut surprises = Vec::new();
     let mut out = String::new();
@@ -92,8 +93,8 @@ pub fn run(format: Format) -> Result<u8> {
         let a = Batch::parse(&cat, &path(&c.container), file(&c.container)?)
             .map_err(|e| anyhow!("{e}"))?;
         let b = Batch::parse(&cat, &path(&c.add), file(&c.add)?).map_err(|e| anyhow!("{e}"))?;
-        let report =
-            check(&cat, &th, &a, &b, &CheckOptions::default()).map_err(|e| anyhow!("{e}"))?;
+        let report = check(&cat, &th, &rules, &a, &b, &CheckOptions::default())
+            .map_err(|e| anyhow!("{e}"))?;
         if report.severity.word() != c.expect {
             surprises.push(format!(
                 "{}: expected {}, got {}",

@@ -10,6 +10,22 @@ pub const LIMITS: &str = include_str!("../data/limits.yaml");
 pub const PHYSICAL: &str = include_str!("../data/physical.yaml");
 pub const THRESHOLDS: &str = include_str!("../rules/thresholds.yaml");
 
+/// The built-in hazard rule files, by the name they carry in reports.
+pub const RULE_FILES: &[(&str, &str)] = &[
+    (
+        "rules/oxidisers.yaml",
+        include_str!("../rules/oxidisers.yaml"),
+    ),
+    (
+        "rules/gas-formers.yaml",
+        include_str!("../rules/gas-formers.yaml"),
+    ),
+    (
+        "rules/organics.yaml",
+        include_str!("../rules/organics.yaml"),
+    ),
+];
+
 /// The bundled catalog. The bundled files are checked by the test suite, so a failure
 /// here is a build defect, reported as such.
 pub fn catalog() -> Result<Catalog, crate::catalog::CatalogError> {
@@ -24,4 +40,16 @@ pub fn catalog() -> Result<Catalog, crate::catalog::CatalogError> {
 
 pub fn thresholds() -> Result<Thresholds, String> {
     Thresholds::parse("rules/thresholds.yaml", THRESHOLDS)
+}
+
+/// The built-in rules, checked against the catalog's hazard classes.
+pub fn rules(cat: &Catalog) -> Result<crate::rules::RuleSet, Vec<crate::rules::RuleError>> {
+    let mut set = crate::rules::RuleSet::default();
+    for (file, text) in RULE_FILES {
+        let origin = crate::rules::Origin::BuiltIn {
+            file: file.to_string(),
+        };
+        set.extend(crate::rules::RuleSet::parse_file(cat, file, text, origin)?)?;
+    }
+    Ok(set)
 }

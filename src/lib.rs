@@ -14,4 +14,5 @@ pub mod path;
 pub mod quantity;
 pub mod render;
 pub mod report;
+pub mod rules;
 pub mod thresholds;

@@ -154,7 +154,11 @@ fn family_text(cat: &Catalog, id: FamilyId, out: &mut String) {
                             );
                         }
                         None => {
-                            let _ = writeln!(out, "  {label} for {}: none published", v.gas);
+                            let _ = writeln!(
+                                out,
+                                "  {label} for {}: none in data/limits.yaml (see its note there)",
+                                v.gas
+                            );
                         }
                     }
                 }

@@ -16,6 +16,7 @@ use std::process::ExitCode;
 
 mod demo;
 mod lookup;
+mod rules_cmd;
 
 /// What gas comes out if these meet? Speciation and headspace gas for chemical waste.
 #[derive(Parser)]
@@ -45,6 +46,14 @@ enum Command {
         /// Show every proton-transfer pair, not only those that matter.
         #[arg(long)]
         all_pairs: bool,
+        /// A folder of the site's own rule files, layered over the built-in rules.
+        #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
+        site_rules: Option<PathBuf>,
+    },
+    /// The hazard rules: list those in force, or validate a folder of site rules.
+    Rules {
+        #[command(subcommand)]
+        action: RulesAction,
     },
     /// Find a substance or acid–base family by name, synonym, formula or CAS number.
     Lookup {
@@ -57,6 +66,20 @@ enum Command {
         #[arg(long, value_enum, default_value_t = Format::Table)]
         format: Format,
     },
+}
+
+#[derive(Subcommand)]
+enum RulesAction {
+    /// List the rules in force (built-in, then site rules) with their source files.
+    List {
+        /// A folder of site rule files to layer over the built-ins.
+        #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
+        site_rules: Option<PathBuf>,
+        #[arg(long, value_enum, default_value_t = LookupFormat::Text)]
+        format: LookupFormat,
+    },
+    /// Validate a folder of rule files: unknown classes and keys, conditions that can never hold.
+    Check { dir: PathBuf },
 }
 
 #[derive(Clone, Copy, ValueEnum)]
@@ -82,14 +105,22 @@ fn main() -> ExitCode {
             temperature,
             thresholds,
             all_pairs,
-        } => run_check(
-            &container,
-            &stream,
+            site_rules,
+        } => run_check(&CheckArgs {
+            container,
+            stream,
             format,
             temperature,
             thresholds,
             all_pairs,
-        ),
+            site_rules,
+        }),
+        Command::Rules { action } => match action {
+            RulesAction::List { site_rules, format } => {
+                rules_cmd::list(site_rules.as_deref(), matches!(format, LookupFormat::Json))
+            }
+            RulesAction::Check { dir } => rules_cmd::check_dir(&dir),
+        },
         Command::Lookup { query, format } => {
             lookup::run(&query, matches!(format, LookupFormat::Json))
         }
@@ -161,21 +192,25 @@ pub(crate) fn render(
     })
 }
 
-/// `offgas check`: one pour, both orders, and the verdict as exit status.
-fn run_check(
-    container: &Path,
-    stream: &Path,
+struct CheckArgs {
+    container: PathBuf,
+    stream: PathBuf,
     format: Format,
     temperature: Option<String>,
     thresholds: Option<PathBuf>,
     all_pairs: bool,
-) -> Result<u8> {
+    site_rules: Option<PathBuf>,
+}
+
+/// `offgas check`: one pour, both orders, and the verdict as exit status.
+fn run_check(args: &CheckArgs) -> Result<u8> {
     let cat = load_catalog()?;
-    let th = load_thresholds(thresholds.as_deref())?;
-    let temperature_k = match temperature {
+    let th = load_thresholds(args.thresholds.as_deref())?;
+    let rules = rules_cmd::load(&cat, args.site_rules.as_deref())?;
+    let temperature_k = match &args.temperature {
         None => None,
         Some(t) => {
-            let k = offgas::quantity::parse_temperature(&t)
+            let k = offgas::quantity::parse_temperature(t)
                 .map_err(|e| anyhow!("--temperature: {e}"))?;
             if !(273.15..=373.15).contains(&k.0) {
                 return Err(anyhow!(
@@ -185,14 +220,14 @@ fn run_check(
             Some(k.0)
         }
     };
-    let a = read_batch(&cat, container)?;
-    let b = read_batch(&cat, stream)?;
-    let report = match check(&cat, &th, &a, &b, &CheckOptions { temperature_k }) {
+    let a = read_batch(&cat, &args.container)?;
+    let b = read_batch(&cat, &args.stream)?;
+    let report = match check(&cat, &th, &rules, &a, &b, &CheckOptions { temperature_k }) {
         Ok(r) => r,
         Err(CheckError::Input(e)) => return Err(anyhow!("{e}")),
         Err(e @ CheckError::Solve { .. }) => return Err(anyhow!("{e}")),
     };
-    print(&render(&report, format, all_pairs)?)?;
+    print(&render(&report, args.format, args.all_pairs)?)?;
     Ok(exit_status(report.severity))
 }
 

@@ -29,6 +29,10 @@ pub struct PathScan {
     pub end: PathState,
     /// (fraction added, score) of every state solved, in order of fraction.
     pub profile: Vec<(f64, f64)>,
+    /// Lowest and highest pH met along the pour.
+    pub ph_range: (f64, f64),
+    /// Highest temperature along the pour, K.
+    pub temperature_max_k: f64,
 }
 
 /// Pours `stream` into `vessel` (of `capacity_l`) and finds the worst state by `score`.
@@ -96,9 +100,20 @@ pub fn scan(
         .expect("the scan ends at 1");
     let mut profile: Vec<(f64, f64)> = states.iter().map(|s| (s.fraction_added, s.score)).collect();
     profile.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let ph_range = states
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), s| {
+            (lo.min(s.state.ph), hi.max(s.state.ph))
+        });
+    let temperature_max_k = states
+        .iter()
+        .map(|s| s.state.temperature_k)
+        .fold(f64::NEG_INFINITY, f64::max);
     Ok(PathScan {
         worst,
         end,
         profile,
+        ph_range,
+        temperature_max_k,
     })
 }

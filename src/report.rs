@@ -55,9 +55,11 @@ impl fmt::Display for Severity {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Finding {
     pub severity: Severity,
-    pub code: &'static str,
+    pub code: String,
     pub message: String,
     pub caution: String,
+    /// What raised it: "chemistry", or the rule and the file it came from.
+    pub origin: String,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
