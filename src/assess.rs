@@ -97,7 +97,7 @@ fn gas_severity(th: &Thresholds, g: &GasReport) -> Severity {
     }
 }
 
-fn fmt_ppm(v: f64) -> String {
+pub fn fmt_ppm(v: f64) -> String {
     if v >= 100.0 {
         format!("{v:.0} ppm")
     } else if v >= 1.0 {

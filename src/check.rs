@@ -7,6 +7,7 @@ use crate::chem::{solve, Closure, SolveError, SolverSettings};
 use crate::pairs::pair_table;
 use crate::pairs::Side;
 use crate::path::{scan, PathScan};
+use crate::release::ReleaseReport;
 use crate::report::StateReport;
 use crate::report::{
     BatchReport, CheckReport, ComponentReport, Finding, OrderReport, Severity, WorstStateReport,
@@ -111,7 +112,18 @@ pub fn check(
     let mut findings = state_findings(th, &end, &worst, forward.worst.fraction_added, sealed);
     findings.extend(order_findings(th, &forward, &backward));
     let ctx = rule_context(container, stream, &forward);
-    findings.extend(rule_findings(cat, rules, &ctx, &end, &worst));
+    let components: Vec<(crate::catalog::SubstanceId, f64)> =
+        ctx.present.iter().map(|p| (p.substance, p.moles)).collect();
+    let released = crate::release::releases(
+        cat,
+        &components,
+        forward.ph_range,
+        forward.end.state.temperature_k,
+        forward.end.state.headspace_l,
+        container.closure,
+    );
+    findings.extend(release_findings(th, &released));
+    findings.extend(rule_findings(cat, rules, &ctx, &end, &worst, &released));
     findings.extend(unruled_findings(cat, rules, container, stream));
     let inert = inert_names(cat, container, stream);
     if !inert.is_empty() {
@@ -122,7 +134,7 @@ pub fn check(
                 "Treated as taking no part in proton transfer: {}.",
                 inert.join(", ")
             ),
-            caution: "Solvents can still burn, form a separate layer or react by other routes; see their safety data sheets.".into(),
+            caution: "They can still burn, form a separate layer or react by other routes (see the other findings and their safety data sheets).".into(),
             origin: "chemistry".into(),
         });
     }
@@ -154,6 +166,7 @@ pub fn check(
             "the container's contents poured into the stream",
         )),
         pairs,
+        stoichiometric_gases: released,
         findings,
         inert_components: inert,
         assumptions: assumptions(container, stream, opts, th),
@@ -233,6 +246,7 @@ fn computed_note(
     forms: &[String],
     end: &StateReport,
     worst: &StateReport,
+    released: &[ReleaseReport],
 ) -> String {
     let gas_figure = |formula: &str| {
         let at = |s: &StateReport| {
@@ -248,16 +262,29 @@ fn computed_note(
     };
     match kind {
         Some(Computed::Chlorine) => match gas_figure("Cl2") {
-            Some(ppm) => format!(" Computed: Cl2 reaches {ppm:.3} ppm in the headspace at worst (see the gas findings)."),
-            None => " Chlorine could not be computed for this mixture; the severity rests on this rule.".into(),
+            Some(ppm) => format!(
+                " Computed: Cl2 reaches {} in the headspace at worst (see the gas findings).",
+                crate::assess::fmt_ppm(ppm)
+            ),
+            None => {
+                " Chlorine could not be computed for this mixture; the severity rests on this rule."
+                    .into()
+            }
         },
-        Some(Computed::Hydrogen) => match gas_figure("H2") {
-            Some(ppm) => format!(" Computed: H2 reaches {:.2} % of the headspace (see the hydrogen finding).", ppm / 1e4),
-            None => " Hydrogen could not be computed for this mixture; the severity rests on this rule.".into(),
+        Some(Computed::Hydrogen) => match released.iter().find(|r| r.formula == "H2") {
+            Some(r) => format!(
+                " Computed: {:.3} mol of H2 ({:.2} L at 1 atm), {:.1} % of the headspace.",
+                r.moles, r.litres_at_1_atm, r.headspace_percent
+            ),
+            None => " Hydrogen could not be computed for this mixture (no release data for these components, or the conditions do not trigger it); the severity rests on this rule.".into(),
         },
         None => format!(
             " Not computed{}: the severity rests on this rule.",
-            if forms.is_empty() { String::new() } else { format!(" ({})", forms.join(", ")) }
+            if forms.is_empty() {
+                String::new()
+            } else {
+                format!(" ({})", forms.join(", "))
+            }
         ),
     }
 }
@@ -277,6 +304,7 @@ fn rule_findings(
     ctx: &RuleContext,
     end: &StateReport,
     worst: &StateReport,
+    released: &[ReleaseReport],
 ) -> Vec<Finding> {
     let hits = rules.evaluate(cat, ctx);
     let mut out: Vec<Finding> = Vec::new();
@@ -290,7 +318,7 @@ fn rule_findings(
                 "{} Met here: {}.{} Basis: {}.",
                 r.message,
                 met.join(" with "),
-                computed_note(r.computed, &r.forms, end, worst),
+                computed_note(r.computed, &r.forms, end, worst, released),
                 r.basis
             ),
             caution: r.caution.clone(),
@@ -313,6 +341,45 @@ fn rule_findings(
         }
     }
     out
+}
+
+/// Flammable gas from stoichiometric releases, against its lower flammable limit.
+fn release_findings(th: &Thresholds, released: &[ReleaseReport]) -> Vec<Finding> {
+    let f = &th.flammable_gas;
+    released
+        .iter()
+        .filter_map(|r| {
+            let lfl = r.lfl_percent?;
+            let share = r.headspace_percent / lfl;
+            let severity = if share >= f.stop_fraction_of_lfl {
+                Severity::Stop
+            } else if share >= f.review_fraction_of_lfl {
+                Severity::Review
+            } else {
+                return None;
+            };
+            Some(Finding {
+                severity,
+                code: "flammable-gas-in-headspace".into(),
+                message: format!(
+                    "{} from {}: {:.3} mol ({:.2} L at 1 atm) would make {:.1} % of the headspace, {:.1} × its lower flammable limit of {} %{} (review at {} and stop at {} of the limit; {}).",
+                    r.formula,
+                    r.reactions.join("; "),
+                    r.moles,
+                    r.litres_at_1_atm,
+                    r.headspace_percent,
+                    share,
+                    lfl,
+                    if r.overpressure_kpa > 0.0 { format!(", and add {:.1} kPa to a sealed vessel", r.overpressure_kpa) } else { String::new() },
+                    f.review_fraction_of_lfl,
+                    f.stop_fraction_of_lfl,
+                    f.basis
+                ),
+                caution: "Keep ignition sources away, do not cap the container, and ventilate.".into(),
+                origin: "chemistry".into(),
+            })
+        })
+        .collect()
 }
 
 /// Classes whose hazards are not proton transfers and that no rule in force covers:

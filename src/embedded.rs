@@ -8,6 +8,8 @@ pub const SUBSTANCES: &str = include_str!("../data/substances.yaml");
 pub const CLASSES: &str = include_str!("../data/classes.yaml");
 pub const LIMITS: &str = include_str!("../data/limits.yaml");
 pub const PHYSICAL: &str = include_str!("../data/physical.yaml");
+pub const COMBINED: &str = include_str!("../data/combined.yaml");
+pub const RELEASES: &str = include_str!("../data/gas-release.yaml");
 pub const THRESHOLDS: &str = include_str!("../rules/thresholds.yaml");
 
 /// The built-in hazard rule files, by the name they carry in reports.
@@ -35,6 +37,8 @@ pub fn catalog() -> Result<Catalog, crate::catalog::CatalogError> {
         classes: ("data/classes.yaml", CLASSES),
         limits: ("data/limits.yaml", LIMITS),
         physical: ("data/physical.yaml", PHYSICAL),
+        combined: ("data/combined.yaml", COMBINED),
+        releases: ("data/gas-release.yaml", RELEASES),
     })
 }
 

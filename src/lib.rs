@@ -12,6 +12,7 @@ pub mod embedded;
 pub mod pairs;
 pub mod path;
 pub mod quantity;
+pub mod release;
 pub mod render;
 pub mod report;
 pub mod rules;

@@ -143,6 +143,8 @@ pub struct CheckReport {
     pub poured_as_written: OrderReport,
     pub poured_other_way: Option<OrderReport>,
     pub pairs: Vec<Pair>,
+    /// Gas released by stoichiometry (hydrogen from metals and hydrides).
+    pub stoichiometric_gases: Vec<crate::release::ReleaseReport>,
     pub findings: Vec<Finding>,
     pub inert_components: Vec<String>,
     pub assumptions: Vec<String>,

@@ -14,6 +14,7 @@ pub struct Thresholds {
     pub activity_model: ActivityModel,
     pub proton_transfer: ProtonTransfer,
     pub mixing_path: MixingPath,
+    pub flammable_gas: FlammableGas,
     pub cautions: Vec<String>,
 }
 
@@ -54,6 +55,15 @@ pub struct ProtonTransfer {
 
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
+pub struct FlammableGas {
+    /// Review when the headspace reaches this fraction of the lower flammable limit.
+    pub review_fraction_of_lfl: f64,
+    pub stop_fraction_of_lfl: f64,
+    pub basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
 pub struct MixingPath {
     /// The other order is advised when its worst state is this many times lower.
     pub safer_order_factor: f64,
@@ -76,7 +86,9 @@ impl Thresholds {
             && t.sealed_overpressure.stop_kpa >= t.sealed_overpressure.review_kpa
             && t.activity_model.max_ionic_strength > 0.0
             && t.proton_transfer.complete_above_log_k > t.proton_transfer.negligible_below_log_k
-            && t.mixing_path.safer_order_factor >= 1.0;
+            && t.mixing_path.safer_order_factor >= 1.0
+            && t.flammable_gas.review_fraction_of_lfl > 0.0
+            && t.flammable_gas.stop_fraction_of_lfl >= t.flammable_gas.review_fraction_of_lfl;
         if !ok {
             return Err(format!(
                 "{file}: thresholds must be positive, stop levels at or above review levels, and the safer-order factor at least 1"

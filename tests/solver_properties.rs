@@ -48,12 +48,22 @@ prop_compose! {
     }
 }
 
-fn gas_moles(eq: &Equilibrium, fam: offgas::catalog::FamilyId) -> f64 {
-    eq.gases
+/// Moles of a family outside its own dissolved species: its own gas, and every combined
+/// species (dissolved chlorine and its gas) that it is a parent of.
+fn moles_elsewhere(eq: &Equilibrium, fam: offgas::catalog::FamilyId, liquid_l: f64) -> f64 {
+    let own_gas: f64 = eq
+        .gases
         .iter()
-        .filter(|g| g.family == fam)
+        .filter(|g| g.family == fam && !g.from_combined)
         .map(|g| g.moles_in_gas)
-        .sum()
+        .sum();
+    let combined: f64 = eq
+        .combined
+        .iter()
+        .filter(|c| c.parents.0 == fam || c.parents.1 == fam)
+        .map(|c| c.concentration * liquid_l + c.moles_in_gas)
+        .sum();
+    own_gas + combined
 }
 
 fn check_balances(m: &Mixture, eq: &Equilibrium) {
@@ -67,7 +77,7 @@ fn check_balances(m: &Mixture, eq: &Equilibrium) {
     for fs in &eq.families {
         let total = m.families.iter().find(|(f, _)| *f == fs.family).unwrap().1;
         let dissolved: f64 = fs.concentrations.iter().sum::<f64>() * m.liquid_l;
-        let gas = gas_moles(eq, fs.family);
+        let gas = moles_elsewhere(eq, fs.family, m.liquid_l);
         assert!(fs.concentrations.iter().all(|c| c.is_finite() && *c >= 0.0));
         assert!(
             (dissolved + gas - total).abs() <= 1e-9 * total + 1e-300,

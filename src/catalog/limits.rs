@@ -45,6 +45,14 @@ pub struct GasLimits {
     pub short_term: Option<Level>,
     #[serde(default)]
     pub twa: Option<Level>,
+    #[serde(default)]
+    pub flammability: Option<Flammability>,
+}
+
+/// For a flammable gas: its lower flammable limit in air.
+#[derive(Debug, Clone, Deserialize)]
+pub struct Flammability {
+    pub lfl: Level,
 }
 
 /// The two levels a verdict is judged against, each with a short basis and its source.

@@ -4,6 +4,7 @@
 //! it checks that every cross-reference resolves and every step is self-consistent, so the
 //! engine can index without checking again. It never reads files itself.
 
+pub mod combined;
 pub mod limits;
 pub mod physical;
 pub mod species;
@@ -31,6 +32,8 @@ pub struct DataSources<'a> {
     pub classes: (&'a str, &'a str),
     pub limits: (&'a str, &'a str),
     pub physical: (&'a str, &'a str),
+    pub combined: (&'a str, &'a str),
+    pub releases: (&'a str, &'a str),
 }
 
 /// A commercial solution: one millilitre holds `solute_mol_per_ml` of the solute.
@@ -77,6 +80,45 @@ pub enum CatalogError {
     Invalid { file: String, message: String },
 }
 
+#[derive(Debug, Clone, serde::Deserialize)]
+#[serde(deny_unknown_fields)]
+struct ReleasesFile {
+    #[allow(dead_code)]
+    description: String,
+    #[allow(dead_code)]
+    units: serde_yaml::Value,
+    releases: Vec<Release>,
+}
+
+/// What a substance must meet to release its gas.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Deserialize, serde::Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Trigger {
+    Water,
+    Acid,
+    Base,
+}
+
+/// A stoichiometric gas release: `per_mole` mol of `gas` per mol of the substance.
+#[derive(Debug, Clone, serde::Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Release {
+    pub substance: String,
+    pub gas: String,
+    pub per_mole: f64,
+    pub with: Vec<Trigger>,
+    pub reaction: String,
+    pub source: String,
+}
+
+/// A combined species with its parents as (family, species index).
+#[derive(Debug, Clone)]
+pub struct CombinedSpecies {
+    pub first: (FamilyId, usize),
+    pub second: (FamilyId, usize),
+    pub data: combined::Combined,
+}
+
 pub struct Catalog {
     pub families: Vec<Family>,
     pub strong_ions: Vec<StrongIon>,
@@ -84,6 +126,10 @@ pub struct Catalog {
     pub classes: Vec<HazardClass>,
     pub limits: LimitsFile,
     pub physical: physical::Physical,
+    /// Species formed from two families, with their parents resolved.
+    pub combined: Vec<CombinedSpecies>,
+    /// Stoichiometric gas releases (hydrogen from metals and hydrides).
+    pub releases: Vec<(SubstanceId, Release)>,
     pub water: FamilyId,
     family_index: HashMap<String, FamilyId>,
     ion_index: HashMap<String, IonId>,
@@ -113,6 +159,8 @@ impl Catalog {
         let classes: ClassesFile = parse(src.classes)?;
         let limits: LimitsFile = parse(src.limits)?;
         let physical: physical::PhysicalFile = parse(src.physical)?;
+        let combined: combined::CombinedFile = parse(src.combined)?;
+        let releases: ReleasesFile = parse(src.releases)?;
         let bad = |file: &str, message: String| CatalogError::Invalid {
             file: file.to_string(),
             message,
@@ -285,6 +333,79 @@ impl Catalog {
             });
         }
 
+        let mut linked = Vec::new();
+        for c in combined.combined {
+            let file = src.combined.0;
+            let parent = |p: &combined::Parent| -> Result<(FamilyId, usize), CatalogError> {
+                let fid = *family_index.get(&p.family).ok_or_else(|| {
+                    bad(file, format!("`{}`: unknown family `{}`", c.id, p.family))
+                })?;
+                let idx = species.families[fid.0]
+                    .species
+                    .iter()
+                    .position(|s| s.formula == p.species)
+                    .ok_or_else(|| {
+                        bad(
+                            file,
+                            format!(
+                                "`{}`: family `{}` has no species `{}`",
+                                c.id, p.family, p.species
+                            ),
+                        )
+                    })?;
+                Ok((fid, idx))
+            };
+            let first = parent(&c.first)?;
+            let second = parent(&c.second)?;
+            let z = species.families[first.0 .0].species[first.1].charge
+                + species.families[second.0 .0].species[second.1].charge
+                + c.protons;
+            if z != c.charge {
+                return Err(bad(
+                    file,
+                    format!(
+                        "`{}`: charges do not balance ({} on the left, {} stated)",
+                        c.id, z, c.charge
+                    ),
+                ));
+            }
+            if first.0 == second.0
+                || linked.iter().any(|l: &CombinedSpecies| {
+                    [l.first.0, l.second.0].contains(&first.0)
+                        || [l.first.0, l.second.0].contains(&second.0)
+                })
+            {
+                return Err(bad(file, format!("`{}`: each family may take part in one combined species, with another family", c.id)));
+            }
+            linked.push(CombinedSpecies {
+                first,
+                second,
+                data: c,
+            });
+        }
+
+        let mut resolved_releases = Vec::new();
+        for r in releases.releases {
+            let sid = *substance_index
+                .get(&normalize_name(&r.substance))
+                .ok_or_else(|| {
+                    bad(
+                        src.releases.0,
+                        format!("unknown substance `{}`", r.substance),
+                    )
+                })?;
+            if !(r.per_mole > 0.0 && r.per_mole.is_finite()) || r.with.is_empty() {
+                return Err(bad(
+                    src.releases.0,
+                    format!(
+                        "`{}`: per_mole must be positive and `with` not empty",
+                        r.substance
+                    ),
+                ));
+            }
+            resolved_releases.push((sid, r));
+        }
+
         let mut gas_index = HashMap::new();
         for (i, g) in limits.gases.iter().enumerate() {
             gas_index.insert(g.gas.clone(), i);
@@ -297,6 +418,8 @@ impl Catalog {
             classes: classes.classes,
             limits,
             physical: physical.into(),
+            combined: linked,
+            releases: resolved_releases,
             water,
             family_index,
             ion_index,

@@ -96,3 +96,13 @@ impl Family {
         self.species.iter().position(|s| s.formula == v.species)
     }
 }
+
+/// The gas a combined species forms, with its Henry's law solubility.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct CombinedVolatile {
+    pub gas: String,
+    pub hcp: f64,
+    pub hcp_b: f64,
+    pub source: String,
+}

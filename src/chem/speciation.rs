@@ -63,10 +63,23 @@ pub struct FamilyState {
     pub fractions: Vec<f64>,
 }
 
+/// A species formed from two families.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CombinedState {
+    pub formula: String,
+    pub parents: (FamilyId, FamilyId),
+    /// mol/L in the liquid.
+    pub concentration: f64,
+    pub moles_in_gas: f64,
+}
+
 /// A volatile species in the headspace.
 #[derive(Debug, Clone, PartialEq)]
 pub struct GasState {
+    /// The family the gas belongs to; for a combined species, its first parent.
     pub family: FamilyId,
+    /// True when the gas is a combined species (e.g. Cl2), drawing on two families.
+    pub from_combined: bool,
     pub gas: String,
     pub partial_pressure_pa: f64,
     pub moles_in_gas: f64,
@@ -83,6 +96,8 @@ pub struct Equilibrium {
     pub h_mol_per_l: f64,
     pub oh_mol_per_l: f64,
     pub families: Vec<FamilyState>,
+    /// Species formed from two families (dissolved chlorine), present when both are.
+    pub combined: Vec<CombinedState>,
     pub gases: Vec<GasState>,
     /// Charge balance residual over the sum of absolute charge concentrations.
     pub relative_charge_residual: f64,
@@ -116,6 +131,21 @@ struct Term {
     volatile: usize,
 }
 
+/// A combined species prepared for evaluation: parents are indices into `terms`.
+#[derive(Clone, Copy)]
+struct Link {
+    catalog_index: usize,
+    first: (usize, usize),
+    second: (usize, usize),
+    protons: i32,
+    charge: i32,
+    /// Thermodynamic formation constant at the temperature.
+    k_form: f64,
+    /// With the activity coefficients of the reactants and product folded in.
+    k_eff: f64,
+    gas_factor: f64,
+}
+
 struct Point {
     f: f64,
     dfdlnx: f64,
@@ -123,6 +153,7 @@ struct Point {
 
 struct Prepared {
     terms: Vec<Term>,
+    links: Vec<Link>,
     strong_charge: f64,
     strong_ionic: f64,
     kw: f64,
@@ -139,6 +170,11 @@ impl Prepared {
             *v = self.gamma1.powi(z * z);
         }
         let gamma = |z: i32| table[(z.clamp(-MAX_CHARGE, MAX_CHARGE) + MAX_CHARGE) as usize];
+        for l in &mut self.links {
+            let z1 = self.terms[l.first.0].z0 - l.first.1 as i32;
+            let z2 = self.terms[l.second.0].z0 - l.second.1 as i32;
+            l.k_eff = l.k_form * gamma(z1) * gamma(z2) * gamma(1).powi(l.protons) / gamma(l.charge);
+        }
         for t in &mut self.terms {
             t.beta[0] = 1.0;
             for j in 1..=t.n {
@@ -151,6 +187,15 @@ impl Prepared {
 
     /// Charge balance and its slope in ln x.
     fn eval(&self, x: f64) -> Point {
+        if !self.links.is_empty() {
+            // The coupling makes the analytic slope long; a central difference is exact
+            // enough for a Newton step that the bracket guards anyway.
+            let d: f64 = 1e-6;
+            let f = self.charge_linked(x);
+            let slope =
+                (self.charge_linked(x * d.exp()) - self.charge_linked(x * (-d).exp())) / (2.0 * d);
+            return Point { f, dfdlnx: slope };
+        }
         let h = x / self.gamma1;
         let oh = self.kw / (x * self.gamma1);
         let mut f = h - oh + self.strong_charge;
@@ -161,6 +206,62 @@ impl Prepared {
             d += dq;
         }
         Point { f, dfdlnx: d }
+    }
+}
+
+impl Prepared {
+    /// Moles per litre of liquid (liquid and gas together) of each link's species at x.
+    fn link_amount(&self, l: &Link, x: f64) -> f64 {
+        let (ta, tb) = (&self.terms[l.first.0], &self.terms[l.second.0]);
+        let fa = liquid_species_fraction(ta, x, l.first.1);
+        let fb = liquid_species_fraction(tb, x, l.second.1);
+        let kappa = l.k_eff * x.powi(l.protons) * fa * fb * (1.0 + l.gas_factor);
+        // y = kappa (A − y)(B − y): the smaller root, written to avoid cancellation.
+        let (a, b) = (ta.c_total, tb.c_total);
+        let s = kappa * (a + b) + 1.0;
+        let disc = (s * s - 4.0 * kappa * kappa * a * b).max(0.0);
+        2.0 * kappa * a * b / (s + disc.sqrt())
+    }
+
+    /// Each term's total after the links have taken their share, at x.
+    fn totals(&self, x: f64) -> Vec<f64> {
+        let mut totals: Vec<f64> = self.terms.iter().map(|t| t.c_total).collect();
+        for l in &self.links {
+            let y = self.link_amount(l, x);
+            totals[l.first.0] -= y;
+            totals[l.second.0] -= y;
+        }
+        totals
+    }
+
+    fn charge_linked(&self, x: f64) -> f64 {
+        let h = x / self.gamma1;
+        let oh = self.kw / (x * self.gamma1);
+        let mut f = h - oh + self.strong_charge;
+        let totals = self.totals(x);
+        for (t, &total) in self.terms.iter().zip(&totals) {
+            let mut t = *t;
+            t.c_total = total.max(0.0);
+            f += term_charge(&t, x).0;
+        }
+        for l in &self.links {
+            if l.charge != 0 {
+                f += l.charge as f64 * self.link_amount(l, x) / (1.0 + l.gas_factor);
+            }
+        }
+        f
+    }
+}
+
+/// Share of a term's total that sits in the liquid as species `sp`, at x.
+fn liquid_species_fraction(t: &Term, x: f64, sp: usize) -> f64 {
+    let mut w = [0.0; MAX_STEPS + 1];
+    let d = weights(t, x, &mut w);
+    let alpha = w[sp] / d;
+    if t.gas_factor == 0.0 {
+        alpha
+    } else {
+        alpha / (1.0 + t.gas_factor * w[t.volatile] / d)
     }
 }
 
@@ -236,6 +337,7 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
         strong_ionic += z * z * n / vl;
     }
     let mut terms = Vec::with_capacity(m.families.len());
+    let mut term_of: Vec<FamilyId> = Vec::with_capacity(m.families.len());
     for &(fid, n) in &m.families {
         if !(n.is_finite() && n >= 0.0) {
             return Err(SolveError::BadTotals);
@@ -259,6 +361,7 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
             }
             _ => (0.0, 0),
         };
+        term_of.push(fid);
         terms.push(Term {
             c_total: n / vl,
             n: steps,
@@ -270,8 +373,37 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
         });
     }
     let kw = 10f64.powf(log_kw(phys, cat.family(cat.water), t_k));
+    let mut links = Vec::new();
+    for (ci, c) in cat.combined.iter().enumerate() {
+        let find = |f: FamilyId| term_of.iter().position(|&t| t == f);
+        let (Some(a), Some(b)) = (find(c.first.0), find(c.second.0)) else {
+            continue;
+        };
+        let d = &c.data;
+        let log_k = d.log_k_formation
+            - d.dh_formation * 1e3 / (phys.r * std::f64::consts::LN_10)
+                * (1.0 / t_k - 1.0 / phys.t_ref);
+        let gas_factor = match &d.volatile {
+            Some(v) if vg > 0.0 => {
+                let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();
+                (vg / vl) / (hcp * phys.r * t_k)
+            }
+            _ => 0.0,
+        };
+        links.push(Link {
+            catalog_index: ci,
+            first: (a, c.first.1),
+            second: (b, c.second.1),
+            protons: d.protons,
+            charge: d.charge,
+            k_form: 10f64.powf(log_k),
+            k_eff: 0.0,
+            gas_factor,
+        });
+    }
     let mut p = Prepared {
         terms,
+        links,
         strong_charge,
         strong_ionic,
         kw,
@@ -360,7 +492,15 @@ fn ionic_strength(p: &Prepared, x: f64) -> f64 {
     let oh = p.kw / (x * p.gamma1);
     let mut sum = p.strong_ionic + h + oh;
     let mut w = [0.0; MAX_STEPS + 1];
-    for t in &p.terms {
+    let totals = p.totals(x);
+    for l in &p.links {
+        let z = l.charge as f64;
+        sum += z * z * p.link_amount(l, x) / (1.0 + l.gas_factor);
+    }
+    for (t, &total) in p.terms.iter().zip(&totals) {
+        let mut t = *t;
+        t.c_total = total.max(0.0);
+        let t = &t;
         let d = weights(t, x, &mut w);
         let c_aq = liquid_total(t, &w, d);
         for (j, wj) in w.iter().enumerate().take(t.n + 1) {
@@ -398,12 +538,16 @@ fn assemble(
     let mut gases = Vec::new();
     let mut charge = h - oh + p.strong_charge;
     let mut scale = h + oh + p.strong_ionic;
-    let mut terms = p.terms.iter();
+    let totals = p.totals(x);
+    let mut terms = p.terms.iter().zip(totals);
     for &(fid, n) in &m.families {
         if fid == cat.water || n == 0.0 {
             continue;
         }
-        let t = terms.next().expect("one term per non-empty family");
+        let (t, total) = terms.next().expect("one term per non-empty family");
+        let mut t = *t;
+        t.c_total = total.max(0.0);
+        let t = &t;
         let fam = cat.family(fid);
         let mut w = [0.0; MAX_STEPS + 1];
         let d = weights(t, x, &mut w);
@@ -422,6 +566,7 @@ fn assemble(
             let moles_in_gas = pa * (vg / 1e3) / (phys.r * t_k);
             gases.push(GasState {
                 family: fid,
+                from_combined: false,
                 gas: v.gas.clone(),
                 partial_pressure_pa: pa,
                 moles_in_gas,
@@ -434,6 +579,32 @@ fn assemble(
             fractions,
         });
     }
+    let mut combined = Vec::with_capacity(p.links.len());
+    for l in &p.links {
+        let c = &cat.combined[l.catalog_index];
+        let y = p.link_amount(l, x);
+        let c_aq = y / (1.0 + l.gas_factor);
+        let z = l.charge as f64;
+        charge += z * c_aq;
+        scale += z.abs() * c_aq;
+        let moles_in_gas = (y - c_aq) * m.liquid_l;
+        if let Some(v) = &c.data.volatile {
+            let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();
+            gases.push(GasState {
+                family: c.first.0,
+                from_combined: true,
+                gas: v.gas.clone(),
+                partial_pressure_pa: c_aq * 1e3 / hcp,
+                moles_in_gas,
+            });
+        }
+        combined.push(CombinedState {
+            formula: c.data.formula.clone(),
+            parents: (c.first.0, c.second.0),
+            concentration: c_aq,
+            moles_in_gas,
+        });
+    }
     Equilibrium {
         ph: -x.log10(),
         ionic_strength: ionic,
@@ -444,6 +615,7 @@ fn assemble(
         h_mol_per_l: h,
         oh_mol_per_l: oh,
         families,
+        combined,
         gases,
         relative_charge_residual: if scale > 0.0 {
             charge.abs() / scale
