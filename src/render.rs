@@ -77,7 +77,12 @@ fn finding_line(f: &Finding, color: bool) -> String {
     } else {
         tag
     };
-    format!("  [{tag}] {}\n         {}", f.message, f.caution)
+    let from = if f.origin == "chemistry" {
+        String::new()
+    } else {
+        format!("\n         from: {}", f.origin)
+    };
+    format!("  [{tag}] {}\n         {}{from}", f.message, f.caution)
 }
 
 /// One gas across the states a report shows: at the end, worst as written, worst the other way.
@@ -301,7 +306,16 @@ pub fn check_markdown(r: &CheckReport, v: View) -> String {
         } else {
             f.severity.word()
         };
-        let _ = writeln!(out, "- **{tag}** ({}) {} {}", f.code, f.message, f.caution);
+        let from = if f.origin == "chemistry" {
+            String::new()
+        } else {
+            format!(" _From {}._", f.origin)
+        };
+        let _ = writeln!(
+            out,
+            "- **{tag}** ({}) {} {}{from}",
+            f.code, f.message, f.caution
+        );
     }
     let _ = writeln!(out, "\n## Gas in the headspace\n");
     let _ = writeln!(

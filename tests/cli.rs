@@ -332,3 +332,94 @@ fn demo_runs_and_every_verdict_is_as_the_scenario_expects() {
     }
     assert!(text.contains("safer-order") || text.contains("The order matters"));
 }
+
+#[test]
+fn rules_list_shows_the_rules_in_force_with_their_files() {
+    offgas()
+        .args(["rules", "list"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("hypochlorite-with-acid"))
+        .stdout(predicate::str::contains("rules/oxidisers.yaml"));
+    let out = offgas()
+        .args(["rules", "list", "--format", "json"])
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!(v.as_array().unwrap().len() >= 35);
+}
+
+const SITE_RULE: &str = "description: Quarry Lane site rules (fictional)\nrules:\n  - id: no-cyanide-in-shared-carboys\n    meet: [[cyanide]]\n    severity: stop\n    message: Site policy forbids cyanide in shared carboys.\n    caution: Use the cyanide-only carboy in bay 3.\n    basis: site EHS policy\n";
+
+#[test]
+fn rules_check_accepts_a_good_folder_and_names_the_problems_in_a_bad_one() {
+    let f = Files::new();
+    f.write("site.yaml", SITE_RULE);
+    offgas()
+        .args(["rules", "check"])
+        .arg(f.dir.path())
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("1 site rules are valid"));
+    let bad = Files::new();
+    bad.write(
+        "bad.yaml",
+        "description: x\nrules:\n  - id: r1\n    meet: [[cyanid]]\n    when: { ph_below: 3, ph_above: 8 }\n    severity: stop\n    message: m\n    caution: c\n    basis: b\n",
+    );
+    offgas()
+        .args(["rules", "check"])
+        .arg(bad.dir.path())
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("bad.yaml:3"))
+        .stderr(predicate::str::contains("unknown hazard class `cyanid`"))
+        .stderr(predicate::str::contains("can never hold"));
+}
+
+#[test]
+fn a_site_rule_raises_the_verdict_and_says_it_is_a_site_rule() {
+    let f = Files::new();
+    let rules = Files::new();
+    rules.write("site.yaml", SITE_RULE);
+    let c = f.write(
+        "carboy.yaml",
+        "name: c\ncapacity: 20 L\nvolume: 5 L\ncontents:\n  - sodium cyanide: 0.01 g/L\n  - sodium hydroxide: 0.1 mol/L\n",
+    );
+    let s = f.write(
+        "stream.yaml",
+        "name: s\nvolume: 1 L\ncontents:\n  - sodium chloride: 0.01 mol/L\n",
+    );
+    // Without the site rule: alkaline, little HCN.
+    check(&c, &s).assert().code(0);
+    // With it, by option and by environment variable.
+    check(&c, &s)
+        .arg("--rules")
+        .arg(rules.dir.path())
+        .assert()
+        .code(4)
+        .stdout(predicate::str::contains(
+            "site rule no-cyanide-in-shared-carboys",
+        ));
+    check(&c, &s)
+        .env("OFFGAS_RULES", rules.dir.path())
+        .assert()
+        .code(4);
+}
+
+#[test]
+fn a_site_rule_that_would_lower_a_severity_stops_the_run() {
+    let f = Files::new();
+    let rules = Files::new();
+    rules.write(
+        "soft.yaml",
+        "description: x\nrules:\n  - id: softer\n    raises: hypochlorite-with-acid\n    meet: [[hypochlorite], [strong_acid]]\n    severity: review\n    message: m\n    caution: c\n    basis: b\n",
+    );
+    let c = f.write("carboy.yaml", CARBOY);
+    let s = f.write("stream.yaml", "name: s\nvolume: 1 L\n");
+    check(&c, &s)
+        .arg("--rules")
+        .arg(rules.dir.path())
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("may only raise"));
+}

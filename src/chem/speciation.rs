@@ -173,7 +173,9 @@ impl Prepared {
         for l in &mut self.links {
             let z1 = self.terms[l.first.0].z0 - l.first.1 as i32;
             let z2 = self.terms[l.second.0].z0 - l.second.1 as i32;
-            l.k_eff = l.k_form * gamma(z1) * gamma(z2) * gamma(1).powi(l.protons) / gamma(l.charge);
+            // x is already the activity of H+, so only the other reactants and the
+            // product carry activity coefficients here.
+            l.k_eff = l.k_form * gamma(z1) * gamma(z2) / gamma(l.charge);
         }
         for t in &mut self.terms {
             t.beta[0] = 1.0;
