@@ -341,3 +341,60 @@ fn site_rules_add_and_raise_but_never_lower() {
         .expect("site rule fires");
     assert!(matches!(hit.rule.origin, Origin::Site { .. }));
 }
+
+#[test]
+fn a_raising_site_rule_lifts_the_finding_in_a_check_and_says_so() {
+    use offgas::batch::Batch;
+    use offgas::check::{check, CheckOptions};
+    use offgas::report::Severity;
+    let cat = catalog();
+    let mut set = builtin();
+    set.extend(parse(&format!("{HEAD}  - id: stricter-bleach-organics\n    raises: hypochlorite-with-organics\n    meet: [[hypochlorite], [organic, flammable_liquid]]\n    severity: stop\n    message: Site policy.\n    caution: Separate.\n    basis: site EHS policy\n")).unwrap()).unwrap();
+    let carboy = Batch::parse(cat, "c.yaml", "name: c\ncapacity: 20 L\nvolume: 5 L\ncontents:\n  - ethanol: 1 % w/w\n  - sodium hydroxide: 0.01 mol/L\n").unwrap();
+    let stream = Batch::parse(
+        cat,
+        "s.yaml",
+        "name: s\nvolume: 1 L\ncontents:\n  - bleach: 20 mL\n",
+    )
+    .unwrap();
+    let th = offgas::embedded::thresholds().unwrap();
+    let plain = check(
+        cat,
+        &th,
+        &builtin(),
+        &carboy,
+        &stream,
+        &CheckOptions::default(),
+    )
+    .unwrap();
+    let f = plain
+        .findings
+        .iter()
+        .find(|f| f.code == "hypochlorite-with-organics")
+        .unwrap();
+    assert_eq!(f.severity, Severity::Review);
+    assert_eq!(plain.severity, Severity::Review);
+    let site = check(cat, &th, &set, &carboy, &stream, &CheckOptions::default()).unwrap();
+    let f = site
+        .findings
+        .iter()
+        .find(|f| f.code == "hypochlorite-with-organics")
+        .unwrap();
+    assert_eq!(f.severity, Severity::Stop);
+    assert!(
+        f.origin
+            .contains("raised by site rule stricter-bleach-organics"),
+        "{}",
+        f.origin
+    );
+    assert_eq!(site.severity, Severity::Stop);
+    // Findings the chemistry computed are all still there, none lowered.
+    for pf in &plain.findings {
+        let sf = site
+            .findings
+            .iter()
+            .find(|s| s.code == pf.code)
+            .expect("kept");
+        assert!(sf.severity >= pf.severity);
+    }
+}
