@@ -36,7 +36,68 @@ pub fn score(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> f64 {
     worst.max(overpressure_kpa(eq) / th.sealed_overpressure.review_kpa)
 }
 
-pub fn state_report(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> StateReport {
+/// Pressure in the headspace: what the liquid gives off, the warming of the air that was
+/// there, and the change of water's vapour pressure with temperature.
+pub struct HeadspacePressure {
+    /// kPa above atmospheric in a sealed vessel (0 for vented and open ones).
+    pub overpressure_kpa: f64,
+    /// Litres of gas at 1 atm that leave a vented or open vessel (0 for a sealed one).
+    pub vented_l: f64,
+    /// Share of the vented gas that is toxic, %.
+    pub vented_toxic_percent: f64,
+}
+
+/// Gases with a short-term level above this (ppm) are counted as asphyxiants rather than
+/// toxic in the vented share (CO2's is 30,000 ppm; the toxic gases' are below 100).
+const TOXIC_SHORT_TERM_BELOW_PPM: f64 = 5000.0;
+
+pub fn headspace_pressure(
+    cat: &Catalog,
+    eq: &Equilibrium,
+    start_temperature_k: f64,
+) -> HeadspacePressure {
+    let phys = &cat.physical;
+    let p_atm = phys.p_std;
+    let t_f = eq.temperature_k;
+    let t_s = start_temperature_k.min(t_f.max(start_temperature_k));
+    let pw_s = phys.water_vapour_pa(t_s);
+    let pw_f = phys.water_vapour_pa(t_f);
+    let thermal = (p_atm - pw_s) * (t_f / t_s - 1.0) + (pw_f - pw_s);
+    let gases = eq.total_gas_pressure_pa();
+    let toxic: f64 = eq
+        .gases
+        .iter()
+        .filter(|g| {
+            cat.judged_levels(&g.gas)
+                .is_none_or(|l| l.review_ppm < TOXIC_SHORT_TERM_BELOW_PPM)
+        })
+        .map(|g| g.partial_pressure_pa)
+        .sum();
+    let excess = (gases + thermal).max(0.0);
+    match eq.closure {
+        Closure::Sealed => HeadspacePressure {
+            overpressure_kpa: excess / 1e3,
+            vented_l: 0.0,
+            vented_toxic_percent: 0.0,
+        },
+        Closure::Vented | Closure::Open => HeadspacePressure {
+            overpressure_kpa: 0.0,
+            vented_l: excess * eq.headspace_l / p_atm,
+            vented_toxic_percent: if excess > 0.0 {
+                100.0 * toxic / excess
+            } else {
+                0.0
+            },
+        },
+    }
+}
+
+pub fn state_report(
+    cat: &Catalog,
+    th: &Thresholds,
+    eq: &Equilibrium,
+    heat: &crate::pour::HeatReport,
+) -> StateReport {
     let mut gases: Vec<GasReport> = eq
         .gases
         .iter()
@@ -73,7 +134,11 @@ pub fn state_report(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> StateRe
         rb.total_cmp(&ra)
             .then(b.headspace_ppm.total_cmp(&a.headspace_ppm))
     });
-    let over = overpressure_kpa(eq);
+    let pressure = headspace_pressure(
+        cat,
+        eq,
+        heat.start_temperature_c + cat.physical.kelvin_offset,
+    );
     let atm = cat.physical.p_std / 1e3;
     StateReport {
         ph: eq.ph,
@@ -81,8 +146,12 @@ pub fn state_report(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> StateRe
         ionic_strength: eq.ionic_strength,
         volume_l: eq.liquid_l,
         headspace_l: eq.headspace_l,
-        total_pressure_kpa: atm + over,
-        overpressure_kpa: eq.total_gas_pressure_pa() / 1e3,
+        total_pressure_kpa: atm + pressure.overpressure_kpa,
+        overpressure_kpa: pressure.overpressure_kpa,
+        gas_pressure_kpa: eq.total_gas_pressure_pa() / 1e3,
+        vented_gas_l: pressure.vented_l,
+        vented_toxic_percent: pressure.vented_toxic_percent,
+        heat: *heat,
         activity_model_exceeded: eq.activity_limited,
         gases,
     }
@@ -139,6 +208,7 @@ pub fn state_findings(
     worst: &StateReport,
     worst_fraction: f64,
     sealed: bool,
+    rated_pressure_kpa: Option<f64>,
 ) -> Vec<Finding> {
     let mut out = Vec::new();
     let mut names: Vec<&str> = end.gases.iter().map(|g| g.formula.as_str()).collect();
@@ -228,9 +298,20 @@ pub fn state_findings(
         } else {
             (end.overpressure_kpa, where_in_pour(1.0))
         };
-        let sev = if p >= op.stop_kpa {
+        let (stop, rating) = match rated_pressure_kpa {
+            Some(r) => (r, format!("the container's rating of {r} kPa")),
+            None => (
+                op.stop_kpa,
+                format!(
+                    "{} kPa for a container with no stated rating; {}",
+                    op.stop_kpa, op.basis
+                ),
+            ),
+        };
+        let review = op.review_kpa.min(stop);
+        let sev = if p >= stop {
             Severity::Stop
-        } else if p >= op.review_kpa {
+        } else if p >= review {
             Severity::Review
         } else {
             Severity::Clear
@@ -240,8 +321,7 @@ pub fn state_findings(
                 severity: sev,
                 code: "sealed-overpressure".into(),
                 message: format!(
-                    "The sealed vessel's gases add {p:.1} kPa above atmospheric {place} (review at {} kPa, stop at {} kPa; {}).",
-                    op.review_kpa, op.stop_kpa, op.basis
+                    "The sealed vessel reaches {p:.1} kPa above atmospheric {place}, from the gases the liquid gives off, the warming of the air and water vapour (review at {review} kPa; stop at {rating})."
                 ),
                 caution: "Do not cap a vessel that makes gas; use a vented cap or leave the mixture in a fume hood until it stops.".into(),
                 origin: "chemistry".into(),

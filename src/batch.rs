@@ -56,6 +56,10 @@ pub struct Batch {
     pub closure: Closure,
     pub density_g_per_ml: f64,
     pub density_given: bool,
+    /// Gauge pressure the container is rated for, kPa (containers only).
+    pub rated_pressure_kpa: Option<f64>,
+    /// Area of liquid open to the room when the container is open, m2.
+    pub surface_area_m2: Option<f64>,
     pub components: Vec<Component>,
 }
 
@@ -68,6 +72,8 @@ struct RawBatch {
     temperature: Option<serde_yaml::Value>,
     closure: Option<String>,
     density: Option<serde_yaml::Value>,
+    rated_pressure: Option<serde_yaml::Value>,
+    surface_area: Option<serde_yaml::Value>,
     #[serde(default)]
     contents: Vec<serde_yaml::Value>,
     #[serde(default)]
@@ -138,7 +144,7 @@ impl Batch {
             let line = e.location().map(|l| l.line());
             let msg = e.to_string();
             let fix = if msg.contains("unknown field") {
-                Some("the keys a batch file knows are: name, capacity, volume, temperature, closure, density, contents, note".into())
+                Some("the keys a batch file knows are: name, capacity, volume, temperature, closure, density, rated_pressure, surface_area, contents, note".into())
             } else {
                 Some("check the indentation and the `key: value` form; see data/demo/ for examples".into())
             };
@@ -217,6 +223,16 @@ impl Batch {
             None => (1.0, false),
         };
 
+        let rated_pressure_kpa = match &raw.rated_pressure {
+            Some(v) => {
+                Some(ctx.quantity("rated_pressure", v, crate::quantity::parse_pressure_kpa)?)
+            }
+            None => None,
+        };
+        let surface_area_m2 = match &raw.surface_area {
+            Some(v) => Some(ctx.quantity("surface_area", v, crate::quantity::parse_area_m2)?),
+            None => None,
+        };
         let mut batch = Batch {
             file: file.to_string(),
             name: raw.name.unwrap_or_else(|| file.to_string()),
@@ -227,6 +243,8 @@ impl Batch {
             closure,
             density_g_per_ml: density,
             density_given,
+            rated_pressure_kpa,
+            surface_area_m2,
             components: Vec::new(),
         };
         let contents_line = ctx.key_line("contents").unwrap_or(1);

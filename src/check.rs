@@ -7,6 +7,7 @@ use crate::chem::{solve, Closure, SolveError, SolverSettings};
 use crate::pairs::pair_table;
 use crate::pairs::Side;
 use crate::path::{scan, PathScan};
+use crate::pour::{BatchHeat, HeatReport, Pour};
 use crate::release::ReleaseReport;
 use crate::report::StateReport;
 use crate::report::{
@@ -20,6 +21,12 @@ use crate::thresholds::Thresholds;
 pub struct CheckOptions {
     /// Overrides the temperature of both batches (K).
     pub temperature_k: Option<f64>,
+    /// Room volume, m3 (default from the thresholds file).
+    pub room_volume_m3: Option<f64>,
+    /// Room air changes per hour (default from the thresholds file).
+    pub air_changes_per_hour: Option<f64>,
+    /// A spill of this area instead of the container's open surface, m2.
+    pub spill_area_m2: Option<f64>,
 }
 
 #[derive(Debug, thiserror::Error)]
@@ -81,15 +88,9 @@ pub fn check(
             error,
         }
     };
-    let forward = scan(cat, &a, &b, capacity, &s, &scorer)
-        .map_err(solve_err("pouring the stream into the container"))?;
-    // The other way: the stream stands in the vessel and the container's contents go in.
+    // Each batch alone: the pair table's donors and acceptors, and the heat balance's start.
     let mut b_in_vessel = b.clone();
     b_in_vessel.headspace_l = (capacity - b.liquid_l).max(0.0);
-    let backward = scan(cat, &b_in_vessel, &a, capacity, &s, &scorer)
-        .map_err(solve_err("pouring the container into the stream"))?;
-
-    // Each batch alone, for the pair table.
     let alone = |m: &crate::chem::Mixture, what: &str| {
         solve(cat, m, &s).map_err(|error| CheckError::Solve {
             what: format!("{what} on its own"),
@@ -98,6 +99,53 @@ pub fn check(
     };
     let eq_a = alone(&a, "the container")?;
     let eq_b = alone(&b_in_vessel, "the stream")?;
+    let heat_a = BatchHeat::of(cat, container);
+    let heat_b = BatchHeat::of(cat, stream);
+    let as_written = Pour {
+        cat,
+        settings: s,
+        vessel: &a,
+        stream: &b,
+        capacity_l: capacity,
+        vessel_heat: &heat_a,
+        stream_heat: &heat_b,
+        vessel_alone: &eq_a,
+        stream_alone: &eq_b,
+    };
+    // The other way: the stream stands in the vessel and the container's contents go in.
+    let other_way = Pour {
+        cat,
+        settings: s,
+        vessel: &b_in_vessel,
+        stream: &a,
+        capacity_l: capacity,
+        vessel_heat: &heat_b,
+        stream_heat: &heat_a,
+        vessel_alone: &eq_b,
+        stream_alone: &eq_a,
+    };
+    let forward = scan(
+        &|f| as_written.state(f).map(|x| x.0),
+        a.liquid_l <= 0.0,
+        &scorer,
+    )
+    .map_err(solve_err("pouring the stream into the container"))?;
+    let backward = scan(
+        &|f| other_way.state(f).map(|x| x.0),
+        b.liquid_l <= 0.0,
+        &scorer,
+    )
+    .map_err(solve_err("pouring the container into the stream"))?;
+    let heat_at = |p: &Pour, f: f64| {
+        p.state(f).map(|x| x.1).map_err(|error| CheckError::Solve {
+            what: format!("the heat balance {}", where_in_pour(f)),
+            error,
+        })
+    };
+    let end_heat = heat_at(&as_written, 1.0)?;
+    let worst_heat = heat_at(&as_written, forward.worst.fraction_added)?;
+    let other_heat = heat_at(&other_way, backward.worst.fraction_added)?;
+
     let pairs = pair_table(
         cat,
         &eq_a,
@@ -106,10 +154,17 @@ pub fn check(
         &th.proton_transfer,
     );
 
-    let end = state_report(cat, th, &forward.end.state);
-    let worst = state_report(cat, th, &forward.worst.state);
+    let end = state_report(cat, th, &forward.end.state, &end_heat);
+    let worst = state_report(cat, th, &forward.worst.state, &worst_heat);
     let sealed = container.closure == Closure::Sealed;
-    let mut findings = state_findings(th, &end, &worst, forward.worst.fraction_added, sealed);
+    let mut findings = state_findings(
+        th,
+        &end,
+        &worst,
+        forward.worst.fraction_added,
+        sealed,
+        container.rated_pressure_kpa,
+    );
     findings.extend(order_findings(th, &forward, &backward));
     let ctx = rule_context(container, stream, &forward);
     let components: Vec<(crate::catalog::SubstanceId, f64)> =
@@ -123,6 +178,18 @@ pub fn check(
         container.closure,
     );
     findings.extend(release_findings(th, &released));
+    findings.extend(heat_findings(
+        cat,
+        th,
+        container,
+        stream,
+        &end.heat,
+        &worst.heat,
+    ));
+    let room_settings = room_settings(th, container, capacity, opts);
+    let room_gases = crate::room::room_report(cat, &forward.end.state, &room_settings);
+    let exposed = opts.spill_area_m2.is_some() || container.closure != Closure::Sealed;
+    findings.extend(room_findings(&room_gases, &room_settings, exposed));
     findings.extend(rule_findings(cat, rules, &ctx, &end, &worst, &released));
     findings.extend(unruled_findings(cat, rules, container, stream));
     let inert = inert_names(cat, container, stream);
@@ -141,11 +208,11 @@ pub fn check(
     findings.sort_by_key(|f| std::cmp::Reverse(f.severity));
     let severity = Severity::verdict(&findings);
 
-    let order = |p: &PathScan, description: &str| OrderReport {
+    let order = |p: &PathScan, heat: &HeatReport, description: &str| OrderReport {
         description: description.into(),
         worst_state: WorstStateReport {
             fraction_added: p.worst.fraction_added,
-            state: state_report(cat, th, &p.worst.state),
+            state: state_report(cat, th, &p.worst.state, heat),
         },
         worst_limit_ratio: p.worst.score,
     };
@@ -160,13 +227,23 @@ pub fn check(
             fraction_added: forward.worst.fraction_added,
             state: worst,
         },
-        poured_as_written: order(&forward, "the stream poured into the container"),
+        poured_as_written: order(
+            &forward,
+            &worst_heat,
+            "the stream poured into the container",
+        ),
         poured_other_way: Some(order(
             &backward,
+            &other_heat,
             "the container's contents poured into the stream",
         )),
         pairs,
         stoichiometric_gases: released,
+        room: crate::report::RoomSection {
+            settings: room_settings,
+            open_surface_counts: exposed,
+            gases: room_gases,
+        },
         findings,
         inert_components: inert,
         assumptions: assumptions(container, stream, opts, th),
@@ -339,6 +416,198 @@ fn rule_findings(
                 );
             }
         }
+    }
+    out
+}
+
+fn room_settings(
+    th: &Thresholds,
+    container: &Batch,
+    capacity_l: f64,
+    opts: &CheckOptions,
+) -> crate::room::RoomSettings {
+    let (area, basis) = match (opts.spill_area_m2, container.surface_area_m2) {
+        (Some(a), _) => (a, format!("a spill of {a} m2 (--spill-area)")),
+        (None, Some(a)) => (
+            a,
+            format!("the container's open surface of {a} m2 (its file)"),
+        ),
+        (None, None) => {
+            let a = crate::room::surface_from_capacity(capacity_l);
+            (
+                a,
+                format!(
+                    "{a:.3} m2, the surface of a {capacity_l} L cylinder 1.5 times as tall as wide (the container file gives no surface_area)"
+                ),
+            )
+        }
+    };
+    crate::room::RoomSettings {
+        volume_m3: opts.room_volume_m3.unwrap_or(th.room.volume_m3),
+        air_changes_per_hour: opts
+            .air_changes_per_hour
+            .unwrap_or(th.room.air_changes_per_hour),
+        air_speed_m_per_s: th.room.air_speed_m_per_s,
+        surface_area_m2: area,
+        surface_basis: basis,
+    }
+}
+
+/// Findings on heat: the rise, the final temperature, and boiling components.
+fn heat_findings(
+    cat: &Catalog,
+    th: &Thresholds,
+    container: &Batch,
+    stream: &Batch,
+    end: &HeatReport,
+    worst: &HeatReport,
+) -> Vec<Finding> {
+    let h = &th.heat;
+    let hot = if worst.final_temperature_c > end.final_temperature_c {
+        worst
+    } else {
+        end
+    };
+    let mut out = Vec::new();
+    let push = |out: &mut Vec<Finding>, severity, code: &str, message: String, caution: &str| {
+        out.push(Finding {
+            severity,
+            code: code.into(),
+            message,
+            caution: caution.into(),
+            origin: "chemistry".into(),
+        })
+    };
+    let rise = hot.temperature_rise_k;
+    let level = |v: f64, review: f64, stop: f64| {
+        if v >= stop {
+            Severity::Stop
+        } else if v >= review {
+            Severity::Review
+        } else {
+            Severity::Clear
+        }
+    };
+    let sev = level(rise, h.review_rise_k, h.stop_rise_k)
+        .max(level(
+            hot.final_temperature_c,
+            h.review_final_c,
+            h.stop_final_c,
+        ))
+        .max(if hot.boils {
+            Severity::Stop
+        } else {
+            Severity::Clear
+        });
+    if sev > Severity::Clear {
+        push(
+            &mut out,
+            sev,
+            "mixture-heats-up",
+            format!(
+                "The pour releases {:.0} kJ ({:.0} kJ from proton transfers, {:.0} kJ from diluting concentrated reagents): the mixture goes from {:.1} °C to {:.1} °C{} (review at a rise of {} K or {} °C, stop at {} K or {} °C; {}).",
+                hot.reaction_heat_kj + hot.dilution_heat_kj,
+                hot.reaction_heat_kj,
+                hot.dilution_heat_kj,
+                hot.start_temperature_c,
+                hot.final_temperature_c,
+                if hot.boils { " and boils" } else { "" },
+                h.review_rise_k,
+                h.review_final_c,
+                h.stop_rise_k,
+                h.stop_final_c,
+                h.basis
+            ),
+            "Add slowly with stirring and cooling, in small portions, and let the container cool before it is capped.",
+        );
+    }
+    let mut seen = Vec::new();
+    for c in container.components.iter().chain(stream.components.iter()) {
+        let Some(bp) = cat.boiling_point_c(c.substance) else {
+            continue;
+        };
+        if seen.contains(&c.substance) {
+            continue;
+        }
+        seen.push(c.substance);
+        let t = hot.final_temperature_c;
+        let sev = if t >= bp {
+            Severity::Stop
+        } else if t >= bp - h.boiling_margin_k {
+            Severity::Review
+        } else {
+            continue;
+        };
+        push(
+            &mut out,
+            sev,
+            "near-boiling-point",
+            format!(
+                "The mixture reaches {t:.1} °C; {} boils at {bp} °C and comes off as vapour.",
+                cat.substance(c.substance).name
+            ),
+            "Cool the receiving container and add slowly; keep volatile solvents out of reactive pours.",
+        );
+    }
+    out
+}
+
+/// Findings on what a person in the room would breathe.
+fn room_findings(
+    gases: &[crate::room::RoomGasReport],
+    room: &crate::room::RoomSettings,
+    exposed: bool,
+) -> Vec<Finding> {
+    let mut out = Vec::new();
+    for g in gases {
+        if let Some(r) = g.worst_case_idlh_ratio.filter(|r| *r >= 1.0) {
+            out.push(Finding {
+                severity: Severity::Review,
+                code: "room-worst-case".into(),
+                message: format!(
+                    "If all the {} the mixture holds in volatile form ({:.3} mol) came out at once, a {} m3 room would reach {} ppm, {:.1} × its stop level.",
+                    g.formula,
+                    g.releasable_mol,
+                    room.volume_m3,
+                    crate::assess::fmt_ppm(g.worst_case_room_ppm).trim_end_matches(" ppm"),
+                    r
+                ),
+                caution: "Plan for a spill: keep the container in secondary containment in a ventilated place, and know the way out.".into(),
+                origin: "chemistry".into(),
+            });
+        }
+        let css_stop = g.steady_state_idlh_ratio.unwrap_or(0.0);
+        let css_review = g.steady_state_limit_ratio.unwrap_or(0.0);
+        let severity = if css_stop >= 1.0 {
+            Severity::Stop
+        } else if css_review >= 1.0 {
+            Severity::Review
+        } else {
+            continue;
+        };
+        let when = |m: Option<f64>| match m {
+            Some(m) => format!("after {m:.0} min"),
+            None => "never".into(),
+        };
+        out.push(Finding {
+            severity: if exposed { severity } else { Severity::Info },
+            code: "room-evaporation".into(),
+            message: format!(
+                "{} {} evaporates from {} at about {:.1} mg/min; with {} air changes per hour in {} m3 the room settles at {} ppm ({:.1} × its short-term level; short-term level reached {}, stop level {}).",
+                if exposed { "Open to the room," } else { "If the container is opened," },
+                g.formula,
+                room.surface_basis,
+                g.emission_mg_per_min,
+                room.air_changes_per_hour,
+                room.volume_m3,
+                crate::assess::fmt_ppm(g.steady_state_ppm).trim_end_matches(" ppm"),
+                css_review,
+                when(g.minutes_to_short_term),
+                when(g.minutes_to_idlh)
+            ),
+            caution: "Keep the container closed and in a fume hood or ventilated cabinet; the figures are a well-mixed room estimate, not a ventilation survey.".into(),
+            origin: "chemistry".into(),
+        });
     }
     out
 }

@@ -10,6 +10,8 @@ pub const LIMITS: &str = include_str!("../data/limits.yaml");
 pub const PHYSICAL: &str = include_str!("../data/physical.yaml");
 pub const COMBINED: &str = include_str!("../data/combined.yaml");
 pub const RELEASES: &str = include_str!("../data/gas-release.yaml");
+pub const HEAT: &str = include_str!("../data/heat.yaml");
+pub const BOILING: &str = include_str!("../data/boiling-points.yaml");
 pub const THRESHOLDS: &str = include_str!("../rules/thresholds.yaml");
 
 /// The built-in hazard rule files, by the name they carry in reports.
@@ -39,6 +41,8 @@ pub fn catalog() -> Result<Catalog, crate::catalog::CatalogError> {
         physical: ("data/physical.yaml", PHYSICAL),
         combined: ("data/combined.yaml", COMBINED),
         releases: ("data/gas-release.yaml", RELEASES),
+        heat: ("data/heat.yaml", HEAT),
+        boiling: ("data/boiling-points.yaml", BOILING),
     })
 }
 

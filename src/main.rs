@@ -49,6 +49,15 @@ enum Command {
         /// A folder of the site's own rule files, layered over the built-in rules.
         #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
         site_rules: Option<PathBuf>,
+        /// Volume of the room the container stands in, e.g. "40 m3" (default in rules/thresholds.yaml).
+        #[arg(long, value_name = "VOLUME")]
+        room: Option<String>,
+        /// Air changes per hour in that room (default in rules/thresholds.yaml).
+        #[arg(long, value_name = "N")]
+        air_changes: Option<f64>,
+        /// Judge a spill of this area (e.g. "1 m2") instead of the container's open surface.
+        #[arg(long, value_name = "AREA")]
+        spill_area: Option<String>,
     },
     /// The hazard rules: list those in force, or validate a folder of site rules.
     Rules {
@@ -106,6 +115,9 @@ fn main() -> ExitCode {
             thresholds,
             all_pairs,
             site_rules,
+            room,
+            air_changes,
+            spill_area,
         } => run_check(&CheckArgs {
             container,
             stream,
@@ -114,6 +126,9 @@ fn main() -> ExitCode {
             thresholds,
             all_pairs,
             site_rules,
+            room,
+            air_changes,
+            spill_area,
         }),
         Command::Rules { action } => match action {
             RulesAction::List { site_rules, format } => {
@@ -200,6 +215,9 @@ struct CheckArgs {
     thresholds: Option<PathBuf>,
     all_pairs: bool,
     site_rules: Option<PathBuf>,
+    room: Option<String>,
+    air_changes: Option<f64>,
+    spill_area: Option<String>,
 }
 
 /// `offgas check`: one pour, both orders, and the verdict as exit status.
@@ -220,9 +238,44 @@ fn run_check(args: &CheckArgs) -> Result<u8> {
             Some(k.0)
         }
     };
+    let room_volume_m3 = match &args.room {
+        None => None,
+        Some(v) => {
+            let m3 =
+                offgas::quantity::parse_room_volume_m3(v).map_err(|e| anyhow!("--room: {e}"))?;
+            if m3 <= 0.0 {
+                return Err(anyhow!("--room {v}: the room needs a volume above zero"));
+            }
+            Some(m3)
+        }
+    };
+    if let Some(n) = args.air_changes {
+        if !(n > 0.0 && n.is_finite()) {
+            return Err(anyhow!(
+                "--air-changes {n}: give the air changes per hour as a number above zero"
+            ));
+        }
+    }
+    let spill_area_m2 = match &args.spill_area {
+        None => None,
+        Some(a) => {
+            let m2 =
+                offgas::quantity::parse_area_m2(a).map_err(|e| anyhow!("--spill-area: {e}"))?;
+            if m2 <= 0.0 {
+                return Err(anyhow!("--spill-area {a}: the area must be above zero"));
+            }
+            Some(m2)
+        }
+    };
+    let options = CheckOptions {
+        temperature_k,
+        room_volume_m3,
+        air_changes_per_hour: args.air_changes,
+        spill_area_m2,
+    };
     let a = read_batch(&cat, &args.container)?;
     let b = read_batch(&cat, &args.stream)?;
-    let report = match check(&cat, &th, &rules, &a, &b, &CheckOptions { temperature_k }) {
+    let report = match check(&cat, &th, &rules, &a, &b, &options) {
         Ok(r) => r,
         Err(CheckError::Input(e)) => return Err(anyhow!("{e}")),
         Err(e @ CheckError::Solve { .. }) => return Err(anyhow!("{e}")),

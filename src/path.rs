@@ -3,8 +3,7 @@
 //! The scan is fine near both ends (the first drops and the last ones are where a small
 //! amount meets a large excess) and refined around the worst point found.
 
-use crate::catalog::Catalog;
-use crate::chem::{solve, Equilibrium, Mixture, SolveError, SolverSettings};
+use crate::chem::{Equilibrium, SolveError};
 
 /// Fractions of the stream added at which the vessel is solved before refinement.
 pub const SCAN: [f64; 33] = [
@@ -35,18 +34,15 @@ pub struct PathScan {
     pub temperature_max_k: f64,
 }
 
-/// Pours `stream` into `vessel` (of `capacity_l`) and finds the worst state by `score`.
+/// Follows a pour through `state_at(fraction added)` and finds the worst state by `score`.
+/// `starts_empty` says the vessel holds nothing before the first drop.
 pub fn scan(
-    cat: &Catalog,
-    vessel: &Mixture,
-    stream: &Mixture,
-    capacity_l: f64,
-    settings: &SolverSettings,
+    state_at: &dyn Fn(f64) -> Result<Equilibrium, SolveError>,
+    starts_empty: bool,
     score: &dyn Fn(&Equilibrium) -> f64,
 ) -> Result<PathScan, (f64, SolveError)> {
     let at = |f: f64| -> Result<PathState, (f64, SolveError)> {
-        let m = vessel.pour(stream, f, capacity_l);
-        let state = solve(cat, &m, settings).map_err(|e| (f, e))?;
+        let state = state_at(f).map_err(|e| (f, e))?;
         Ok(PathState {
             fraction_added: f,
             score: score(&state),
@@ -54,7 +50,7 @@ pub fn scan(
         })
     };
     // A vessel that starts empty has no state at "nothing added yet".
-    let start = if vessel.liquid_l > 0.0 { 0 } else { 1 };
+    let start = if starts_empty { 1 } else { 0 };
     let mut states = Vec::with_capacity(SCAN.len() + REFINE_STEPS);
     for &f in &SCAN[start..] {
         states.push(at(f)?);

@@ -66,6 +66,77 @@ const AMOUNT_UNITS: &str =
     "mol/L, mmol/L, M, mM, g/L, mg/L, % w/w, % w/v, % v/v, mL/L, mol, mmol, g, kg, mg, L, mL";
 const VOLUME_UNITS: &str = "L, mL, m3";
 const TEMPERATURE_UNITS: &str = "°C, C, K, °F";
+const PRESSURE_UNITS: &str = "kPa, Pa, bar, mbar, psi, atm";
+const AREA_UNITS: &str = "m2, cm2, ft2";
+
+/// Parses a gauge pressure ("30 kPa", "0.3 bar", "5 psi") into kPa.
+pub fn parse_pressure_kpa(text: &str) -> Result<f64, QuantityError> {
+    const EXAMPLE: &str = "30 kPa";
+    let (v, unit) = split_number(text, EXAMPLE)?;
+    if unit.is_empty() {
+        return Err(QuantityError::NoUnit {
+            text: text.to_string(),
+            example: EXAMPLE,
+        });
+    }
+    if v < 0.0 {
+        return Err(QuantityError::Negative(text.to_string()));
+    }
+    let kpa = match unit.to_lowercase().as_str() {
+        "kpa" => v,
+        "pa" => v / 1e3,
+        "bar" => v * 100.0,
+        "mbar" => v / 10.0,
+        "psi" | "psig" => v * 6.894757,
+        "atm" => v * 101.325,
+        _ => {
+            return Err(QuantityError::UnknownUnit {
+                text: text.to_string(),
+                unit,
+                known: PRESSURE_UNITS,
+            })
+        }
+    };
+    Ok(kpa)
+}
+
+/// Parses an area ("0.05 m2", "400 cm2") into m2.
+pub fn parse_area_m2(text: &str) -> Result<f64, QuantityError> {
+    const EXAMPLE: &str = "0.5 m2";
+    let (v, unit) = split_number(text, EXAMPLE)?;
+    if unit.is_empty() {
+        return Err(QuantityError::NoUnit {
+            text: text.to_string(),
+            example: EXAMPLE,
+        });
+    }
+    if v < 0.0 {
+        return Err(QuantityError::Negative(text.to_string()));
+    }
+    let m2 = match unit.as_str() {
+        "m2" | "m²" | "m^2" => v,
+        "cm2" | "cm²" | "cm^2" => v / 1e4,
+        "ft2" | "ft²" | "ft^2" => v * 0.09290304,
+        _ => {
+            return Err(QuantityError::UnknownUnit {
+                text: text.to_string(),
+                unit,
+                known: AREA_UNITS,
+            })
+        }
+    };
+    Ok(m2)
+}
+
+/// Parses a room volume ("50 m3", "2000 L") into m3.
+pub fn parse_room_volume_m3(text: &str) -> Result<f64, QuantityError> {
+    let t = text.trim();
+    let (v, unit) = split_number(t, "50 m3")?;
+    match unit.as_str() {
+        "m3" | "m³" | "m^3" => Ok(v),
+        _ => parse_volume(t).map(|l| l.0 / 1e3),
+    }
+}
 
 /// Splits "0.1 mol/L" into (0.1, "mol/L"); the unit has its inner spaces removed.
 fn split_number(text: &str, example: &'static str) -> Result<(f64, String), QuantityError> {

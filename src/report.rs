@@ -88,9 +88,17 @@ pub struct StateReport {
     pub headspace_l: f64,
     /// Absolute pressure in the headspace.
     pub total_pressure_kpa: f64,
-    /// Sum of the partial pressures of the gases the liquid gives off; for a sealed vessel,
-    /// the pressure above atmospheric.
+    /// Pressure above atmospheric in a sealed vessel: the gases the liquid gives off, the
+    /// warming of the air, and water vapour (0 for vented and open vessels).
     pub overpressure_kpa: f64,
+    /// Sum of the partial pressures of the gases the liquid gives off.
+    pub gas_pressure_kpa: f64,
+    /// Vented and open vessels: litres of gas at 1 atm that leave.
+    pub vented_gas_l: f64,
+    /// Share of the vented gas that is toxic, %.
+    pub vented_toxic_percent: f64,
+    /// Heat of the pour up to this state and the temperature it reaches.
+    pub heat: crate::pour::HeatReport,
     pub activity_model_exceeded: bool,
     pub gases: Vec<GasReport>,
 }
@@ -131,6 +139,15 @@ pub struct OrderReport {
     pub worst_limit_ratio: f64,
 }
 
+/// What a person in the room would breathe.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RoomSection {
+    pub settings: crate::room::RoomSettings,
+    /// True when the liquid is open to the room (open or vented container, or a spill).
+    pub open_surface_counts: bool,
+    pub gases: Vec<crate::room::RoomGasReport>,
+}
+
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct CheckReport {
     pub tool: &'static str,
@@ -145,6 +162,7 @@ pub struct CheckReport {
     pub pairs: Vec<Pair>,
     /// Gas released by stoichiometry (hydrogen from metals and hydrides).
     pub stoichiometric_gases: Vec<crate::release::ReleaseReport>,
+    pub room: RoomSection,
     pub findings: Vec<Finding>,
     pub inert_components: Vec<String>,
     pub assumptions: Vec<String>,

@@ -15,6 +15,8 @@ pub struct Thresholds {
     pub proton_transfer: ProtonTransfer,
     pub mixing_path: MixingPath,
     pub flammable_gas: FlammableGas,
+    pub heat: HeatThresholds,
+    pub room: RoomDefaults,
     pub cautions: Vec<String>,
 }
 
@@ -55,6 +57,26 @@ pub struct ProtonTransfer {
 
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
+pub struct HeatThresholds {
+    pub review_rise_k: f64,
+    pub stop_rise_k: f64,
+    pub review_final_c: f64,
+    pub stop_final_c: f64,
+    pub boiling_margin_k: f64,
+    pub basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RoomDefaults {
+    pub volume_m3: f64,
+    pub air_changes_per_hour: f64,
+    pub air_speed_m_per_s: f64,
+    pub basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
 pub struct FlammableGas {
     /// Review when the headspace reaches this fraction of the lower flammable limit.
     pub review_fraction_of_lfl: f64,
@@ -88,7 +110,14 @@ impl Thresholds {
             && t.proton_transfer.complete_above_log_k > t.proton_transfer.negligible_below_log_k
             && t.mixing_path.safer_order_factor >= 1.0
             && t.flammable_gas.review_fraction_of_lfl > 0.0
-            && t.flammable_gas.stop_fraction_of_lfl >= t.flammable_gas.review_fraction_of_lfl;
+            && t.flammable_gas.stop_fraction_of_lfl >= t.flammable_gas.review_fraction_of_lfl
+            && t.heat.stop_rise_k >= t.heat.review_rise_k
+            && t.heat.review_rise_k > 0.0
+            && t.heat.stop_final_c >= t.heat.review_final_c
+            && t.heat.boiling_margin_k >= 0.0
+            && t.room.volume_m3 > 0.0
+            && t.room.air_changes_per_hour > 0.0
+            && t.room.air_speed_m_per_s > 0.0;
         if !ok {
             return Err(format!(
                 "{file}: thresholds must be positive, stop levels at or above review levels, and the safer-order factor at least 1"

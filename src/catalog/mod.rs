@@ -5,6 +5,7 @@
 //! engine can index without checking again. It never reads files itself.
 
 pub mod combined;
+pub mod heat;
 pub mod limits;
 pub mod physical;
 pub mod species;
@@ -34,6 +35,8 @@ pub struct DataSources<'a> {
     pub physical: (&'a str, &'a str),
     pub combined: (&'a str, &'a str),
     pub releases: (&'a str, &'a str),
+    pub heat: (&'a str, &'a str),
+    pub boiling: (&'a str, &'a str),
 }
 
 /// A commercial solution: one millilitre holds `solute_mol_per_ml` of the solute.
@@ -130,6 +133,14 @@ pub struct Catalog {
     pub combined: Vec<CombinedSpecies>,
     /// Stoichiometric gas releases (hydrogen from metals and hydrides).
     pub releases: Vec<(SubstanceId, Release)>,
+    /// kJ per mol of solute released (negative) or taken up on dilution to infinity.
+    pub dissolution: Vec<(SubstanceId, f64)>,
+    /// Boiling points, °C.
+    pub boiling: Vec<(SubstanceId, f64)>,
+    /// J/(g K) of the mixed liquid (water's).
+    pub heat_capacity: f64,
+    /// kJ/mol for H+ + OH- → H2O, as the heat data file states it (a check on water's dh).
+    pub neutralization_kj: f64,
     pub water: FamilyId,
     family_index: HashMap<String, FamilyId>,
     ion_index: HashMap<String, IonId>,
@@ -161,6 +172,8 @@ impl Catalog {
         let physical: physical::PhysicalFile = parse(src.physical)?;
         let combined: combined::CombinedFile = parse(src.combined)?;
         let releases: ReleasesFile = parse(src.releases)?;
+        let heat_file: heat::HeatFile = parse(src.heat)?;
+        let boiling_file: heat::BoilingFile = parse(src.boiling)?;
         let bad = |file: &str, message: String| CatalogError::Invalid {
             file: file.to_string(),
             message,
@@ -406,6 +419,45 @@ impl Catalog {
             resolved_releases.push((sid, r));
         }
 
+        let lookup = |file: &str, name: &str| {
+            substance_index
+                .get(&normalize_name(name))
+                .copied()
+                .ok_or_else(|| bad(file, format!("unknown substance `{name}`")))
+        };
+        let mut dissolution = Vec::new();
+        for d in &heat_file.dissolution {
+            let v = d.dh_to_infinite_dilution_kj_per_mol;
+            if !v.is_finite() || d.source.trim().is_empty() {
+                return Err(bad(
+                    src.heat.0,
+                    format!("`{}`: heat must be finite with a source", d.substance),
+                ));
+            }
+            // The speciation's proton-transfer heat already counts these steps.
+            let mut counted = 0.0;
+            for sr in &d.weak_steps_included {
+                let step = family_index
+                    .get(&sr.family)
+                    .and_then(|f| species.families[f.0].steps.get(sr.step))
+                    .ok_or_else(|| {
+                        bad(
+                            src.heat.0,
+                            format!(
+                                "`{}`: no step {} in family `{}`",
+                                d.substance, sr.step, sr.family
+                            ),
+                        )
+                    })?;
+                counted += step.dh;
+            }
+            dissolution.push((lookup(src.heat.0, &d.substance)?, v - counted));
+        }
+        let mut boiling = Vec::new();
+        for b in &boiling_file.boiling_points {
+            boiling.push((lookup(src.boiling.0, &b.substance)?, b.celsius));
+        }
+
         let mut gas_index = HashMap::new();
         for (i, g) in limits.gases.iter().enumerate() {
             gas_index.insert(g.gas.clone(), i);
@@ -420,12 +472,30 @@ impl Catalog {
             physical: physical.into(),
             combined: linked,
             releases: resolved_releases,
+            dissolution,
+            boiling,
+            heat_capacity: heat_file.heat_capacity.value,
+            neutralization_kj: heat_file.neutralization.value,
             water,
             family_index,
             ion_index,
             substance_index,
             gas_index,
         })
+    }
+
+    /// kJ per mol of solute on dilution to infinity, for concentrated reagents.
+    pub fn dissolution_heat(&self, id: SubstanceId) -> Option<f64> {
+        self.dissolution
+            .iter()
+            .find(|(s, _)| *s == id)
+            .map(|(_, v)| *v)
+    }
+    pub fn water_heat_capacity(&self) -> f64 {
+        self.heat_capacity
+    }
+    pub fn boiling_point_c(&self, id: SubstanceId) -> Option<f64> {
+        self.boiling.iter().find(|(s, _)| *s == id).map(|(_, v)| *v)
     }
 
     pub fn family(&self, id: FamilyId) -> &Family {

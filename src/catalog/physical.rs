@@ -6,6 +6,24 @@ use serde::Deserialize;
 pub struct PhysicalFile {
     pub constants: Constants,
     pub davies: DaviesData,
+    pub water_vapour: Antoine,
+    pub evaporation: Evaporation,
+}
+
+/// The evaporation-rate correlation, in the units of its source (see physical.yaml).
+#[derive(Debug, Clone, Copy, Deserialize)]
+pub struct Evaporation {
+    pub coefficient: f64,
+    pub wind_exponent: f64,
+    pub mw_exponent: f64,
+}
+
+/// log10(p / mmHg) = a − b / (c + t/°C).
+#[derive(Debug, Clone, Copy, Deserialize)]
+pub struct Antoine {
+    pub a: f64,
+    pub b: f64,
+    pub c: f64,
 }
 
 #[derive(Debug, Clone, Copy, Deserialize)]
@@ -58,6 +76,8 @@ pub struct Physical {
     a_prefactor: f64,
     eps: Permittivity,
     rho: Density,
+    vapour: Antoine,
+    pub evaporation: Evaporation,
 }
 
 impl From<PhysicalFile> for Physical {
@@ -71,11 +91,38 @@ impl From<PhysicalFile> for Physical {
             a_prefactor: f.davies.a_prefactor.value,
             eps: f.davies.permittivity,
             rho: f.davies.density,
+            vapour: f.water_vapour,
+            evaporation: f.evaporation,
         }
     }
 }
 
 impl Physical {
+    /// Evaporation rate, kg/s, of a species of molar mass `mw` (g/mol) with partial
+    /// pressure `p_pa` over `area_m2` of liquid at `t_k`, in air moving at `u` m/s.
+    pub fn evaporation_kg_per_s(&self, mw: f64, p_pa: f64, area_m2: f64, t_k: f64, u: f64) -> f64 {
+        // Unit conversions of the customary form: lb → kg, min → s, m2 → ft2, Pa → mmHg.
+        const KG_PER_LB: f64 = 0.45359237;
+        const FT2_PER_M2: f64 = 1.0 / 0.09290304;
+        let mmhg = p_pa * 760.0 / self.p_std;
+        let e = self.evaporation;
+        let lb_per_min = e.coefficient
+            * u.powf(e.wind_exponent)
+            * mw.powf(e.mw_exponent)
+            * (area_m2 * FT2_PER_M2)
+            * mmhg
+            / (82.05 * t_k);
+        lb_per_min * KG_PER_LB / 60.0
+    }
+
+    /// Vapour pressure of water at `t_k`, Pa.
+    pub fn water_vapour_pa(&self, t_k: f64) -> f64 {
+        let t = t_k - self.kelvin_offset;
+        let v = self.vapour;
+        // 760 mmHg make one standard atmosphere, by definition.
+        10f64.powf(v.a - v.b / (v.c + t)) * self.p_std / 760.0
+    }
+
     /// Debye–Hückel A at temperature `t_k` (about 0.51 at 25 °C).
     pub fn debye_huckel_a(&self, t_k: f64) -> f64 {
         let t = t_k - self.kelvin_offset;

@@ -66,6 +66,8 @@ pub struct FamilyState {
 /// A species formed from two families.
 #[derive(Debug, Clone, PartialEq)]
 pub struct CombinedState {
+    /// Index into the catalog's combined species.
+    pub catalog_index: usize,
     pub formula: String,
     pub parents: (FamilyId, FamilyId),
     /// mol/L in the liquid.
@@ -601,6 +603,7 @@ fn assemble(
             });
         }
         combined.push(CombinedState {
+            catalog_index: l.catalog_index,
             formula: c.data.formula.clone(),
             parents: (c.first.0, c.second.0),
             concentration: c_aq,
