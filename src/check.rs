@@ -760,7 +760,8 @@ fn assumptions(
             th.activity_model.max_ionic_strength
         ),
         "Constants adjusted to the mixture temperature by the van 't Hoff equation with each step's ionization enthalpy; Kw from its temperature equation.".to_string(),
-        "Heat of mixing is not yet counted: the mixture is taken at the volume-weighted mean of the two temperatures.".to_string(),
+        "Heat: proton transfers by Hess's law from each step's ionization enthalpy (25 °C values, no heat-capacity change), plus the heat of diluting concentrated reagents (a tenth or more of their batch by mass) to infinite dilution, in proportion to how far their share falls; the mixture warms as water does (4.18 J/(g K)), starting from the volume-weighted mean of the two temperatures, and is re-solved at the temperature it reaches.".to_string(),
+        "Pressure in a sealed vessel: the gases the liquid gives off, plus the warming of the air sealed in at the start and the change of water's vapour pressure; vented and open vessels hold no pressure and the report gives the litres vented.".to_string(),
         "Metal cyanide and other metal complexes are not modelled; cyanide is counted as free, which overstates HCN.".to_string(),
         "The other order of pouring is computed in the same vessel with the same closure.".to_string(),
     ];
@@ -785,6 +786,10 @@ fn assumptions(
             ));
         }
     }
+    out.push(format!(
+        "Room: a well-mixed room ({} m3, {} air changes per hour unless --room and --air-changes say otherwise; {}); evaporation from the open surface by the EPA RMP equation D-1 with the gas's partial pressure over the liquid, at a constant rate (no depletion), which overstates what a dilute solution gives off; the worst case spreads everything the mixture holds in volatile form through the room at once.",
+        th.room.volume_m3, th.room.air_changes_per_hour, th.room.basis
+    ));
     match container.closure {
         Closure::Sealed => {}
         Closure::Vented => out.push("Vented container: gas above atmospheric pressure leaves through the vent, so no overpressure builds; the headspace figures are those just above the liquid.".into()),

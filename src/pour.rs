@@ -10,6 +10,10 @@ use serde::Serialize;
 /// Highest temperature the aqueous model is solved at; above it the mixture boils.
 const BOILING_K: f64 = 373.15;
 
+/// A reagent below this mass share of its batch is already dilute: the rest of its heat of
+/// dilution is small (a few kJ/mol at most) and is not counted.
+const CONCENTRATED_SHARE: f64 = 0.1;
+
 /// A batch as the heat balance sees it.
 #[derive(Debug, Clone)]
 pub struct BatchHeat {
@@ -93,8 +97,9 @@ impl Pour<'_> {
     }
 
     /// Heat of dilution (kJ) when the stream's fraction `f` joins the vessel: each
-    /// concentrated component releases its heat to infinite dilution in proportion to
-    /// how far its mass share falls (a linear stand-in for the integral heat curve).
+    /// concentrated component (at least a tenth of its batch by mass) releases its heat to
+    /// infinite dilution in proportion to how far its mass share falls (a linear stand-in
+    /// for the integral heat curve).
     fn dilution_kj(&self, f: f64) -> f64 {
         let total = self.vessel_heat.mass_g + f * self.stream_heat.mass_g;
         if total <= 0.0 {
@@ -108,6 +113,9 @@ impl Pour<'_> {
             for &(sid, moles, mass) in &heat.diluting {
                 let dh = self.cat.dissolution_heat(sid).unwrap_or(0.0);
                 let before = (mass / heat.mass_g).min(1.0);
+                if before < CONCENTRATED_SHARE {
+                    continue;
+                }
                 let after = (mass * scale / total).min(1.0);
                 q += -dh * moles * scale * (before - after).max(0.0);
             }

@@ -230,6 +230,8 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     }
     let _ = writeln!(out, "{t}");
 
+    out.push_str(&heat_and_room_text(r));
+
     let pairs: Vec<&Pair> = if v.all_pairs {
         r.pairs.iter().collect()
     } else {
@@ -280,6 +282,94 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     for c in &r.cautions {
         let _ = writeln!(out, "  - {c}");
     }
+    out
+}
+
+/// Heat, pressure, hydrogen and the room, as plain lines and one table.
+fn heat_and_room_text(r: &CheckReport) -> String {
+    let mut out = String::new();
+    let h = &r.end_state.heat;
+    let _ = writeln!(out, "\nHeat and pressure");
+    let _ = writeln!(
+        out,
+        "  The pour releases {:.1} kJ ({:.1} from proton transfers, {:.1} from dilution): {:.1} °C → {:.1} °C{}.",
+        h.reaction_heat_kj + h.dilution_heat_kj,
+        h.reaction_heat_kj,
+        h.dilution_heat_kj,
+        h.start_temperature_c,
+        h.final_temperature_c,
+        if h.boils { ", and it boils" } else { "" }
+    );
+    let e = &r.end_state;
+    if e.vented_gas_l > 0.0 || e.overpressure_kpa == 0.0 {
+        let _ = writeln!(
+            out,
+            "  No pressure builds (vented or open): {:.2} L of gas leaves at 1 atm, {:.0} % of it toxic.",
+            e.vented_gas_l, e.vented_toxic_percent
+        );
+    } else {
+        let _ = writeln!(
+            out,
+            "  Sealed: {:.1} kPa above atmospheric at the end ({:.1} kPa of it from the gases the liquid gives off).",
+            e.overpressure_kpa, e.gas_pressure_kpa
+        );
+    }
+    for g in &r.stoichiometric_gases {
+        let _ = writeln!(
+            out,
+            "  {}: {:.3} mol ({:.2} L at 1 atm), {:.1} % of the headspace{}.",
+            g.formula,
+            g.moles,
+            g.litres_at_1_atm,
+            g.headspace_percent,
+            g.lfl_percent
+                .map(|l| format!(", lower flammable limit {l} %"))
+                .unwrap_or_default()
+        );
+    }
+    let room = &r.room;
+    let _ = writeln!(
+        out,
+        "\nRoom ({} m3, {} air changes per hour; open surface: {}{})",
+        room.settings.volume_m3,
+        room.settings.air_changes_per_hour,
+        room.settings.surface_basis,
+        if room.open_surface_counts {
+            ""
+        } else {
+            "; the container is sealed, so these apply if it is opened"
+        }
+    );
+    if room.gases.is_empty() {
+        let _ = writeln!(out, "  Nothing volatile to release.");
+        return out;
+    }
+    let mut t = table();
+    t.set_header(vec![
+        "gas",
+        "all of it in the room, ppm",
+        "vs stop level",
+        "evaporation mg/min",
+        "steady state, ppm",
+        "short-term level after",
+        "stop level after",
+    ]);
+    let minutes = |m: Option<f64>| {
+        m.map(|m| format!("{m:.0} min"))
+            .unwrap_or_else(|| "never".into())
+    };
+    for g in &room.gases {
+        t.add_row(vec![
+            g.formula.clone(),
+            fmt_ppm(g.worst_case_room_ppm),
+            fmt_ratio(g.worst_case_idlh_ratio),
+            format!("{:.3}", g.emission_mg_per_min),
+            fmt_ppm(g.steady_state_ppm),
+            minutes(g.minutes_to_short_term),
+            minutes(g.minutes_to_idlh),
+        ]);
+    }
+    let _ = writeln!(out, "{t}");
     out
 }
 
@@ -366,6 +456,11 @@ pub fn check_markdown(r: &CheckReport, v: View) -> String {
             &o.worst_state.state,
         );
     }
+    let _ = writeln!(
+        out,
+        "\n## Heat, pressure and the room\n\n```{}```",
+        heat_and_room_text(r)
+    );
     let pairs: Vec<&Pair> = if v.all_pairs {
         r.pairs.iter().collect()
     } else {

@@ -109,6 +109,10 @@ pub fn room_report(cat: &Catalog, eq: &Equilibrium, r: &RoomSettings) -> Vec<Roo
         }
         let levels = cat.judged_levels(&g.gas);
         let worst_ppm = releasable * cat.physical.r * t_k / cat.physical.p_std / r.volume_m3 * 1e6;
+        if worst_ppm < 1e-6 {
+            // Below anything a report shows; the headspace tables apply the same floor.
+            continue;
+        }
         let emission = cat.physical.evaporation_kg_per_s(
             mw,
             g.partial_pressure_pa,
