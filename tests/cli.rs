@@ -160,7 +160,14 @@ fn temperature_option_is_used_and_range_checked() {
     .unwrap();
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     // Both batches start at 35 °C; the pour's own heat may warm the end a little.
-    assert!((v["end_state"]["heat"]["start_temperature_c"].as_f64().unwrap() - 35.0).abs() < 1e-6);
+    assert!(
+        (v["end_state"]["heat"]["start_temperature_c"]
+            .as_f64()
+            .unwrap()
+            - 35.0)
+            .abs()
+            < 1e-6
+    );
     let end_t = v["end_state"]["temperature_c"].as_f64().unwrap();
     assert!((35.0..36.0).contains(&end_t), "{end_t}");
     check(
