@@ -328,8 +328,19 @@ pub fn state_findings(
             });
         }
     }
-    if end.activity_model_exceeded || worst.activity_model_exceeded {
-        let i = end.ionic_strength.max(worst.ionic_strength);
+    // The figures past the activity model's range matter where they decide something: the
+    // end state, and the worst state when its gas reaches a level of concern. (A strong
+    // heel at the first drop is outside the model, but nothing is judged on it.)
+    let worst_matters = worst
+        .gases
+        .iter()
+        .any(|g| gas_severity(th, g) >= Severity::Review);
+    if end.activity_model_exceeded || (worst.activity_model_exceeded && worst_matters) {
+        let i = if end.activity_model_exceeded {
+            end.ionic_strength
+        } else {
+            worst.ionic_strength
+        };
         out.push(Finding {
             severity: Severity::Review,
             code: "outside-activity-model".into(),

@@ -7,6 +7,10 @@ use offgas::check::{check, CheckOptions};
 use serde::Deserialize;
 
 const SCENARIO: &str = include_str!("../data/demo/scenario.yaml");
+const PROCEDURE: (&str, &str) = (
+    "data/demo/procedure-descale-tank.yaml",
+    include_str!("../data/demo/procedure-descale-tank.yaml"),
+);
 
 /// The demo's batch files, embedded so that `offgas demo` runs from anywhere.
 const FILES: &[(&str, &str)] = &[
@@ -119,8 +123,40 @@ pub fn run(format: Format) -> Result<u8> {
             }
         }
     }
-    if matches!(format, Format::Json) {
-        out = serde_json::to_string_pretty(&json_reports)? + "\n";
+    // The procedure: an unsafe step, and the computed fix that makes it clear.
+    let procedure = offgas::procedure::Procedure::parse(&cat, PROCEDURE.0, PROCEDURE.1)
+        .map_err(|e| anyhow!("{e}"))?;
+    let engine = offgas::procedure::run::Engine {
+        cat: &cat,
+        th: &th,
+        rules: &rules,
+    };
+    let mut sheet = engine.run(&procedure).map_err(|e| anyhow!("{e}"))?;
+    sheet.fixes = offgas::procedure::fix::fixes(&engine, &procedure, &sheet);
+    let fixed = sheet
+        .fixes
+        .iter()
+        .any(|f| f.procedure_severity_with_fix == offgas::report::Severity::Clear);
+    if sheet.severity != offgas::report::Severity::Stop || !fixed {
+        surprises
+            .push("the demo procedure should stop, with a computed fix that makes it clear".into());
+    }
+    match format {
+        Format::Json => {
+            out = serde_json::to_string_pretty(&serde_json::json!({
+                "checks": json_reports,
+                "procedure": sheet,
+            }))? + "\n";
+        }
+        _ => {
+            out.push_str(&format!(
+                "\n{}\nDemo procedure: {} (`offgas procedure {}`; add --format html for the printable sheet)\n\n",
+                "=".repeat(78),
+                sheet.name,
+                PROCEDURE.0
+            ));
+            out.push_str(&offgas::sheet::procedure_table(&sheet));
+        }
     }
     crate::print(&out)?;
     if !surprises.is_empty() {

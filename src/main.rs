@@ -59,6 +59,25 @@ enum Command {
         #[arg(long, value_name = "AREA")]
         spill_area: Option<String>,
     },
+    /// Check a cleaning or decontamination procedure step by step and print its approval sheet.
+    Procedure {
+        /// The procedure file (YAML): the vessel and its steps.
+        file: PathBuf,
+        #[arg(long, value_enum, default_value_t = SheetFormat::Table)]
+        format: SheetFormat,
+        /// Write the sheet to this file instead of the terminal (never overwrites without --force).
+        #[arg(long, value_name = "FILE")]
+        output: Option<PathBuf>,
+        /// Allow --output to replace an existing file.
+        #[arg(long)]
+        force: bool,
+        /// A folder of the site's own rule files, layered over the built-in rules.
+        #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
+        site_rules: Option<PathBuf>,
+        /// A thresholds file to use instead of the bundled rules/thresholds.yaml.
+        #[arg(long, value_name = "FILE")]
+        thresholds: Option<PathBuf>,
+    },
     /// The hazard rules: list those in force, or validate a folder of site rules.
     Rules {
         #[command(subcommand)]
@@ -99,6 +118,14 @@ enum Format {
 }
 
 #[derive(Clone, Copy, ValueEnum)]
+enum SheetFormat {
+    Table,
+    Markdown,
+    Html,
+    Json,
+}
+
+#[derive(Clone, Copy, ValueEnum)]
 enum LookupFormat {
     Text,
     Json,
@@ -130,6 +157,21 @@ fn main() -> ExitCode {
             air_changes,
             spill_area,
         }),
+        Command::Procedure {
+            file,
+            format,
+            output,
+            force,
+            site_rules,
+            thresholds,
+        } => run_procedure(
+            &file,
+            format,
+            output.as_deref(),
+            force,
+            site_rules.as_deref(),
+            thresholds.as_deref(),
+        ),
         Command::Rules { action } => match action {
             RulesAction::List { site_rules, format } => {
                 rules_cmd::list(site_rules.as_deref(), matches!(format, LookupFormat::Json))
@@ -281,6 +323,56 @@ fn run_check(args: &CheckArgs) -> Result<u8> {
         Err(e @ CheckError::Solve { .. }) => return Err(anyhow!("{e}")),
     };
     print(&render(&report, args.format, args.all_pairs)?)?;
+    Ok(exit_status(report.severity))
+}
+
+/// `offgas procedure`: every step checked against what the vessel holds, fixes computed for
+/// the first step that is not clear, and the approval sheet.
+fn run_procedure(
+    file: &Path,
+    format: SheetFormat,
+    output: Option<&Path>,
+    force: bool,
+    site_rules: Option<&Path>,
+    thresholds: Option<&Path>,
+) -> Result<u8> {
+    use offgas::procedure::{fix::fixes, run::Engine, Procedure};
+    let cat = load_catalog()?;
+    let th = load_thresholds(thresholds)?;
+    let rules = rules_cmd::load(&cat, site_rules)?;
+    if let Some(out) = output {
+        if out.exists() && !force {
+            return Err(anyhow!(
+                "{} already exists; offgas does not overwrite it unless you add --force",
+                out.display()
+            ));
+        }
+    }
+    let text = std::fs::read_to_string(file)
+        .with_context(|| format!("cannot read {}: check the path", file.display()))?;
+    let procedure =
+        Procedure::parse(&cat, &file.display().to_string(), &text).map_err(|e| anyhow!("{e}"))?;
+    let engine = Engine {
+        cat: &cat,
+        th: &th,
+        rules: &rules,
+    };
+    let mut report = engine.run(&procedure).map_err(|e| anyhow!("{e}"))?;
+    report.fixes = fixes(&engine, &procedure, &report);
+    let sheet = match format {
+        SheetFormat::Table => offgas::sheet::procedure_table(&report),
+        SheetFormat::Markdown => offgas::sheet::procedure_markdown(&report),
+        SheetFormat::Html => offgas::sheet::procedure_html(&report),
+        SheetFormat::Json => serde_json::to_string_pretty(&report)? + "\n",
+    };
+    match output {
+        Some(out) => {
+            std::fs::write(out, sheet)
+                .with_context(|| format!("cannot write {}", out.display()))?;
+            eprintln!("offgas: wrote the approval sheet to {}", out.display());
+        }
+        None => print(&sheet)?,
+    }
     Ok(exit_status(report.severity))
 }
 

@@ -433,3 +433,75 @@ fn a_site_rule_that_would_lower_a_severity_stops_the_run() {
         .code(1)
         .stderr(predicate::str::contains("may only raise"));
 }
+
+#[test]
+fn procedure_prints_the_sheet_and_exits_with_the_worst_step() {
+    offgas()
+        .args(["procedure"])
+        .arg(demo("procedure-descale-tank.yaml"))
+        .assert()
+        .code(4)
+        .stdout(predicate::str::contains(
+            "First step that is not clear: step 3",
+        ))
+        .stdout(predicate::str::contains("Computed fixes"))
+        .stdout(predicate::str::contains("Prepared by"));
+    offgas()
+        .args(["procedure", "--format", "markdown"])
+        .arg(demo("procedure-descale-tank.yaml"))
+        .assert()
+        .code(4)
+        .stdout(predicate::str::contains("| step | what is done |"));
+}
+
+#[test]
+fn procedure_html_goes_to_a_file_that_is_never_overwritten_without_force() {
+    let f = Files::new();
+    let out = f.dir.path().join("sheet.html");
+    offgas()
+        .args(["procedure", "--format", "html", "--output"])
+        .arg(&out)
+        .arg(demo("procedure-descale-tank.yaml"))
+        .assert()
+        .code(4);
+    let html = std::fs::read_to_string(&out).unwrap();
+    assert!(html.starts_with("<!DOCTYPE html>"));
+    std::fs::write(&out, "my notes").unwrap();
+    offgas()
+        .args(["procedure", "--format", "html", "--output"])
+        .arg(&out)
+        .arg(demo("procedure-descale-tank.yaml"))
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("--force"));
+    assert_eq!(
+        std::fs::read_to_string(&out).unwrap(),
+        "my notes",
+        "the user's file is untouched"
+    );
+    offgas()
+        .args(["procedure", "--format", "html", "--force", "--output"])
+        .arg(&out)
+        .arg(demo("procedure-descale-tank.yaml"))
+        .assert()
+        .code(4);
+    assert!(std::fs::read_to_string(&out)
+        .unwrap()
+        .starts_with("<!DOCTYPE html>"));
+}
+
+#[test]
+fn a_bad_procedure_file_names_the_step_and_line() {
+    let f = Files::new();
+    let p = f.write(
+        "proc.yaml",
+        "name: p\nvessel:\n  name: v\n  capacity: 10 L\n  volume: 2 L\nsteps:\n  - description: heat it\n    boil: { time: 5 min }\n",
+    );
+    offgas()
+        .arg("procedure")
+        .arg(&p)
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("proc.yaml:7"))
+        .stderr(predicate::str::contains("unknown step kind `boil`"));
+}

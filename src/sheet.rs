@@ -1,0 +1,355 @@
+//! The approval sheet of a procedure: a terminal table, markdown, or one self-contained
+//! HTML page that prints on A4 and Letter. Layout only; the numbers come from the report.
+
+use crate::procedure::run::{ProcedureReport, StepReport};
+use crate::report::{Severity, StateReport};
+use comfy_table::{presets, ContentArrangement, Table};
+use std::fmt::Write;
+
+fn gases_text(s: Option<&StateReport>) -> String {
+    let Some(s) = s else { return "-".into() };
+    let parts: Vec<String> = s
+        .gases
+        .iter()
+        .filter(|g| g.headspace_ppm >= 0.01)
+        .take(3)
+        .map(|g| match g.limit_ppm {
+            Some(l) => format!(
+                "{} {} ppm (limit {})",
+                g.formula,
+                short(g.headspace_ppm),
+                short(l)
+            ),
+            None => format!("{} {} ppm (no limit)", g.formula, short(g.headspace_ppm)),
+        })
+        .collect();
+    if parts.is_empty() {
+        "none".into()
+    } else {
+        parts.join("; ")
+    }
+}
+
+fn short(v: f64) -> String {
+    if v >= 100.0 {
+        format!("{v:.0}")
+    } else if v >= 1.0 {
+        format!("{v:.1}")
+    } else {
+        format!("{v:.2}")
+    }
+}
+
+fn state_text(s: &StepReport) -> (String, String) {
+    let end = s
+        .end_state
+        .as_ref()
+        .map(|e| format!("pH {:.1}, {:.0} °C", e.ph, e.temperature_c))
+        .unwrap_or_else(|| "-".into());
+    let worst = s
+        .worst_state
+        .as_ref()
+        .map(|w| {
+            format!(
+                "pH {:.1} at {:.0} % added",
+                w.state.ph,
+                w.fraction_added * 100.0
+            )
+        })
+        .unwrap_or_else(|| "-".into());
+    (end, worst)
+}
+
+fn worst_gases(s: &StepReport) -> String {
+    gases_text(
+        s.worst_state
+            .as_ref()
+            .map(|w| &w.state)
+            .or(s.end_state.as_ref()),
+    )
+}
+
+/// The sheet for a terminal.
+pub fn procedure_table(r: &ProcedureReport) -> String {
+    let mut out = String::new();
+    let _ = writeln!(out, "offgas procedure: {} ({})", r.name, r.file);
+    let _ = writeln!(out, "Vessel: {} ({} L)", r.vessel, r.capacity_l);
+    let _ = writeln!(out, "\nVerdict: {}", r.severity.word().to_uppercase());
+    if let Some(p) = &r.first_problem {
+        let _ = writeln!(
+            out,
+            "First step that is not clear: step {} ({})",
+            p.step, p.severity
+        );
+        for reason in &p.reasons {
+            let _ = writeln!(out, "  - {reason}");
+        }
+    }
+    if !r.fixes.is_empty() {
+        let _ = writeln!(
+            out,
+            "\nComputed fixes (each checked by running the procedure with it)"
+        );
+        for f in &r.fixes {
+            let _ = writeln!(
+                out,
+                "  - {} (the whole procedure is then {})",
+                f.description, f.procedure_severity_with_fix
+            );
+        }
+    }
+    let mut t = Table::new();
+    t.load_preset(presets::UTF8_FULL_CONDENSED)
+        .set_content_arrangement(ContentArrangement::Dynamic)
+        .set_width(120)
+        .set_header(vec![
+            "step",
+            "what is done",
+            "end",
+            "worst while adding",
+            "gases (worst)",
+            "°C after",
+            "verdict",
+        ]);
+    for s in &r.steps {
+        let (end, worst) = state_text(s);
+        t.add_row(vec![
+            format!("{}. {}", s.number, s.description),
+            s.action.clone(),
+            end,
+            worst,
+            worst_gases(s),
+            format!("{:.1}", s.temperature_after_c),
+            s.severity.word().to_uppercase(),
+        ]);
+    }
+    let _ = writeln!(out, "\n{t}");
+    let _ = writeln!(out, "\nFindings");
+    for s in &r.steps {
+        for f in s.findings.iter().filter(|f| f.severity >= Severity::Review) {
+            let _ = writeln!(out, "  step {} [{}] {}", s.number, f.severity, f.message);
+        }
+    }
+    let _ = writeln!(out, "\nAssumptions");
+    for a in &r.assumptions {
+        let _ = writeln!(out, "  - {a}");
+    }
+    let _ = writeln!(out, "\nCautions");
+    for c in &r.cautions {
+        let _ = writeln!(out, "  - {c}");
+    }
+    let _ = writeln!(out);
+    for s in &r.sign_off {
+        let _ = writeln!(out, "{s}: ______________________________");
+    }
+    out
+}
+
+/// The sheet as markdown.
+pub fn procedure_markdown(r: &ProcedureReport) -> String {
+    let mut out = String::new();
+    let _ = writeln!(out, "# Procedure check: {}\n", r.name);
+    let _ = writeln!(
+        out,
+        "Vessel: {} ({} L). Source file: `{}`.\n",
+        r.vessel, r.capacity_l, r.file
+    );
+    let _ = writeln!(out, "**Verdict: {}**\n", r.severity.word().to_uppercase());
+    if let Some(p) = &r.first_problem {
+        let _ = writeln!(
+            out,
+            "First step that is not clear: **step {}** ({}).\n",
+            p.step, p.severity
+        );
+        for reason in &p.reasons {
+            let _ = writeln!(out, "- {reason}");
+        }
+        out.push('\n');
+    }
+    if !r.fixes.is_empty() {
+        let _ = writeln!(out, "## Computed fixes\n");
+        for f in &r.fixes {
+            let _ = writeln!(
+                out,
+                "- {} The whole procedure is then **{}**.",
+                f.description, f.procedure_severity_with_fix
+            );
+        }
+        out.push('\n');
+    }
+    let _ = writeln!(out, "## Steps\n");
+    let _ = writeln!(
+        out,
+        "| step | what is done | end | worst while adding | gases (worst) | °C after | verdict |"
+    );
+    let _ = writeln!(out, "|---|---|---|---|---|---:|---|");
+    for s in &r.steps {
+        let (end, worst) = state_text(s);
+        let _ = writeln!(
+            out,
+            "| {}. {} | {} | {} | {} | {} | {:.1} | {} |",
+            s.number,
+            s.description,
+            s.action,
+            end,
+            worst,
+            worst_gases(s),
+            s.temperature_after_c,
+            s.severity.word().to_uppercase()
+        );
+    }
+    let _ = writeln!(out, "\n## Findings\n");
+    for s in &r.steps {
+        for f in s.findings.iter().filter(|f| f.severity >= Severity::Review) {
+            let _ = writeln!(
+                out,
+                "- Step {} — **{}** ({}): {} {}",
+                s.number, f.severity, f.code, f.message, f.caution
+            );
+        }
+    }
+    let _ = writeln!(out, "\n## Assumptions\n");
+    for a in &r.assumptions {
+        let _ = writeln!(out, "- {a}");
+    }
+    let _ = writeln!(out, "\n## Cautions\n");
+    for c in &r.cautions {
+        let _ = writeln!(out, "- {c}");
+    }
+    let _ = writeln!(out, "\n## Sign-off\n");
+    for s in &r.sign_off {
+        let _ = writeln!(out, "{s}: ______________________________  \n");
+    }
+    out
+}
+
+/// Escapes text for HTML.
+pub fn esc(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+const STYLE: &str = r#"
+@page { margin: 14mm; }
+* { box-sizing: border-box; }
+body { font-family: "Helvetica Neue", Arial, sans-serif; font-size: 10.5pt; color: #111; margin: 0 auto; max-width: 180mm; padding: 8mm 0; }
+h1 { font-size: 15pt; margin: 0 0 4pt; }
+h2 { font-size: 12pt; margin: 14pt 0 4pt; border-bottom: 1px solid #888; }
+p, li { line-height: 1.35; }
+table { border-collapse: collapse; width: 100%; margin: 4pt 0; }
+th, td { border: 1px solid #999; padding: 3pt 4pt; vertical-align: top; text-align: left; font-size: 9pt; }
+th { background: #eee; }
+tr { page-break-inside: avoid; }
+.verdict { font-weight: bold; font-size: 13pt; padding: 4pt 8pt; display: inline-block; border: 2px solid #111; }
+.stop { background: #f6d5d5; } .review { background: #f8ecc8; } .clear { background: #dcefd9; }
+.sign { margin-top: 16pt; page-break-inside: avoid; }
+.sign div { display: flex; gap: 8pt; margin: 14pt 0; }
+.sign span.line { flex: 1; border-bottom: 1px solid #111; }
+.small { font-size: 8.5pt; color: #333; }
+@media print { body { padding: 0; max-width: none; } h2 { page-break-after: avoid; } }
+"#;
+
+/// The sheet as one self-contained HTML page (no external assets).
+pub fn procedure_html(r: &ProcedureReport) -> String {
+    let mut out = String::new();
+    let cls = |s: Severity| match s {
+        Severity::Stop => "stop",
+        Severity::Review => "review",
+        _ => "clear",
+    };
+    let _ = write!(
+        out,
+        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>Procedure check: {}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n",
+        esc(&r.name)
+    );
+    let _ = writeln!(out, "<h1>Procedure check: {}</h1>", esc(&r.name));
+    let _ = writeln!(
+        out,
+        "<p>Vessel: {} ({} L). Source file: <code>{}</code>. Checked by offgas {}.</p>",
+        esc(&r.vessel),
+        r.capacity_l,
+        esc(&r.file),
+        esc(r.version)
+    );
+    let _ = writeln!(
+        out,
+        "<p><span class=\"verdict {}\">Verdict: {}</span></p>",
+        cls(r.severity),
+        r.severity.word().to_uppercase()
+    );
+    if let Some(p) = &r.first_problem {
+        let _ = writeln!(
+            out,
+            "<p>First step that is not clear: <strong>step {}</strong> ({}).</p><ul>",
+            p.step, p.severity
+        );
+        for reason in &p.reasons {
+            let _ = writeln!(out, "<li>{}</li>", esc(reason));
+        }
+        let _ = writeln!(out, "</ul>");
+    }
+    if !r.fixes.is_empty() {
+        let _ = writeln!(out, "<h2>Computed fixes</h2><ul>");
+        for f in &r.fixes {
+            let _ = writeln!(
+                out,
+                "<li>{} The whole procedure is then <strong>{}</strong>.</li>",
+                esc(&f.description),
+                f.procedure_severity_with_fix
+            );
+        }
+        let _ = writeln!(out, "</ul>");
+    }
+    let _ = writeln!(out, "<h2>Steps</h2>\n<table>\n<thead><tr><th>Step</th><th>What is done</th><th>End</th><th>Worst while adding</th><th>Gases (worst)</th><th>°C after</th><th>Verdict</th></tr></thead>\n<tbody>");
+    for s in &r.steps {
+        let (end, worst) = state_text(s);
+        let _ = writeln!(
+            out,
+            "<tr class=\"{}\"><td>{}. {}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{:.1}</td><td>{}</td></tr>",
+            cls(s.severity),
+            s.number,
+            esc(&s.description),
+            esc(&s.action),
+            esc(&end),
+            esc(&worst),
+            esc(&worst_gases(s)),
+            s.temperature_after_c,
+            s.severity.word().to_uppercase()
+        );
+    }
+    let _ = writeln!(out, "</tbody>\n</table>");
+    let _ = writeln!(out, "<h2>Findings</h2><ul>");
+    for s in &r.steps {
+        for f in s.findings.iter().filter(|f| f.severity >= Severity::Review) {
+            let _ = writeln!(
+                out,
+                "<li>Step {} — <strong>{}</strong> ({}): {} <span class=\"small\">{}</span></li>",
+                s.number,
+                f.severity,
+                esc(&f.code),
+                esc(&f.message),
+                esc(&f.caution)
+            );
+        }
+    }
+    let _ = writeln!(out, "</ul>\n<h2>Assumptions</h2><ul>");
+    for a in &r.assumptions {
+        let _ = writeln!(out, "<li>{}</li>", esc(a));
+    }
+    let _ = writeln!(out, "</ul>\n<h2>Cautions</h2><ul>");
+    for c in &r.cautions {
+        let _ = writeln!(out, "<li>{}</li>", esc(c));
+    }
+    let _ = writeln!(out, "</ul>\n<div class=\"sign\">");
+    for s in &r.sign_off {
+        let _ = writeln!(
+            out,
+            "<div><span>{}:</span><span class=\"line\"></span></div>",
+            esc(s)
+        );
+    }
+    let _ = writeln!(out, "</div>\n</body>\n</html>");
+    out
+}
