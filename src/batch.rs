@@ -301,6 +301,62 @@ impl Batch {
         Ok(batch)
     }
 
+    /// A stream-like batch from parts already read elsewhere (an inventory row, a CSV line):
+    /// each item is (substance as written, amount as written, line).
+    pub fn from_parts(
+        cat: &Catalog,
+        file: &str,
+        name: &str,
+        volume_l: f64,
+        items: &[(String, String, Option<usize>)],
+    ) -> Result<Batch, InputError> {
+        let err = |line: Option<usize>, message: String, fix: Option<String>| InputError {
+            file: file.to_string(),
+            line,
+            message,
+            fix,
+        };
+        if !(volume_l > 0.0 && volume_l.is_finite()) {
+            return Err(err(items.first().and_then(|i| i.2), format!("`{name}`: the volume must be above zero"), None));
+        }
+        let mut components = Vec::with_capacity(items.len());
+        for (written, amount_text, line) in items {
+            let sid = cat.find_substance(written).ok_or_else(|| {
+                err(
+                    *line,
+                    format!("`{name}`: unknown substance `{written}`"),
+                    Some(format!("did you mean: {}?", cat.closest_names(written, 3).join(", "))),
+                )
+            })?;
+            let amount = parse_amount(amount_text).map_err(|e| err(*line, format!("`{name}`, `{written}`: {e}"), None))?;
+            let (moles, _) = moles_of(cat, sid, amount, volume_l, 1.0)
+                .map_err(|m| err(*line, format!("`{name}`, `{written}`: {m}"), None))?;
+            check_reachable(cat, sid, moles, volume_l)
+                .map_err(|(m, fix)| err(*line, format!("`{name}`, `{written}`: {m}"), Some(fix)))?;
+            components.push(Component {
+                written: written.clone(),
+                substance: sid,
+                amount,
+                moles,
+                line: *line,
+            });
+        }
+        Ok(Batch {
+            file: file.to_string(),
+            name: name.to_string(),
+            capacity_l: None,
+            volume_l,
+            temperature_k: 298.15,
+            temperature_given: false,
+            closure: Closure::Sealed,
+            density_g_per_ml: 1.0,
+            density_given: false,
+            rated_pressure_kpa: None,
+            surface_area_m2: None,
+            components,
+        })
+    }
+
     /// The batch as amounts for the solver, in a vessel of `capacity_l`.
     pub fn to_mixture(&self, cat: &Catalog, capacity_l: f64) -> Mixture {
         let mut m = Mixture::empty(self.temperature_k, self.closure);

@@ -21,4 +21,5 @@ pub mod report;
 pub mod room;
 pub mod rules;
 pub mod sheet;
+pub mod store;
 pub mod thresholds;

@@ -1,0 +1,1 @@
+//! The pair audit (being written).

@@ -1,0 +1,1 @@
+//! CSV import of an inventory (being written).

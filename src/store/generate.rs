@@ -1,0 +1,1 @@
+//! Synthetic storerooms for benchmarks and tests (being written).

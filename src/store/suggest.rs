@@ -1,0 +1,1 @@
+//! Rearrangement suggestions (being written).
