@@ -317,7 +317,11 @@ impl Batch {
             fix,
         };
         if !(volume_l > 0.0 && volume_l.is_finite()) {
-            return Err(err(items.first().and_then(|i| i.2), format!("`{name}`: the volume must be above zero"), None));
+            return Err(err(
+                items.first().and_then(|i| i.2),
+                format!("`{name}`: the volume must be above zero"),
+                None,
+            ));
         }
         let mut components = Vec::with_capacity(items.len());
         for (written, amount_text, line) in items {
@@ -325,10 +329,14 @@ impl Batch {
                 err(
                     *line,
                     format!("`{name}`: unknown substance `{written}`"),
-                    Some(format!("did you mean: {}?", cat.closest_names(written, 3).join(", "))),
+                    Some(format!(
+                        "did you mean: {}?",
+                        cat.closest_names(written, 3).join(", ")
+                    )),
                 )
             })?;
-            let amount = parse_amount(amount_text).map_err(|e| err(*line, format!("`{name}`, `{written}`: {e}"), None))?;
+            let amount = parse_amount(amount_text)
+                .map_err(|e| err(*line, format!("`{name}`, `{written}`: {e}"), None))?;
             let (moles, _) = moles_of(cat, sid, amount, volume_l, 1.0)
                 .map_err(|m| err(*line, format!("`{name}`, `{written}`: {m}"), None))?;
             check_reachable(cat, sid, moles, volume_l)

@@ -14,6 +14,7 @@ use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
+mod audit_cmd;
 mod demo;
 mod lookup;
 mod rules_cmd;
@@ -71,6 +72,42 @@ enum Command {
         /// Allow --output to replace an existing file.
         #[arg(long)]
         force: bool,
+        /// A folder of the site's own rule files, layered over the built-in rules.
+        #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
+        site_rules: Option<PathBuf>,
+        /// A thresholds file to use instead of the bundled rules/thresholds.yaml.
+        #[arg(long, value_name = "FILE")]
+        thresholds: Option<PathBuf>,
+    },
+    /// Audit a storeroom: every pair of containers that can meet if they leak, ranked.
+    Audit {
+        /// The inventory: YAML, or CSV (by the .csv extension) with a column mapping.
+        inventory: PathBuf,
+        /// CSV column mapping, e.g. "id=Bottle,substance=Chemical,amount=Qty,unit=Unit,size=Size,location=Location".
+        #[arg(long, value_name = "SPEC")]
+        columns: Option<String>,
+        /// CSV column mapping from a small YAML file (`columns: {id: ..., ...}`).
+        #[arg(long, value_name = "FILE")]
+        mapping: Option<PathBuf>,
+        /// Audit the rows that can be read and list the others, instead of stopping.
+        #[arg(long)]
+        skip_bad_rows: bool,
+        /// Propose moves that remove every stop pair and as many review pairs as possible.
+        #[arg(long)]
+        suggest: bool,
+        #[arg(long, value_enum, default_value_t = SheetFormat::Table)]
+        format: SheetFormat,
+        /// Write the report to this file (never overwrites without --force).
+        #[arg(long, value_name = "FILE")]
+        output: Option<PathBuf>,
+        #[arg(long)]
+        force: bool,
+        /// Pair only containers that share a spill zone, not a whole cabinet.
+        #[arg(long)]
+        no_cabinet_level: bool,
+        /// Area a leak spreads over, e.g. "0.25 m2" (default in rules/thresholds.yaml).
+        #[arg(long, value_name = "AREA")]
+        spill_area: Option<String>,
         /// A folder of the site's own rule files, layered over the built-in rules.
         #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
         site_rules: Option<PathBuf>,
@@ -172,6 +209,33 @@ fn main() -> ExitCode {
             site_rules.as_deref(),
             thresholds.as_deref(),
         ),
+        Command::Audit {
+            inventory,
+            columns,
+            mapping,
+            skip_bad_rows,
+            suggest,
+            format,
+            output,
+            force,
+            no_cabinet_level,
+            spill_area,
+            site_rules,
+            thresholds,
+        } => audit_cmd::run(audit_cmd::AuditArgs {
+            inventory,
+            columns,
+            mapping,
+            skip_bad_rows,
+            suggest,
+            format,
+            output,
+            force,
+            no_cabinet_level,
+            spill_area,
+            site_rules,
+            thresholds,
+        }),
         Command::Rules { action } => match action {
             RulesAction::List { site_rules, format } => {
                 rules_cmd::list(site_rules.as_deref(), matches!(format, LookupFormat::Json))

@@ -17,6 +17,7 @@ pub struct Thresholds {
     pub flammable_gas: FlammableGas,
     pub heat: HeatThresholds,
     pub room: RoomDefaults,
+    pub storeroom: Storeroom,
     pub cautions: Vec<String>,
 }
 
@@ -63,6 +64,16 @@ pub struct HeatThresholds {
     pub review_final_c: f64,
     pub stop_final_c: f64,
     pub boiling_margin_k: f64,
+    pub basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Storeroom {
+    /// Area a leak on a tray spreads over, m2.
+    pub spill_area_m2: f64,
+    /// Free places assumed in a tray whose capacity the inventory does not give.
+    pub spare_places_per_tray: usize,
     pub basis: String,
 }
 
@@ -117,7 +128,8 @@ impl Thresholds {
             && t.heat.boiling_margin_k >= 0.0
             && t.room.volume_m3 > 0.0
             && t.room.air_changes_per_hour > 0.0
-            && t.room.air_speed_m_per_s > 0.0;
+            && t.room.air_speed_m_per_s > 0.0
+            && t.storeroom.spill_area_m2 > 0.0;
         if !ok {
             return Err(format!(
                 "{file}: thresholds must be positive, stop levels at or above review levels, and the safer-order factor at least 1"

@@ -9,6 +9,7 @@ pub mod audit;
 pub mod csv_import;
 pub mod generate;
 pub mod suggest;
+pub mod view;
 
 use crate::batch::{Batch, InputError};
 use crate::catalog::{Catalog, PhysicalState, SubstanceId};
@@ -151,7 +152,10 @@ pub fn neat_contents(
     let sid = cat.find_substance(substance).ok_or_else(|| {
         err(
             format!("unknown substance `{substance}`"),
-            Some(format!("did you mean: {}?", cat.closest_names(substance, 3).join(", "))),
+            Some(format!(
+                "did you mean: {}?",
+                cat.closest_names(substance, 3).join(", ")
+            )),
         )
     })?;
     let s = cat.substance(sid);
@@ -159,22 +163,53 @@ pub fn neat_contents(
     let liquid = matches!(s.state, PhysicalState::Liquid | PhysicalState::Solution);
     match a {
         Amount::Millilitres(ml) if liquid => {
-            let b = Batch::from_parts(cat, file, id, ml / 1e3, &[(substance.to_string(), amount.to_string(), line)])?;
+            let b = Batch::from_parts(
+                cat,
+                file,
+                id,
+                ml / 1e3,
+                &[(substance.to_string(), amount.to_string(), line)],
+            )?;
             Ok(Contents::Liquid(b))
         }
         Amount::Grams(g) if liquid => {
-            let d = s.density_g_per_ml.ok_or_else(|| err(format!("`{}` is a liquid without a density; give its volume", s.name), None))?;
+            let d = s.density_g_per_ml.ok_or_else(|| {
+                err(
+                    format!(
+                        "`{}` is a liquid without a density; give its volume",
+                        s.name
+                    ),
+                    None,
+                )
+            })?;
             let ml = g / d;
-            let b = Batch::from_parts(cat, file, id, ml / 1e3, &[(substance.to_string(), format!("{ml} mL"), line)])?;
+            let b = Batch::from_parts(
+                cat,
+                file,
+                id,
+                ml / 1e3,
+                &[(substance.to_string(), format!("{ml} mL"), line)],
+            )?;
             Ok(Contents::Liquid(b))
         }
         Amount::Grams(g) => {
-            let mm = s.molar_mass.ok_or_else(|| err(format!("`{}` has no molar mass", s.name), None))?;
-            Ok(Contents::Dry { substance: sid, moles: g / mm })
+            let mm = s
+                .molar_mass
+                .ok_or_else(|| err(format!("`{}` has no molar mass", s.name), None))?;
+            Ok(Contents::Dry {
+                substance: sid,
+                moles: g / mm,
+            })
         }
-        Amount::Moles(n) => Ok(Contents::Dry { substance: sid, moles: n }),
+        Amount::Moles(n) => Ok(Contents::Dry {
+            substance: sid,
+            moles: n,
+        }),
         _ => Err(err(
-            format!("a neat `{}` needs an amount in g, kg, mol or (for liquids) mL or L", s.name),
+            format!(
+                "a neat `{}` needs an amount in g, kg, mol or (for liquids) mL or L",
+                s.name
+            ),
             Some("give a solution as `volume:` and `contents:` instead".into()),
         )),
     }
@@ -213,17 +248,33 @@ impl Inventory {
             let v = crate::quantity::parse_room_volume_m3(&r.volume)
                 .map_err(|e| err(None, format!("room `{}`: {e}", r.path), None))?;
             if !(v > 0.0 && r.air_changes > 0.0) {
-                return Err(err(None, format!("room `{}`: volume and air changes must be above zero", r.path), None));
+                return Err(err(
+                    None,
+                    format!(
+                        "room `{}`: volume and air changes must be above zero",
+                        r.path
+                    ),
+                    None,
+                ));
             }
-            rooms.push(RoomSpec { path: split_path(&r.path), volume_m3: v, air_changes_per_hour: r.air_changes });
+            rooms.push(RoomSpec {
+                path: split_path(&r.path),
+                volume_m3: v,
+                air_changes_per_hour: r.air_changes,
+            });
         }
         let mut containers = Vec::with_capacity(raw.containers.len());
         let mut seen = std::collections::HashSet::new();
         for (i, c) in raw.containers.into_iter().enumerate() {
             let line = id_lines.get(i).copied();
-            let cerr = |m: String, fix: Option<String>| err(line, format!("container `{}`: {m}", c.id), fix);
+            let cerr = |m: String, fix: Option<String>| {
+                err(line, format!("container `{}`: {m}", c.id), fix)
+            };
             if !seen.insert(c.id.clone()) {
-                return Err(cerr("the id appears twice".into(), Some("give every container its own id".into())));
+                return Err(cerr(
+                    "the id appears twice".into(),
+                    Some("give every container its own id".into()),
+                ));
             }
             let path = split_path(&c.location);
             if path.len() < meet_depth {
@@ -232,7 +283,9 @@ impl Inventory {
                     None,
                 ));
             }
-            let size_l = parse_volume(&c.size).map_err(|e| cerr(format!("size: {e}"), None))?.0;
+            let size_l = parse_volume(&c.size)
+                .map_err(|e| cerr(format!("size: {e}"), None))?
+                .0;
             let contents = match (&c.substance, &c.amount, &c.volume) {
                 (Some(s), Some(a), None) if c.contents.is_empty() => neat_contents(cat, file, &c.id, s, a, line)?,
                 (None, None, Some(v)) if !c.contents.is_empty() => {
@@ -257,9 +310,18 @@ impl Inventory {
                 Contents::Dry { .. } => 0.0,
             };
             if held > size_l * (1.0 + 1e-9) {
-                return Err(cerr(format!("holds {held} L, more than its size of {size_l} L"), None));
+                return Err(cerr(
+                    format!("holds {held} L, more than its size of {size_l} L"),
+                    None,
+                ));
             }
-            containers.push(StoredContainer { id: c.id, path, size_l, contents, line });
+            containers.push(StoredContainer {
+                id: c.id,
+                path,
+                size_l,
+                contents,
+                line,
+            });
         }
         Ok(Inventory {
             file: file.to_string(),

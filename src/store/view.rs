@@ -1,0 +1,312 @@
+//! The audit report for a terminal (findings and per-cabinet matrices) and as one
+//! self-contained HTML page with an inline SVG matrix per cabinet. Layout only.
+
+use super::audit::{AuditReport, CabinetMatrix, Level};
+use crate::report::Severity;
+use crate::sheet::esc;
+use std::fmt::Write;
+
+/// Most containers a terminal matrix shows before it lists findings only.
+const TERMINAL_MATRIX_MAX: usize = 40;
+
+fn mark(s: Severity, level: Level) -> char {
+    match (s, level) {
+        (Severity::Stop, Level::Tray) => 'S',
+        (Severity::Stop, Level::Cabinet) => 's',
+        (Severity::Review, Level::Tray) => 'R',
+        (Severity::Review, Level::Cabinet) => 'r',
+        _ => '.',
+    }
+}
+
+fn matrix_text(m: &CabinetMatrix) -> String {
+    let n = m.ids.len();
+    let mut grid = vec![vec!['.'; n]; n];
+    for c in &m.cells {
+        let ch = mark(c.severity, c.level);
+        grid[c.i][c.j] = ch;
+        grid[c.j][c.i] = ch;
+    }
+    let width = m.ids.iter().map(|s| s.len()).max().unwrap_or(0);
+    let mut out = String::new();
+    for (k, id) in m.ids.iter().enumerate() {
+        let row: String = grid[k].iter().map(|c| format!(" {c}")).collect();
+        let _ = writeln!(out, "  {:>2} {:<width$} {row}", k + 1, id);
+    }
+    let cols: String = (1..=n).map(|k| format!("{:>2}", k % 100)).collect();
+    let _ = writeln!(out, "     {:<width$}{cols}", "");
+    out
+}
+
+/// The report for a terminal.
+pub fn audit_table(r: &AuditReport) -> String {
+    let mut out = String::new();
+    let c = &r.counts;
+    let _ = writeln!(out, "offgas audit: {} ({})", r.name, r.file);
+    let _ = writeln!(
+        out,
+        "{} containers in {} spill zones and {} cabinets; {} pairs can meet, {} cleared by screening, {} checked ({} distinct checks).",
+        c.containers, c.spill_zones, c.cabinets, c.pairs_that_can_meet, c.pairs_cleared_by_screening, c.pairs_checked, c.distinct_checks
+    );
+    let _ = writeln!(out, "\nVerdict: {}", r.severity.word().to_uppercase());
+    if !r.skipped_rows.is_empty() {
+        let _ = writeln!(
+            out,
+            "{} inventory rows were skipped (--skip-bad-rows); see the JSON report for each.",
+            r.skipped_rows.len()
+        );
+    }
+    let stops = r
+        .findings
+        .iter()
+        .filter(|f| f.severity == Severity::Stop)
+        .count();
+    let reviews = r
+        .findings
+        .iter()
+        .filter(|f| f.severity == Severity::Review)
+        .count();
+    let _ = writeln!(
+        out,
+        "{stops} pairs to stop, {reviews} to review, worst first:"
+    );
+    for f in r.findings.iter().take(50) {
+        let _ = writeln!(
+            out,
+            "  [{}] {} ({}) with {} ({}), same {}{}: {}",
+            f.severity,
+            f.a.id,
+            f.a.contents,
+            f.b.id,
+            f.b.contents,
+            match f.level {
+                Level::Tray => "tray",
+                Level::Cabinet => "cabinet",
+            },
+            f.gas.as_ref().map(|g| format!(", {g}")).unwrap_or_default(),
+            f.headline
+        );
+        let _ = writeln!(out, "         at {} and {}", f.a.location, f.b.location);
+    }
+    if r.findings.len() > 50 {
+        let _ = writeln!(
+            out,
+            "  ... and {} more (see --format json or html)",
+            r.findings.len() - 50
+        );
+    }
+    for m in &r.cabinets {
+        let _ = writeln!(
+            out,
+            "\nCabinet {} (S/R: stop/review on the same tray; s/r: in the same cabinet)",
+            m.cabinet
+        );
+        if m.ids.len() <= TERMINAL_MATRIX_MAX {
+            out.push_str(&matrix_text(m));
+        } else {
+            let _ = writeln!(
+                out,
+                "  {} containers take part; the matrix is in the HTML report.",
+                m.ids.len()
+            );
+        }
+    }
+    if let Some(s) = &r.suggestion {
+        let _ = writeln!(
+            out,
+            "\nSuggested moves ({}; stop pairs {} → {}, review pairs {} → {})",
+            s.note,
+            s.stop_pairs_before,
+            s.stop_pairs_after,
+            s.review_pairs_before,
+            s.review_pairs_after
+        );
+        for m in &s.moves {
+            let _ = writeln!(out, "  move {} from {} to {}", m.id, m.from, m.to);
+        }
+        for u in &s.unresolved {
+            let _ = writeln!(out, "  not resolved: {u}");
+        }
+    }
+    let _ = writeln!(out, "\nAssumptions");
+    for a in &r.assumptions {
+        let _ = writeln!(out, "  - {a}");
+    }
+    let _ = writeln!(out, "\nCautions");
+    for c in &r.cautions {
+        let _ = writeln!(out, "  - {c}");
+    }
+    out
+}
+
+/// Fill colour of a matrix cell: graded by how far past its level the pair goes.
+fn cell_colour(s: Severity, ratio: f64) -> String {
+    // 0 at the review level, 1 at a hundredfold.
+    let t = if ratio > 1.0 {
+        (ratio.log10() / 2.0).clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
+    match s {
+        Severity::Stop => {
+            let light = 62.0 - 24.0 * t;
+            format!("hsl(0, 75%, {light:.0}%)")
+        }
+        Severity::Review => {
+            let light = 78.0 - 14.0 * t;
+            format!("hsl(42, 90%, {light:.0}%)")
+        }
+        _ => "#ffffff".into(),
+    }
+}
+
+fn matrix_svg(m: &CabinetMatrix) -> String {
+    let n = m.ids.len();
+    let cell = 14.0;
+    let label = 9.0 * m.ids.iter().map(|s| s.len()).max().unwrap_or(4) as f64 * 0.62 + 8.0;
+    let size = label + cell * n as f64 + 2.0;
+    let mut out = String::new();
+    let _ = write!(
+        out,
+        "<svg width=\"{size:.0}\" height=\"{size:.0}\" viewBox=\"0 0 {size:.0} {size:.0}\" role=\"img\" aria-label=\"pair matrix of {}\">",
+        esc(&m.cabinet)
+    );
+    for (k, id) in m.ids.iter().enumerate() {
+        let y = label + cell * k as f64 + cell * 0.75;
+        let _ = write!(
+            out,
+            "<text x=\"{:.1}\" y=\"{y:.1}\" font-size=\"9\" text-anchor=\"end\">{}</text>",
+            label - 4.0,
+            esc(id)
+        );
+        let x = label + cell * k as f64 + cell * 0.7;
+        let _ = write!(
+            out,
+            "<text x=\"{x:.1}\" y=\"{:.1}\" font-size=\"9\" transform=\"rotate(-90 {x:.1} {:.1})\">{}</text>",
+            label - 4.0,
+            label - 4.0,
+            esc(id)
+        );
+    }
+    for i in 0..n {
+        for j in 0..n {
+            let _ = write!(
+                out,
+                "<rect x=\"{:.1}\" y=\"{:.1}\" width=\"{cell}\" height=\"{cell}\" fill=\"{}\" stroke=\"#bbb\" stroke-width=\"0.5\"/>",
+                label + cell * j as f64,
+                label + cell * i as f64,
+                if i == j { "#e4e4e4" } else { "#ffffff" }
+            );
+        }
+    }
+    for c in &m.cells {
+        for (i, j) in [(c.i, c.j), (c.j, c.i)] {
+            let _ = write!(
+                out,
+                "<rect x=\"{:.1}\" y=\"{:.1}\" width=\"{cell}\" height=\"{cell}\" fill=\"{}\" stroke=\"#555\" stroke-width=\"0.5\"><title>{} × {}: {} ({:?}), {:.1} × the review level</title></rect>",
+                label + cell * j as f64,
+                label + cell * i as f64,
+                cell_colour(c.severity, c.worst_ratio),
+                esc(&m.ids[i]),
+                esc(&m.ids[j]),
+                c.severity,
+                c.level,
+                c.worst_ratio
+            );
+            if c.level == Level::Cabinet {
+                // Cabinet-level pairs are hatched with a diagonal so they read apart from tray pairs.
+                let (x0, y0) = (label + cell * j as f64, label + cell * i as f64);
+                let _ = write!(out, "<line x1=\"{x0:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{y0:.1}\" stroke=\"#333\" stroke-width=\"0.6\"/>", y0 + cell, x0 + cell);
+            }
+        }
+    }
+    out.push_str("</svg>");
+    out
+}
+
+const STYLE: &str = r#"
+@page { margin: 12mm; }
+body { font-family: "Helvetica Neue", Arial, sans-serif; font-size: 10pt; color: #111; max-width: 190mm; margin: 0 auto; padding: 6mm 0; }
+h1 { font-size: 15pt; } h2 { font-size: 12pt; border-bottom: 1px solid #888; margin-top: 14pt; }
+table { border-collapse: collapse; width: 100%; } th, td { border: 1px solid #999; padding: 2pt 4pt; font-size: 8.5pt; text-align: left; vertical-align: top; }
+th { background: #eee; } tr { page-break-inside: avoid; }
+.stop td:first-child { background: hsl(0, 75%, 62%); } .review td:first-child { background: hsl(42, 90%, 72%); }
+.matrix { page-break-inside: avoid; margin: 6pt 0 12pt; }
+.legend span { display: inline-block; width: 12px; height: 12px; border: 1px solid #555; vertical-align: middle; margin: 0 3pt 0 8pt; }
+"#;
+
+/// The report as one self-contained HTML page.
+pub fn audit_html(r: &AuditReport) -> String {
+    let mut out = String::new();
+    let c = &r.counts;
+    let _ = write!(out, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>Storeroom audit: {}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n", esc(&r.name));
+    let _ = writeln!(out, "<h1>Storeroom audit: {}</h1>", esc(&r.name));
+    let _ = writeln!(
+        out,
+        "<p>Source: <code>{}</code>. {} containers in {} spill zones and {} cabinets; {} pairs can meet, {} cleared by screening, {} checked. Verdict: <strong>{}</strong>.</p>",
+        esc(&r.file), c.containers, c.spill_zones, c.cabinets, c.pairs_that_can_meet, c.pairs_cleared_by_screening, c.pairs_checked, r.severity.word().to_uppercase()
+    );
+    let _ = writeln!(out, "<h2>Findings</h2>\n<table>\n<thead><tr><th>Verdict</th><th>Container</th><th>Meets</th><th>Where</th><th>Gas</th><th>× review level</th><th>Why</th></tr></thead>\n<tbody>");
+    for f in &r.findings {
+        let _ = writeln!(
+            out,
+            "<tr class=\"{}\"><td>{}</td><td>{}<br>{}<br><small>{}</small></td><td>{}<br>{}<br><small>{}</small></td><td>same {}</td><td>{}</td><td>{:.1}</td><td>{}</td></tr>",
+            f.severity.word(),
+            f.severity.word().to_uppercase(),
+            esc(&f.a.id), esc(&f.a.contents), esc(&f.a.location),
+            esc(&f.b.id), esc(&f.b.contents), esc(&f.b.location),
+            match f.level { Level::Tray => "tray", Level::Cabinet => "cabinet" },
+            esc(f.gas.as_deref().unwrap_or("-")),
+            f.worst_ratio,
+            esc(&f.headline)
+        );
+    }
+    let _ = writeln!(out, "</tbody>\n</table>");
+    if !r.cabinets.is_empty() {
+        let _ = writeln!(
+            out,
+            "<h2>Cabinets</h2>\n<p class=\"legend\">Darker is further past the level;<span style=\"background:{}\"></span>stop<span style=\"background:{}\"></span>review; a diagonal marks pairs on different trays of the same cabinet.</p>",
+            cell_colour(Severity::Stop, 10.0),
+            cell_colour(Severity::Review, 10.0)
+        );
+        for m in &r.cabinets {
+            let _ = writeln!(
+                out,
+                "<div class=\"matrix\"><h3>{}</h3>{}</div>",
+                esc(&m.cabinet),
+                matrix_svg(m)
+            );
+        }
+    }
+    if let Some(s) = &r.suggestion {
+        let _ = writeln!(
+            out,
+            "<h2>Suggested moves</h2><p>{} Stop pairs {} → {}, review pairs {} → {}.</p><ul>",
+            esc(&s.note),
+            s.stop_pairs_before,
+            s.stop_pairs_after,
+            s.review_pairs_before,
+            s.review_pairs_after
+        );
+        for m in &s.moves {
+            let _ = writeln!(
+                out,
+                "<li>Move {} from {} to {}</li>",
+                esc(&m.id),
+                esc(&m.from),
+                esc(&m.to)
+            );
+        }
+        let _ = writeln!(out, "</ul>");
+    }
+    let _ = writeln!(out, "<h2>Assumptions</h2><ul>");
+    for a in &r.assumptions {
+        let _ = writeln!(out, "<li>{}</li>", esc(a));
+    }
+    let _ = writeln!(out, "</ul><h2>Cautions</h2><ul>");
+    for c in &r.cautions {
+        let _ = writeln!(out, "<li>{}</li>", esc(c));
+    }
+    let _ = writeln!(out, "</ul>\n</body>\n</html>");
+    out
+}
