@@ -5,7 +5,9 @@ use crate::batch::InputError;
 use crate::catalog::Catalog;
 
 #[derive(Debug, Clone, Default)]
-pub struct ColumnMapping;
+pub struct ColumnMapping {
+    _placeholder: (),
+}
 
 #[derive(Debug, Clone, serde::Serialize)]
 pub struct SkippedRow {
