@@ -240,7 +240,10 @@ impl Inventory {
         let id_lines: Vec<usize> = text
             .lines()
             .enumerate()
-            .filter(|(_, l)| l.trim_start().starts_with("- id:"))
+            .filter(|(_, l)| {
+                let t = l.trim_start();
+                t.starts_with("- id:") || (t.starts_with("- {") && t.contains("id:"))
+            })
             .map(|(i, _)| i + 1)
             .collect();
         let mut rooms = Vec::new();

@@ -1,0 +1,184 @@
+//! `offgas audit` on a small storeroom whose findings are worked out by hand, the
+//! suggestion search, and the HTML report.
+
+mod common;
+use common::catalog;
+use offgas::report::Severity;
+use offgas::store::audit::{AuditReport, AuditSettings, Auditor, Level, PairJudge};
+use offgas::store::Inventory;
+
+fn store(text: &str) -> Inventory {
+    Inventory::parse(catalog(), "store.yaml", text).unwrap_or_else(|e| panic!("{e}"))
+}
+
+fn demo_store() -> Inventory {
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/data/demo/storeroom.yaml"
+    ))
+    .unwrap();
+    store(&text)
+}
+
+struct Env {
+    th: offgas::thresholds::Thresholds,
+    rules: offgas::rules::RuleSet,
+}
+
+fn env() -> Env {
+    Env {
+        th: offgas::embedded::thresholds().unwrap(),
+        rules: offgas::embedded::rules(catalog()).unwrap(),
+    }
+}
+
+fn auditor(e: &Env) -> Auditor<'_> {
+    Auditor {
+        cat: catalog(),
+        th: &e.th,
+        rules: &e.rules,
+        settings: AuditSettings {
+            spill_area_m2: 0.25,
+            cabinet_level: true,
+        },
+    }
+}
+
+fn run(inv: &Inventory) -> AuditReport {
+    let e = env();
+    auditor(&e).audit(inv, &|_, _| {})
+}
+
+#[test]
+fn the_small_storeroom_has_the_findings_worked_out_by_hand() {
+    // Worked out by hand (data/demo/storeroom.yaml):
+    // - tray 1 of cabinet 1: 100 g NaCN with 1 L of 37 % HCl: 2.0 mol cyanide into 12 mol
+    //   of strong acid, all HCN (pKa 9.2) → stop;
+    // - tray 1 of cabinet 2: 1 L of 2 M NaOH with 500 g NH4Cl (9.3 mol): 2 mol NH3 freed in
+    //   about 1 L, p = 2000 mol/m3 / 0.59 mol/(m3 Pa) ≈ 3.4 kPa ≈ 33,000 ppm → stop;
+    // - ethanol with acetone, NaCl with Na2SO4: nothing forms → clear;
+    // - across trays: cyanide with the solvents, acid with the solvents, caustic with the
+    //   dry salts: nothing worse than each on its own → clear.
+    let r = run(&demo_store());
+    assert_eq!(r.severity, Severity::Stop);
+    let pairs: Vec<(String, String, Severity, Level)> = r
+        .findings
+        .iter()
+        .map(|f| (f.a.id.clone(), f.b.id.clone(), f.severity, f.level))
+        .collect();
+    assert_eq!(
+        pairs,
+        vec![
+            ("SB-01".into(), "SB-02".into(), Severity::Stop, Level::Tray),
+            ("SB-05".into(), "SB-06".into(), Severity::Stop, Level::Tray),
+        ],
+        "{:#?}",
+        r.findings
+    );
+    assert_eq!(r.findings[0].gas.as_deref(), Some("HCN"));
+    assert_eq!(r.findings[1].gas.as_deref(), Some("NH3"));
+    // Cabinet 1 and 2 each: 2 tray pairs... all pairs in a cabinet of four are 6: 12 in all.
+    assert_eq!(r.counts.pairs_that_can_meet, 12);
+    assert!(
+        r.counts.pairs_cleared_by_screening >= 1,
+        "solvent with solvent needs no solve"
+    );
+    assert_eq!(
+        r.counts.pairs_checked + r.counts.pairs_cleared_by_screening,
+        12
+    );
+}
+
+#[test]
+fn without_the_cabinet_level_only_tray_mates_are_paired() {
+    let e = env();
+    let mut a = auditor(&e);
+    a.settings.cabinet_level = false;
+    let r = a.audit(&demo_store(), &|_, _| {});
+    assert_eq!(r.counts.pairs_that_can_meet, 4);
+}
+
+#[test]
+fn the_suggestion_removes_every_stop_pair_when_there_is_room() {
+    let e = env();
+    let a = auditor(&e);
+    let inv = demo_store();
+    let judge = PairJudge::new(&a, &inv);
+    let s = offgas::store::suggest::suggest(&inv, &judge, true, 2);
+    assert!(s.complete, "{s:?}");
+    assert_eq!(s.stop_pairs_before, 2);
+    assert_eq!(s.stop_pairs_after, 0);
+    assert!(
+        s.moves.len() <= 2,
+        "fewest moves: one per stop pair here, {:?}",
+        s.moves
+    );
+    // Apply the moves and audit again: no stop pair is left.
+    let mut moved = inv.clone();
+    for m in &s.moves {
+        let c = moved.containers.iter_mut().find(|c| c.id == m.id).unwrap();
+        c.path = offgas::store::split_path(&m.to.replace(" / ", "/"));
+    }
+    assert!(run(&moved)
+        .findings
+        .iter()
+        .all(|f| f.severity < Severity::Stop));
+}
+
+#[test]
+fn the_suggestion_says_so_when_there_is_no_room() {
+    // One cabinet, one full tray: cyanide and acid cannot be separated.
+    let inv = store(
+        "name: tight\nlocations:\n  - { path: B / R / C1 / T1, capacity: 2 }\ncontainers:\n  - { id: A, location: B / R / C1 / T1, size: 0.5 L, substance: sodium cyanide, amount: 50 g }\n  - { id: B, location: B / R / C1 / T1, size: 1 L, substance: \"hydrochloric acid, concentrated\", amount: 0.5 L }\n",
+    );
+    let e = env();
+    let a = auditor(&e);
+    let judge = PairJudge::new(&a, &inv);
+    let s = offgas::store::suggest::suggest(&inv, &judge, true, 0);
+    assert!(!s.complete);
+    assert_eq!(s.stop_pairs_after, 1);
+    assert!(s.note.contains("no free place"), "{}", s.note);
+    assert!(!s.unresolved.is_empty());
+}
+
+#[test]
+fn the_html_report_is_well_formed_and_self_contained() {
+    let r = run(&demo_store());
+    let html = offgas::store::view::audit_html(&r);
+    assert!(html.starts_with("<!DOCTYPE html>") && html.trim_end().ends_with("</html>"));
+    for external in [
+        "http://", "https://", "<link", "<script", "src=", "@import", "url(",
+    ] {
+        assert!(!html.contains(external), "external asset: {external}");
+    }
+    assert_eq!(html.matches("<svg").count(), r.cabinets.len());
+    assert_eq!(html.matches("<svg").count(), html.matches("</svg>").count());
+    for tag in ["table", "tbody", "ul", "div"] {
+        assert_eq!(
+            html.matches(&format!("<{tag}")).count(),
+            html.matches(&format!("</{tag}>")).count(),
+            "{tag}"
+        );
+    }
+    assert!(html.contains("SB-01") && html.contains("Cautions"));
+}
+
+#[test]
+fn bad_inventories_are_refused_with_the_line() {
+    let err = |t: &str| {
+        Inventory::parse(catalog(), "inv.yaml", t)
+            .expect_err("refused")
+            .to_string()
+    };
+    let e = err("containers:\n  - { id: X, location: B / R / C, size: 1 L, substance: acetone, amount: 0.5 L }\n");
+    assert!(e.contains("inv.yaml:2") && e.contains("has 3 parts"), "{e}");
+    let e = err("containers:\n  - { id: X, location: B / R / C / T, size: 1 L, substance: unobtainium, amount: 5 g }\n");
+    assert!(e.contains("unknown substance"), "{e}");
+    let e = err("containers:\n  - { id: X, location: B / R / C / T, size: 0.1 L, substance: acetone, amount: 0.5 L }\n");
+    assert!(e.contains("more than its size"), "{e}");
+    let e = err("containers:\n  - { id: X, location: B / R / C / T, size: 1 L, substance: acetone, amount: 0.5 L }\n  - { id: X, location: B / R / C / T, size: 1 L, substance: acetone, amount: 0.5 L }\n");
+    assert!(
+        e.contains("inv.yaml:3") && e.contains("appears twice"),
+        "{e}"
+    );
+}
