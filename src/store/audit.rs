@@ -127,18 +127,40 @@ struct Profile {
     alone_score: f64,
 }
 
-/// A kind of contents: containers with the same kind share every result.
+/// Amounts that differ by less than this factor share a result (the larger one is used).
+const KIND_STEPS_PER_DECADE: f64 = 4.0;
+
+fn bin(x: f64) -> i64 {
+    if x > 0.0 {
+        (x.log10() * KIND_STEPS_PER_DECADE).ceil() as i64
+    } else {
+        i64::MIN
+    }
+}
+
+/// A kind of contents: the same substances in amounts within a bin. Containers of one kind
+/// share every result, computed for the fullest of them (the conservative choice).
 fn kind_key(c: &StoredContainer) -> String {
     match &c.contents {
-        Contents::Dry { substance, moles } => format!("dry:{}:{:.6e}", substance.0, moles),
+        Contents::Dry { substance, moles } => format!("dry:{}:{}", substance.0, bin(*moles)),
         Contents::Liquid(b) => {
             let mut parts: Vec<String> = b
                 .components
                 .iter()
-                .map(|x| format!("{}:{:.6e}", x.substance.0, x.moles))
+                .map(|x| format!("{}:{}", x.substance.0, bin(x.moles / b.volume_l)))
                 .collect();
             parts.sort();
-            format!("liq:{:.6e}:{}", b.volume_l, parts.join(","))
+            format!("liq:{}:{}", bin(b.volume_l), parts.join(","))
+        }
+    }
+}
+
+/// How much a container holds, to pick the fullest of a kind.
+fn fullness(c: &StoredContainer) -> f64 {
+    match &c.contents {
+        Contents::Dry { moles, .. } => *moles,
+        Contents::Liquid(b) => {
+            b.volume_l * (1.0 + b.components.iter().map(|x| x.moles).sum::<f64>())
         }
     }
 }
@@ -477,17 +499,20 @@ pub struct PairJudge<'a> {
 impl<'a> PairJudge<'a> {
     pub fn new(auditor: &'a Auditor<'a>, inv: &'a Inventory) -> PairJudge<'a> {
         let mut index: HashMap<String, usize> = HashMap::new();
-        let mut reps = Vec::new();
+        let mut reps: Vec<usize> = Vec::new();
         let kinds: Vec<usize> = inv
             .containers
             .iter()
             .enumerate()
             .map(|(i, c)| {
                 let n = index.len();
-                *index.entry(kind_key(c)).or_insert_with(|| {
+                let k = *index.entry(kind_key(c)).or_insert(n);
+                if k == reps.len() {
                     reps.push(i);
-                    n
-                })
+                } else if fullness(c) > fullness(&inv.containers[reps[k]]) {
+                    reps[k] = i;
+                }
+                k
             })
             .collect();
         let profiles: Vec<Profile> = reps
@@ -726,6 +751,6 @@ fn audit_assumptions(a: &Auditor) -> Vec<String> {
         format!("The puddle spreads over {} m2 for the release into the room; the room is the inventory's, or the thresholds file's default.", a.settings.spill_area_m2),
         "A dry solid dissolves whole into a liquid partner; two dry containers are judged by the rules alone, with any pH condition taken as possible.".into(),
         "Screening: a pair is checked in full only if a gas could form (a family whose volatile form appears on the partner's side of the pH), the pH gap of concentrated contents could release heat, a rule applies, or a container could not be screened; the rest are cleared without solving.".into(),
-        "Containers with identical contents share one result.".into(),
+        "Containers with the same substances in amounts within a factor of about 1.8 share one result, computed for the fullest of them.".into(),
     ]
 }

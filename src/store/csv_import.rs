@@ -1,40 +1,682 @@
-//! CSV import of an inventory (placeholder until the importer lands; refuses every file).
+//! CSV import of an inventory, since storerooms are kept in spreadsheets.
+//!
+//! A column mapping says which header holds each field. A row with no liquid volume is one
+//! container of a neat reagent (a substance and its amount). Several rows with the same id
+//! and a liquid volume are one solution: each row names a substance and its concentration
+//! (or its total amount in the solution). In the later rows of a solution, an empty
+//! location, size or volume cell means "as above".
+//!
+//! Every row that cannot be read is reported with its row number as a spreadsheet shows it
+//! (the header is row 1). The caller decides whether bad rows stop the import, with all of
+//! them listed at once, or are skipped and listed; a solution with one bad row is skipped
+//! whole, since what is left of it would not be what the container holds.
 
-use super::Inventory;
-use crate::batch::InputError;
-use crate::catalog::Catalog;
+use super::{neat_contents, split_path, Contents, Inventory, StoredContainer};
+use crate::batch::{Batch, InputError};
+use crate::catalog::{Catalog, PhysicalState};
+use crate::quantity::{parse_amount, parse_volume, Amount};
+use serde::{Deserialize, Serialize};
+use std::collections::{BTreeMap, HashMap};
 
-#[derive(Debug, Clone, Default)]
+/// Path components of a spill zone (building / room / cabinet / tray) and of a cabinet.
+const MEET_DEPTH: usize = 4;
+const CABINET_DEPTH: usize = 3;
+
+/// The header (first row) name of each field's column. Headers are matched without regard
+/// to case or surrounding spaces.
+#[derive(Debug, Clone, PartialEq, Eq)]
 pub struct ColumnMapping {
-    _placeholder: (),
+    pub id: String,
+    /// Name, synonym, formula or CAS number.
+    pub substance: String,
+    /// "500 g", "20 g/L", or a bare number with its unit in the `unit` column.
+    pub amount: String,
+    pub unit: Option<String>,
+    /// Container size with its unit ("2.5 L").
+    pub size: String,
+    /// Location path, "building / room / cabinet / tray".
+    pub location: String,
+    /// Liquid volume of a solution; a row without one is a neat reagent.
+    pub volume: Option<String>,
 }
 
-#[derive(Debug, Clone, serde::Serialize)]
+impl Default for ColumnMapping {
+    /// Headers `id, substance, amount, unit, size, location, volume`. Under this mapping
+    /// the `unit` and `volume` columns may be left out of the file; a mapping that names
+    /// an optional column requires it.
+    fn default() -> Self {
+        ColumnMapping {
+            id: "id".into(),
+            substance: "substance".into(),
+            amount: "amount".into(),
+            unit: Some("unit".into()),
+            size: "size".into(),
+            location: "location".into(),
+            volume: Some("volume".into()),
+        }
+    }
+}
+
+const KEYS: [&str; 7] = [
+    "id",
+    "substance",
+    "amount",
+    "unit",
+    "size",
+    "location",
+    "volume",
+];
+const REQUIRED: [&str; 5] = ["id", "substance", "amount", "size", "location"];
+
+impl ColumnMapping {
+    /// Builds a mapping from (field, header) pairs, naming every mistake at once.
+    fn from_pairs(pairs: Vec<(String, String)>) -> Result<ColumnMapping, String> {
+        let mut given: BTreeMap<&str, String> = BTreeMap::new();
+        let mut problems = Vec::new();
+        for (key, header) in &pairs {
+            let key = key.trim();
+            let header = header.trim();
+            match KEYS.iter().find(|k| **k == key) {
+                None => problems.push(format!(
+                    "`{key}` is not a field (the fields are: {})",
+                    KEYS.join(", ")
+                )),
+                Some(_) if header.is_empty() => {
+                    problems.push(format!("`{key}` has no header name"))
+                }
+                Some(k) => {
+                    if given.insert(k, header.to_string()).is_some() {
+                        problems.push(format!("`{key}` is given twice"));
+                    }
+                }
+            }
+        }
+        let missing: Vec<&str> = REQUIRED
+            .iter()
+            .copied()
+            .filter(|k| !given.contains_key(k))
+            .collect();
+        if !missing.is_empty() {
+            problems.push(format!(
+                "missing the column for: {} (required: {}; optional: unit, volume)",
+                missing.join(", "),
+                REQUIRED.join(", ")
+            ));
+        }
+        if !problems.is_empty() {
+            return Err(format!("column mapping: {}", problems.join("; ")));
+        }
+        let mut take = |k: &str| given.remove(k);
+        Ok(ColumnMapping {
+            id: take("id").unwrap_or_default(),
+            substance: take("substance").unwrap_or_default(),
+            amount: take("amount").unwrap_or_default(),
+            unit: take("unit"),
+            size: take("size").unwrap_or_default(),
+            location: take("location").unwrap_or_default(),
+            volume: take("volume"),
+        })
+    }
+}
+
+/// Reads a command-line mapping such as
+/// `id=Bottle ID,substance=Chemical,amount=Qty,unit=Unit,size=Container,location=Location`.
+pub fn parse_mapping(spec: &str) -> Result<ColumnMapping, String> {
+    let mut pairs = Vec::new();
+    for part in spec.split(',').filter(|p| !p.trim().is_empty()) {
+        let (k, v) = part.split_once('=').ok_or_else(|| {
+            format!(
+                "column mapping: `{}` is not `field=Header` (e.g. `id=Bottle ID,substance=Chemical,...`)",
+                part.trim()
+            )
+        })?;
+        pairs.push((k.to_string(), v.to_string()));
+    }
+    ColumnMapping::from_pairs(pairs)
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct MappingFile {
+    columns: BTreeMap<String, String>,
+    #[serde(default)]
+    #[allow(dead_code)]
+    note: Option<String>,
+}
+
+/// Reads a mapping file: `columns: { id: "Bottle ID", substance: Chemical, ... }`.
+pub fn mapping_from_yaml(text: &str) -> Result<ColumnMapping, String> {
+    let f: MappingFile = serde_yaml::from_str(text).map_err(|e| {
+        format!(
+            "not a readable column mapping: {e} (write it as `columns: {{ id: \"Bottle ID\", substance: Chemical, ... }}`)"
+        )
+    })?;
+    ColumnMapping::from_pairs(f.columns.into_iter().collect())
+}
+
+/// A row left out of the import, for the report.
+#[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct SkippedRow {
+    /// Row number as a spreadsheet shows it (the header is row 1).
     pub row: usize,
     pub id: Option<String>,
     pub message: String,
 }
 
-pub fn parse_mapping(_spec: &str) -> Result<ColumnMapping, String> {
-    Err("CSV import is not available yet".into())
+/// A row's problem, before it becomes an error or a skipped row.
+struct Bad {
+    row: usize,
+    id: Option<String>,
+    message: String,
+    fix: Option<String>,
 }
 
-pub fn mapping_from_yaml(_text: &str) -> Result<ColumnMapping, String> {
-    Err("CSV import is not available yet".into())
+/// One data row, cells trimmed ("" where the column is absent or the row is short).
+struct Row {
+    row: usize,
+    id: String,
+    substance: String,
+    amount: String,
+    unit: String,
+    size: String,
+    location: String,
+    volume: String,
 }
 
+/// Reads an inventory from CSV text. `file` names it in messages and becomes the
+/// inventory's name. With `skip_bad_rows`, rows that cannot be read are left out and
+/// returned; without it, any bad row makes the import fail with every bad row listed.
 pub fn import(
-    _cat: &Catalog,
+    cat: &Catalog,
     file: &str,
-    _text: &str,
-    _m: &ColumnMapping,
-    _skip: bool,
+    text: &str,
+    mapping: &ColumnMapping,
+    skip_bad_rows: bool,
 ) -> Result<(Inventory, Vec<SkippedRow>), Vec<InputError>> {
-    Err(vec![InputError {
-        file: file.into(),
-        line: None,
-        message: "CSV import is not available yet".into(),
-        fix: None,
-    }])
+    let file_err = |message: String, fix: Option<String>| {
+        vec![InputError {
+            file: file.to_string(),
+            line: Some(1),
+            message,
+            fix,
+        }]
+    };
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(delimiter(text))
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    let headers: Vec<String> = match reader.headers() {
+        Ok(h) => h.iter().map(|s| s.trim().to_string()).collect(),
+        Err(e) => {
+            return Err(file_err(
+                format!("the header row cannot be read: {e}"),
+                None,
+            ))
+        }
+    };
+    if headers.iter().all(|h| h.is_empty()) {
+        return Err(file_err(
+            "the file has no header row".into(),
+            Some(
+                "the first row names the columns, e.g. `id,substance,amount,size,location`".into(),
+            ),
+        ));
+    }
+    let cols = find_columns(&headers, mapping).map_err(|(m, fix)| file_err(m, Some(fix)))?;
+
+    let mut bad: Vec<Bad> = Vec::new();
+    let mut groups: Vec<(String, Vec<Row>)> = Vec::new();
+    let mut group_of: HashMap<String, usize> = HashMap::new();
+    let mut last_row = 1;
+    for record in reader.records() {
+        let record = match record {
+            Ok(r) => r,
+            Err(e) => {
+                let row = e
+                    .position()
+                    .map(|p| p.line() as usize)
+                    .unwrap_or(last_row + 1);
+                bad.push(Bad {
+                    row,
+                    id: None,
+                    message: format!("the row cannot be read: {e}"),
+                    fix: None,
+                });
+                last_row = row;
+                continue;
+            }
+        };
+        let row = record
+            .position()
+            .map(|p| p.line() as usize)
+            .unwrap_or(last_row + 1);
+        last_row = row;
+        if record.iter().all(|c| c.trim().is_empty()) {
+            continue;
+        }
+        let cell = |i: Option<usize>| {
+            i.and_then(|i| record.get(i))
+                .unwrap_or("")
+                .trim()
+                .to_string()
+        };
+        let r = Row {
+            row,
+            id: cell(Some(cols.id)),
+            substance: cell(Some(cols.substance)),
+            amount: cell(Some(cols.amount)),
+            unit: cell(cols.unit),
+            size: cell(Some(cols.size)),
+            location: cell(Some(cols.location)),
+            volume: cell(cols.volume),
+        };
+        if r.id.is_empty() {
+            bad.push(Bad {
+                row,
+                id: None,
+                message: "the row has no container id".into(),
+                fix: Some(format!(
+                    "give every container an id in the `{}` column",
+                    mapping.id
+                )),
+            });
+            continue;
+        }
+        match group_of.get(&r.id) {
+            Some(&g) => groups[g].1.push(r),
+            None => {
+                group_of.insert(r.id.clone(), groups.len());
+                groups.push((r.id.clone(), vec![r]));
+            }
+        }
+    }
+
+    let mut containers = Vec::with_capacity(groups.len());
+    let mut skipped_with: Vec<(usize, String, usize)> = Vec::new();
+    for (id, rows) in &groups {
+        match container(cat, file, mapping, id, rows) {
+            Ok(c) => containers.push(c),
+            Err(errs) => {
+                let first_bad = errs.iter().map(|b| b.row).min().unwrap_or(rows[0].row);
+                for r in rows {
+                    if !errs.iter().any(|b| b.row == r.row) {
+                        skipped_with.push((r.row, id.clone(), first_bad));
+                    }
+                }
+                bad.extend(errs);
+            }
+        }
+    }
+    bad.sort_by_key(|b| b.row);
+
+    if !bad.is_empty() && !skip_bad_rows {
+        return Err(bad
+            .into_iter()
+            .map(|b| InputError {
+                file: file.to_string(),
+                line: Some(b.row),
+                message: format!("row {}: {}", b.row, b.message),
+                fix: b.fix,
+            })
+            .collect());
+    }
+    let mut skipped: Vec<SkippedRow> = bad
+        .into_iter()
+        .map(|b| SkippedRow {
+            row: b.row,
+            id: b.id,
+            message: match b.fix {
+                Some(fix) => format!("{}; fix: {fix}", b.message),
+                None => b.message,
+            },
+        })
+        .collect();
+    skipped.extend(skipped_with.into_iter().map(|(row, id, first_bad)| SkippedRow {
+        row,
+        message: format!("skipped with the rest of container `{id}`, whose row {first_bad} cannot be read"),
+        id: Some(id),
+    }));
+    skipped.sort_by_key(|s| s.row);
+    let inventory = Inventory {
+        file: file.to_string(),
+        name: file.to_string(),
+        meet_depth: MEET_DEPTH,
+        cabinet_depth: CABINET_DEPTH,
+        rooms: Vec::new(),
+        locations: Vec::new(),
+        containers,
+    };
+    Ok((inventory, skipped))
+}
+
+/// The separator of the header line: a comma, or the semicolon or tab some spreadsheets
+/// write instead.
+fn delimiter(text: &str) -> u8 {
+    let first = text.lines().next().unwrap_or("");
+    [b',', b';', b'\t']
+        .into_iter()
+        .max_by_key(|d| (first.bytes().filter(|b| b == d).count(), *d == b','))
+        .unwrap_or(b',')
+}
+
+struct Columns {
+    id: usize,
+    substance: usize,
+    amount: usize,
+    unit: Option<usize>,
+    size: usize,
+    location: usize,
+    volume: Option<usize>,
+}
+
+/// Finds each mapped column in the header; names all missing ones at once.
+fn find_columns(headers: &[String], m: &ColumnMapping) -> Result<Columns, (String, String)> {
+    let lenient = *m == ColumnMapping::default();
+    let mut missing = Vec::new();
+    let mut twice = Vec::new();
+    let mut find = |name: &str, required: bool| -> Option<usize> {
+        let hits: Vec<usize> = (0..headers.len())
+            .filter(|&i| headers[i].eq_ignore_ascii_case(name.trim()))
+            .collect();
+        if hits.len() > 1 {
+            twice.push(format!("`{name}`"));
+        }
+        if hits.is_empty() && required {
+            missing.push(format!("`{name}`"));
+        }
+        hits.first().copied()
+    };
+    let id = find(&m.id, true);
+    let substance = find(&m.substance, true);
+    let amount = find(&m.amount, true);
+    let unit = m.unit.as_deref().and_then(|u| find(u, !lenient));
+    let size = find(&m.size, true);
+    let location = find(&m.location, true);
+    let volume = m.volume.as_deref().and_then(|v| find(v, !lenient));
+    let present = headers
+        .iter()
+        .filter(|h| !h.is_empty())
+        .map(|h| format!("`{h}`"))
+        .collect::<Vec<_>>()
+        .join(", ");
+    if !missing.is_empty() {
+        return Err((
+            format!("the header has no column {}; its columns are: {present}", missing.join(", ")),
+            "rename the columns in the spreadsheet, or give a column mapping such as `id=Bottle ID,substance=Chemical,amount=Qty,unit=Unit,size=Container,location=Location`".into(),
+        ));
+    }
+    if !twice.is_empty() {
+        return Err((
+            format!(
+                "the header has more than one column named {}",
+                twice.join(", ")
+            ),
+            "give each column its own header name".into(),
+        ));
+    }
+    match (id, substance, amount, size, location) {
+        (Some(id), Some(substance), Some(amount), Some(size), Some(location)) => Ok(Columns {
+            id,
+            substance,
+            amount,
+            unit,
+            size,
+            location,
+            volume,
+        }),
+        _ => unreachable!("every required column was found"),
+    }
+}
+
+/// A hint for numbers written with a decimal comma.
+fn comma_fix(text: &str) -> Option<String> {
+    text.contains(',')
+        .then(|| "write decimals with a point (2.5, not 2,5)".to_string())
+}
+
+/// A row's amount with its unit: the amount cell, or a bare number there with the unit
+/// cell after it.
+fn amount_text(r: &Row, m: &ColumnMapping) -> Result<String, (String, Option<String>)> {
+    if r.amount.is_empty() {
+        return Err((format!("no amount in the `{}` column", m.amount), None));
+    }
+    if r.amount.parse::<f64>().is_ok() {
+        if r.unit.is_empty() {
+            let fix = match &m.unit {
+                Some(u) => format!(
+                    "add the unit, e.g. `{} g`, or put it in the `{u}` column",
+                    r.amount
+                ),
+                None => format!("add the unit, e.g. `{} g`", r.amount),
+            };
+            return Err((format!("the amount `{}` has no unit", r.amount), Some(fix)));
+        }
+        return Ok(format!("{} {}", r.amount, r.unit));
+    }
+    let squeeze = |s: &str| s.chars().filter(|c| !c.is_whitespace()).collect::<String>();
+    let amount = squeeze(&r.amount);
+    if !r.unit.is_empty() && !amount.ends_with(&squeeze(&r.unit)) {
+        return Err((
+            format!(
+                "the amount `{}` has a unit of its own, and the unit column says `{}`",
+                r.amount, r.unit
+            ),
+            Some("give the unit in one place only".into()),
+        ));
+    }
+    Ok(r.amount.clone())
+}
+
+/// One container from its rows (one for a neat reagent, one or more for a solution).
+fn container(
+    cat: &Catalog,
+    file: &str,
+    m: &ColumnMapping,
+    id: &str,
+    rows: &[Row],
+) -> Result<StoredContainer, Vec<Bad>> {
+    let mut bad = Vec::new();
+    let mut add = |row: usize, message: String, fix: Option<String>| {
+        bad.push(Bad {
+            row,
+            id: Some(id.to_string()),
+            message: format!("container `{id}`: {message}"),
+            fix,
+        });
+    };
+
+    // Location, size and volume: the first filled cell; any other filled cell must agree.
+    let mut location: Option<(usize, Vec<String>)> = None;
+    let mut size: Option<(usize, f64)> = None;
+    let mut volume: Option<(usize, f64)> = None;
+    for r in rows {
+        if !r.location.is_empty() {
+            let path = split_path(&r.location);
+            match &location {
+                None if path.len() < MEET_DEPTH => add(
+                    r.row,
+                    format!(
+                        "location `{}` has {} parts; a spill zone needs {MEET_DEPTH} (building / room / cabinet / tray)",
+                        r.location,
+                        path.len()
+                    ),
+                    Some("write the whole path, e.g. `Main / Room 101 / Cabinet A / Tray 2`".into()),
+                ),
+                None => location = Some((r.row, path)),
+                Some((first, p)) if *p != path => add(
+                    r.row,
+                    format!("location `{}` differs from `{}` on row {first}", r.location, p.join(" / ")),
+                    Some("a container stands in one place: give each container its own id, or correct the location".into()),
+                ),
+                Some(_) => {}
+            }
+        }
+        for (cell, what, slot) in [
+            (&r.size, "size", &mut size),
+            (&r.volume, "volume", &mut volume),
+        ] {
+            if cell.is_empty() {
+                continue;
+            }
+            match parse_volume(cell) {
+                Err(e) => add(r.row, format!("{what}: {e}"), comma_fix(cell)),
+                Ok(l) => match slot {
+                    None => *slot = Some((r.row, l.0)),
+                    Some((first, v)) if (*v - l.0).abs() > 1e-9 * v.abs().max(1.0) => add(
+                        r.row,
+                        format!("{what} `{cell}` differs from the {what} on row {first} ({v} L)"),
+                        Some(format!("a container has one {what}: correct it, or leave the cell empty on the later rows")),
+                    ),
+                    Some(_) => {}
+                },
+            }
+        }
+    }
+    let first = rows[0].row;
+    if location.is_none() && rows.iter().all(|r| r.location.is_empty()) {
+        add(
+            first,
+            format!("no location in the `{}` column", m.location),
+            None,
+        );
+    }
+    if size.is_none() && rows.iter().all(|r| r.size.is_empty()) {
+        add(
+            first,
+            format!("no container size in the `{}` column", m.size),
+            Some("give it with its unit, e.g. `2.5 L`".into()),
+        );
+    }
+
+    let contents = match volume {
+        None => {
+            for r in &rows[1..] {
+                add(
+                    r.row,
+                    format!("the id is also on row {first}, and neither row gives a liquid volume"),
+                    Some("give every container its own id; only a solution (rows with a volume) spans several rows".into()),
+                );
+            }
+            neat(cat, file, m, id, &rows[0])
+                .map_err(|(msg, fix)| add(first, msg, fix))
+                .ok()
+        }
+        Some((_, volume_l)) => {
+            // Each row is checked on its own, so that every bad row is named.
+            let mut items = Vec::new();
+            for r in rows {
+                let item = if r.substance.is_empty() {
+                    Err((
+                        format!("no substance in the `{}` column", m.substance),
+                        None,
+                    ))
+                } else {
+                    amount_text(r, m).map(|a| (r.substance.clone(), a, Some(r.row)))
+                };
+                match item.and_then(|it| {
+                    Batch::from_parts(cat, file, id, volume_l, std::slice::from_ref(&it))
+                        .map(|_| it)
+                        .map_err(|e| (e.message, e.fix.or_else(|| comma_fix(&r.amount))))
+                }) {
+                    Ok(it) => items.push(it),
+                    Err((msg, fix)) => add(r.row, without_name(&msg, id), fix),
+                }
+            }
+            (items.len() == rows.len())
+                .then(|| Batch::from_parts(cat, file, id, volume_l, &items).map(Contents::Liquid))
+                .and_then(|b| {
+                    b.map_err(|e| add(first, without_name(&e.message, id), e.fix))
+                        .ok()
+                })
+        }
+    };
+
+    if let (Some(Contents::Liquid(b)), Some((row, size_l))) = (&contents, size) {
+        if b.volume_l > size_l * (1.0 + 1e-9) {
+            add(
+                row,
+                format!("holds {} L, more than its size of {size_l} L", b.volume_l),
+                Some(
+                    "check the amount (or volume) and the container size, with their units".into(),
+                ),
+            );
+        }
+    }
+    match (bad.is_empty(), location, size, contents) {
+        (true, Some((_, path)), Some((_, size_l)), Some(contents)) => Ok(StoredContainer {
+            id: id.to_string(),
+            path,
+            size_l,
+            contents,
+            line: Some(first),
+        }),
+        _ => Err(bad),
+    }
+}
+
+/// A neat reagent from its row: a mass or moles, or a volume of a liquid.
+fn neat(
+    cat: &Catalog,
+    file: &str,
+    m: &ColumnMapping,
+    id: &str,
+    r: &Row,
+) -> Result<Contents, (String, Option<String>)> {
+    if r.substance.is_empty() {
+        return Err((
+            format!("no substance in the `{}` column", m.substance),
+            None,
+        ));
+    }
+    let amount = amount_text(r, m)?;
+    let parsed = parse_amount(&amount).map_err(|e| (format!("amount: {e}"), comma_fix(&amount)))?;
+    match parsed {
+        Amount::Grams(_) | Amount::Moles(_) => {}
+        Amount::Millilitres(_) => {
+            if let Some(sid) = cat.find_substance(&r.substance) {
+                let s = cat.substance(sid);
+                if !matches!(s.state, PhysicalState::Liquid | PhysicalState::Solution) {
+                    return Err((
+                        format!(
+                            "`{}` is not a liquid, so `{amount}` cannot be its amount",
+                            s.name
+                        ),
+                        Some("give a neat solid or gas as a mass (g, kg) or in mol".into()),
+                    ));
+                }
+            }
+        }
+        _ => {
+            let fix = match &m.volume {
+                Some(v) => format!("give the solution's liquid volume in the `{v}` column"),
+                None => {
+                    "map a volume column (`volume=...`) to give the solution's liquid volume".into()
+                }
+            };
+            return Err((
+                format!("`{amount}` is a concentration, but the row gives no liquid volume"),
+                Some(fix),
+            ));
+        }
+    }
+    neat_contents(cat, file, id, &r.substance, &amount, Some(r.row)).map_err(|e| {
+        let prefix = format!("container `{id}`: ");
+        (
+            e.message
+                .strip_prefix(&prefix)
+                .unwrap_or(&e.message)
+                .to_string(),
+            e.fix,
+        )
+    })
+}
+
+/// A batch message without the container name it starts with (ours names the container).
+fn without_name(message: &str, id: &str) -> String {
+    [format!("`{id}`, "), format!("`{id}`: ")]
+        .iter()
+        .find_map(|p| message.strip_prefix(p.as_str()))
+        .unwrap_or(message)
+        .to_string()
 }
