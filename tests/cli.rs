@@ -505,3 +505,57 @@ fn a_bad_procedure_file_names_the_step_and_line() {
         .stderr(predicate::str::contains("proc.yaml:7"))
         .stderr(predicate::str::contains("unknown step kind `boil`"));
 }
+
+#[test]
+fn audit_exits_with_the_worst_finding_and_writes_html_on_request() {
+    offgas()
+        .args(["audit"])
+        .arg(demo("storeroom.yaml"))
+        .assert()
+        .code(4)
+        .stdout(predicate::str::contains("SB-01"))
+        .stdout(predicate::str::contains("Cabinet"));
+    let f = Files::new();
+    let out = f.dir.path().join("audit.html");
+    offgas()
+        .args(["audit", "--suggest", "--format", "html", "--output"])
+        .arg(&out)
+        .arg(demo("storeroom.yaml"))
+        .assert()
+        .code(4);
+    let html = std::fs::read_to_string(&out).unwrap();
+    assert!(html.contains("<svg") && html.contains("Suggested moves"));
+    offgas()
+        .args(["audit", "--format", "json", "--output"])
+        .arg(&out)
+        .arg(demo("storeroom.yaml"))
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("--force"));
+}
+
+#[test]
+fn a_csv_with_bad_rows_stops_before_computing_unless_told_to_skip() {
+    let fixtures = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/csv");
+    offgas()
+        .arg("audit")
+        .arg(fixtures.join("storeroom-bad.csv"))
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains("nothing was audited"))
+        .stderr(predicate::str::contains("row 3"));
+    let out = offgas()
+        .args(["audit", "--skip-bad-rows", "--format", "json"])
+        .arg(fixtures.join("storeroom-bad.csv"))
+        .output()
+        .unwrap();
+    assert!(matches!(out.status.code(), Some(0 | 3 | 4)), "{out:?}");
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let rows: Vec<u64> = v["skipped_rows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["row"].as_u64().unwrap())
+        .collect();
+    assert!(rows.contains(&3) && rows.contains(&4), "{rows:?}");
+}
