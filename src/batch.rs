@@ -9,6 +9,9 @@ use crate::quantity::{parse_amount, parse_temperature, parse_volume, Amount, Qua
 use serde::Deserialize;
 use std::fmt;
 
+/// Litres of water an empty container is taken to hold.
+pub const EMPTY_FILM_L: f64 = 1e-3;
+
 /// A mistake in something the user wrote.
 #[derive(Debug, Clone, PartialEq)]
 pub struct InputError {
@@ -158,7 +161,12 @@ impl Batch {
                 Some("add the liquid volume, e.g. `volume: 12 L`".into()),
             )
         })?;
-        let volume = ctx.quantity("volume", volume_v, parse_volume)?.0;
+        let mut volume = ctx.quantity("volume", volume_v, parse_volume)?.0;
+        // An empty container (it has a capacity and no contents) holds a film of water, so
+        // that the first pour into it has something to meet.
+        if volume == 0.0 && raw.capacity.is_some() && raw.contents.is_empty() {
+            volume = EMPTY_FILM_L;
+        }
         if volume <= 0.0 {
             return Err(ctx.err(
                 ctx.key_line("volume"),

@@ -15,6 +15,7 @@ pub mod path;
 pub mod pour;
 pub mod procedure;
 pub mod quantity;
+pub mod record;
 pub mod release;
 pub mod render;
 pub mod report;

@@ -16,6 +16,7 @@ use std::process::ExitCode;
 
 mod audit_cmd;
 mod demo;
+mod log_cmd;
 mod lookup;
 mod rules_cmd;
 
@@ -115,6 +116,11 @@ enum Command {
         #[arg(long, value_name = "FILE")]
         thresholds: Option<PathBuf>,
     },
+    /// A carboy's running record: start it, add to it (checked), show it, close it.
+    Log {
+        #[command(subcommand)]
+        action: LogAction,
+    },
     /// The hazard rules: list those in force, or validate a folder of site rules.
     Rules {
         #[command(subcommand)]
@@ -131,6 +137,44 @@ enum Command {
         #[arg(long, value_enum, default_value_t = Format::Table)]
         format: Format,
     },
+}
+
+#[derive(Subcommand)]
+enum LogAction {
+    /// Start a record from a container definition (empty, or with known contents).
+    New {
+        file: PathBuf,
+        #[arg(long, value_name = "CONTAINER")]
+        from: PathBuf,
+    },
+    /// Check a stream against what the record holds; record it if clear (or review with --accept).
+    Add {
+        file: PathBuf,
+        #[arg(long, value_name = "STREAM")]
+        stream: PathBuf,
+        /// Who is pouring.
+        #[arg(long, value_name = "NAME")]
+        by: String,
+        /// Record a review anyway, with the reason a competent person gave.
+        #[arg(long, value_name = "REASON")]
+        accept: Option<String>,
+        #[arg(long, value_enum, default_value_t = Format::Table)]
+        format: Format,
+    },
+    /// The history, what the carboy holds now, its fill level and headspace.
+    Show {
+        file: PathBuf,
+        #[arg(long, value_enum, default_value_t = LookupFormat::Text)]
+        format: LookupFormat,
+    },
+    /// Mark the carboy full and print its contents for the waste tag.
+    Close {
+        file: PathBuf,
+        #[arg(long, value_name = "NAME")]
+        by: String,
+    },
+    /// Check every entry's checksum and the seal; names the line where a record breaks.
+    Verify { file: PathBuf },
 }
 
 #[derive(Subcommand)]
@@ -236,6 +280,21 @@ fn main() -> ExitCode {
             site_rules,
             thresholds,
         }),
+        Command::Log { action } => match action {
+            LogAction::New { file, from } => log_cmd::new(&file, &from),
+            LogAction::Add {
+                file,
+                stream,
+                by,
+                accept,
+                format,
+            } => log_cmd::add(&file, &stream, &by, accept.as_deref(), format),
+            LogAction::Show { file, format } => {
+                log_cmd::show(&file, matches!(format, LookupFormat::Json))
+            }
+            LogAction::Close { file, by } => log_cmd::close(&file, &by),
+            LogAction::Verify { file } => log_cmd::verify(&file),
+        },
         Command::Rules { action } => match action {
             RulesAction::List { site_rules, format } => {
                 rules_cmd::list(site_rules.as_deref(), matches!(format, LookupFormat::Json))
