@@ -27,6 +27,8 @@ pub struct CheckOptions {
     pub air_changes_per_hour: Option<f64>,
     /// A spill of this area instead of the container's open surface, m2.
     pub spill_area_m2: Option<f64>,
+    /// How finely the pour is followed (coarse for audits of many pairs).
+    pub detail: crate::path::Detail,
 }
 
 #[derive(Debug, thiserror::Error)]
@@ -128,12 +130,14 @@ pub fn check(
         &|f| as_written.state(f).map(|x| x.0),
         a.liquid_l <= 0.0,
         &scorer,
+        opts.detail,
     )
     .map_err(solve_err("pouring the stream into the container"))?;
     let backward = scan(
         &|f| other_way.state(f).map(|x| x.0),
         b.liquid_l <= 0.0,
         &scorer,
+        opts.detail,
     )
     .map_err(solve_err("pouring the container into the stream"))?;
     let heat_at = |p: &Pour, f: f64| {

@@ -437,6 +437,7 @@ fn run_check(args: &CheckArgs) -> Result<u8> {
         room_volume_m3,
         air_changes_per_hour: args.air_changes,
         spill_area_m2,
+        detail: offgas::path::Detail::Full,
     };
     let a = read_batch(&cat, &args.container)?;
     let b = read_batch(&cat, &args.stream)?;

@@ -15,6 +15,21 @@ pub const SCAN: [f64; 33] = [
 /// Golden-section steps around the worst scanned point.
 const REFINE_STEPS: usize = 16;
 
+/// A coarser scan for screening many pairs (the storeroom audit): the same ends, fewer
+/// points between, fewer refinement steps.
+pub const SCAN_COARSE: [f64; 14] = [
+    0.0, 1e-3, 0.01, 0.03, 0.07, 0.15, 0.25, 0.4, 0.55, 0.7, 0.85, 0.95, 0.99, 1.0,
+];
+const REFINE_STEPS_COARSE: usize = 8;
+
+/// How finely a pour is followed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Detail {
+    #[default]
+    Full,
+    Coarse,
+}
+
 #[derive(Debug, Clone)]
 pub struct PathState {
     pub fraction_added: f64,
@@ -40,7 +55,12 @@ pub fn scan(
     state_at: &dyn Fn(f64) -> Result<Equilibrium, SolveError>,
     starts_empty: bool,
     score: &dyn Fn(&Equilibrium) -> f64,
+    detail: Detail,
 ) -> Result<PathScan, (f64, SolveError)> {
+    let (points, refine_steps): (&[f64], usize) = match detail {
+        Detail::Full => (&SCAN, REFINE_STEPS),
+        Detail::Coarse => (&SCAN_COARSE, REFINE_STEPS_COARSE),
+    };
     let at = |f: f64| -> Result<PathState, (f64, SolveError)> {
         let state = state_at(f).map_err(|e| (f, e))?;
         Ok(PathState {
@@ -51,8 +71,8 @@ pub fn scan(
     };
     // A vessel that starts empty has no state at "nothing added yet".
     let start = if starts_empty { 1 } else { 0 };
-    let mut states = Vec::with_capacity(SCAN.len() + REFINE_STEPS);
-    for &f in &SCAN[start..] {
+    let mut states = Vec::with_capacity(points.len() + refine_steps);
+    for &f in &points[start..] {
         states.push(at(f)?);
     }
     let (wi, _) = states
@@ -70,7 +90,7 @@ pub fn scan(
         let mut d = at(lo + g * (hi - lo))?;
         states.push(c.clone());
         states.push(d.clone());
-        for _ in 0..REFINE_STEPS {
+        for _ in 0..refine_steps {
             if c.score >= d.score {
                 hi = d.fraction_added;
                 d = c;

@@ -15,6 +15,7 @@ use crate::thresholds::Thresholds;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::collections::HashMap;
+use std::sync::Arc;
 
 #[derive(Debug, Clone)]
 pub struct AuditSettings {
@@ -58,12 +59,14 @@ pub struct PairOutcome {
 pub struct AuditFinding {
     pub severity: Severity,
     pub level: Level,
-    pub a: ContainerRef,
-    pub b: ContainerRef,
+    /// Shared between the findings of a container (large audits hold many).
+    pub a: Arc<ContainerRef>,
+    pub b: Arc<ContainerRef>,
     pub worst_ratio: f64,
     pub gas: Option<String>,
-    pub headline: String,
-    pub codes: Vec<String>,
+    /// Shared between every pair with the same contents.
+    pub headline: Arc<str>,
+    pub codes: Arc<[String]>,
     pub computed: bool,
 }
 
@@ -128,7 +131,7 @@ struct Profile {
 }
 
 /// Amounts that differ by less than this factor share a result (the larger one is used).
-const KIND_STEPS_PER_DECADE: f64 = 4.0;
+const KIND_STEPS_PER_DECADE: f64 = 3.0;
 
 fn bin(x: f64) -> i64 {
     if x > 0.0 {
@@ -482,7 +485,10 @@ pub struct Auditor<'a> {
 }
 
 /// Two kinds of contents (in order) and the room they meet in.
-type PairKey = (usize, usize, Option<usize>);
+pub type PairKey = (usize, usize, Option<usize>);
+
+/// A pair of a cabinet that is not clear: (i, j, level, severity, worst ratio).
+type CabinetHit = (usize, usize, Level, Severity, f64);
 
 /// Pair results by kind, shared with the suggestion search.
 pub struct PairJudge<'a> {
@@ -539,7 +545,7 @@ impl<'a> PairJudge<'a> {
         }
     }
 
-    fn key(&self, i: usize, j: usize) -> PairKey {
+    pub fn key(&self, i: usize, j: usize) -> PairKey {
         let (a, b) = (self.kinds[i], self.kinds[j]);
         (a.min(b), a.max(b), self.room_index[i])
     }
@@ -565,6 +571,7 @@ impl<'a> PairJudge<'a> {
             room_volume_m3: r.map(|r| r.volume_m3),
             air_changes_per_hour: r.map(|r| r.air_changes_per_hour),
             spill_area_m2: Some(self.auditor.settings.spill_area_m2),
+            detail: crate::path::Detail::Coarse,
         }
     }
 
@@ -627,17 +634,22 @@ impl Auditor<'_> {
             .collect();
         judge.judge_all(&to_check, progress);
         let cat = self.cat;
-        let cref = |i: usize| {
-            let c = &inv.containers[i];
-            ContainerRef {
-                id: c.id.clone(),
-                location: c.location(),
-                contents: describe(cat, c),
-            }
+        let mut refs: HashMap<usize, Arc<ContainerRef>> = HashMap::new();
+        let mut cref = |i: usize| {
+            refs.entry(i)
+                .or_insert_with(|| {
+                    let c = &inv.containers[i];
+                    Arc::new(ContainerRef {
+                        id: c.id.clone(),
+                        location: c.location(),
+                        contents: describe(cat, c),
+                    })
+                })
+                .clone()
         };
+        let mut shared: HashMap<PairKey, (Arc<str>, Arc<[String]>)> = HashMap::new();
         let mut findings = Vec::new();
-        let mut by_cabinet: HashMap<String, Vec<(usize, usize, Level, PairOutcome)>> =
-            HashMap::new();
+        let mut by_cabinet: HashMap<String, Vec<CabinetHit>> = HashMap::new();
         let checked: std::collections::HashSet<(usize, usize)> = to_check.iter().copied().collect();
         for &(i, j, level) in &pairs {
             if !checked.contains(&(i, j)) {
@@ -647,10 +659,14 @@ impl Auditor<'_> {
             if o.severity < Severity::Review {
                 continue;
             }
+            let (headline, codes) = shared
+                .entry(judge.key(i, j))
+                .or_insert_with(|| (Arc::from(o.headline.as_str()), Arc::from(o.codes.clone())))
+                .clone();
             by_cabinet
                 .entry(inv.containers[i].zone(inv.cabinet_depth))
                 .or_default()
-                .push((i, j, level, o.clone()));
+                .push((i, j, level, o.severity, o.worst_ratio));
             findings.push(AuditFinding {
                 severity: o.severity,
                 level,
@@ -658,8 +674,8 @@ impl Auditor<'_> {
                 b: cref(j),
                 worst_ratio: o.worst_ratio,
                 gas: o.gas,
-                headline: o.headline,
-                codes: o.codes,
+                headline,
+                codes,
                 computed: o.computed,
             });
         }
@@ -686,12 +702,12 @@ impl Auditor<'_> {
                         .collect(),
                     cells: hits
                         .iter()
-                        .map(|(i, j, level, o)| MatrixCell {
+                        .map(|(i, j, level, severity, ratio)| MatrixCell {
                             i: pos(*i),
                             j: pos(*j),
-                            severity: o.severity,
+                            severity: *severity,
                             level: *level,
-                            worst_ratio: o.worst_ratio,
+                            worst_ratio: *ratio,
                         })
                         .collect(),
                 }
@@ -747,10 +763,10 @@ fn audit_assumptions(a: &Auditor) -> Vec<String> {
                 "containers in the same cabinet on different trays are not paired (--no-cabinet-level)"
             }
         ),
-        "A leak-together case pours each container's whole contents into the other's, in every ratio between, in an open puddle; both orders are scanned as in `offgas check`.".into(),
+        "A leak-together case pours each container's whole contents into the other's, in every ratio between, in an open puddle; both orders are scanned as in `offgas check`, at 14 points each with 8 refinement steps around the worst.".into(),
         format!("The puddle spreads over {} m2 for the release into the room; the room is the inventory's, or the thresholds file's default.", a.settings.spill_area_m2),
         "A dry solid dissolves whole into a liquid partner; two dry containers are judged by the rules alone, with any pH condition taken as possible.".into(),
         "Screening: a pair is checked in full only if a gas could form (a family whose volatile form appears on the partner's side of the pH), the pH gap of concentrated contents could release heat, a rule applies, or a container could not be screened; the rest are cleared without solving.".into(),
-        "Containers with the same substances in amounts within a factor of about 1.8 share one result, computed for the fullest of them.".into(),
+        "Containers with the same substances in amounts within a factor of about 2.2 share one result, computed for the fullest of them.".into(),
     ]
 }
