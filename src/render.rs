@@ -274,14 +274,11 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
         }
         let _ = writeln!(out, "{t}");
     }
-    let _ = writeln!(out, "\nAssumptions");
-    for a in &r.assumptions {
-        let _ = writeln!(out, "  - {a}");
-    }
-    let _ = writeln!(out, "\nCautions");
-    for c in &r.cautions {
-        let _ = writeln!(out, "  - {c}");
-    }
+    out.push_str(&closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        ListStyle::Terminal,
+    ));
     out
 }
 
@@ -487,13 +484,47 @@ pub fn check_markdown(r: &CheckReport, v: View) -> String {
             p.volatile_products.join(", ")
         );
     }
-    let _ = writeln!(out, "\n## Assumptions\n");
-    for a in &r.assumptions {
-        let _ = writeln!(out, "- {a}");
-    }
-    let _ = writeln!(out, "\n## Cautions\n");
-    for c in &r.cautions {
-        let _ = writeln!(out, "- {c}");
+    out.push_str(&closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        ListStyle::Markdown,
+    ));
+    out
+}
+
+/// How a list of lines is laid out.
+#[derive(Debug, Clone, Copy)]
+pub enum ListStyle {
+    Terminal,
+    Markdown,
+    Html,
+}
+
+/// The assumptions and cautions that end every report, in one layout for every format.
+pub fn closing_lists(assumptions: &[String], cautions: &[String], style: ListStyle) -> String {
+    let mut out = String::new();
+    for (title, items) in [("Assumptions", assumptions), ("Cautions", cautions)] {
+        match style {
+            ListStyle::Terminal => {
+                let _ = writeln!(out, "\n{title}");
+                for i in items {
+                    let _ = writeln!(out, "  - {i}");
+                }
+            }
+            ListStyle::Markdown => {
+                let _ = writeln!(out, "\n## {title}\n");
+                for i in items {
+                    let _ = writeln!(out, "- {i}");
+                }
+            }
+            ListStyle::Html => {
+                let _ = writeln!(out, "<h2>{title}</h2><ul>");
+                for i in items {
+                    let _ = writeln!(out, "<li>{}</li>", crate::sheet::esc(i));
+                }
+                let _ = writeln!(out, "</ul>");
+            }
+        }
     }
     out
 }

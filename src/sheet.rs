@@ -130,14 +130,11 @@ pub fn procedure_table(r: &ProcedureReport) -> String {
             let _ = writeln!(out, "  step {} [{}] {}", s.number, f.severity, f.message);
         }
     }
-    let _ = writeln!(out, "\nAssumptions");
-    for a in &r.assumptions {
-        let _ = writeln!(out, "  - {a}");
-    }
-    let _ = writeln!(out, "\nCautions");
-    for c in &r.cautions {
-        let _ = writeln!(out, "  - {c}");
-    }
+    out.push_str(&crate::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::render::ListStyle::Terminal,
+    ));
     let _ = writeln!(out);
     for s in &r.sign_off {
         let _ = writeln!(out, "{s}: ______________________________");
@@ -208,14 +205,11 @@ pub fn procedure_markdown(r: &ProcedureReport) -> String {
             );
         }
     }
-    let _ = writeln!(out, "\n## Assumptions\n");
-    for a in &r.assumptions {
-        let _ = writeln!(out, "- {a}");
-    }
-    let _ = writeln!(out, "\n## Cautions\n");
-    for c in &r.cautions {
-        let _ = writeln!(out, "- {c}");
-    }
+    out.push_str(&crate::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::render::ListStyle::Markdown,
+    ));
     let _ = writeln!(out, "\n## Sign-off\n");
     for s in &r.sign_off {
         let _ = writeln!(out, "{s}: ______________________________  \n");
@@ -334,15 +328,13 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
             );
         }
     }
-    let _ = writeln!(out, "</ul>\n<h2>Assumptions</h2><ul>");
-    for a in &r.assumptions {
-        let _ = writeln!(out, "<li>{}</li>", esc(a));
-    }
-    let _ = writeln!(out, "</ul>\n<h2>Cautions</h2><ul>");
-    for c in &r.cautions {
-        let _ = writeln!(out, "<li>{}</li>", esc(c));
-    }
-    let _ = writeln!(out, "</ul>\n<div class=\"sign\">");
+    let _ = writeln!(out, "</ul>");
+    out.push_str(&crate::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::render::ListStyle::Html,
+    ));
+    let _ = writeln!(out, "<div class=\"sign\">");
     for s in &r.sign_off {
         let _ = writeln!(
             out,

@@ -128,14 +128,11 @@ pub fn audit_table(r: &AuditReport) -> String {
             let _ = writeln!(out, "  not resolved: {u}");
         }
     }
-    let _ = writeln!(out, "\nAssumptions");
-    for a in &r.assumptions {
-        let _ = writeln!(out, "  - {a}");
-    }
-    let _ = writeln!(out, "\nCautions");
-    for c in &r.cautions {
-        let _ = writeln!(out, "  - {c}");
-    }
+    out.push_str(&crate::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::render::ListStyle::Terminal,
+    ));
     out
 }
 
@@ -299,14 +296,11 @@ pub fn audit_html(r: &AuditReport) -> String {
         }
         let _ = writeln!(out, "</ul>");
     }
-    let _ = writeln!(out, "<h2>Assumptions</h2><ul>");
-    for a in &r.assumptions {
-        let _ = writeln!(out, "<li>{}</li>", esc(a));
-    }
-    let _ = writeln!(out, "</ul><h2>Cautions</h2><ul>");
-    for c in &r.cautions {
-        let _ = writeln!(out, "<li>{}</li>", esc(c));
-    }
-    let _ = writeln!(out, "</ul>\n</body>\n</html>");
+    out.push_str(&crate::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::render::ListStyle::Html,
+    ));
+    let _ = writeln!(out, "</body>\n</html>");
     out
 }
