@@ -167,7 +167,10 @@ fn gas_severity(th: &Thresholds, g: &GasReport) -> Severity {
 }
 
 pub fn fmt_ppm(v: f64) -> String {
-    if v >= 100.0 {
+    if v > 1e6 {
+        // A partial pressure above one atmosphere: the gas would boil off, not sit in air.
+        format!("{v:.0} ppm (a partial pressure above 1 atm: it boils off)")
+    } else if v >= 100.0 {
         format!("{v:.0} ppm")
     } else if v >= 1.0 {
         format!("{v:.1} ppm")

@@ -255,3 +255,19 @@ proptest! {
         prop_assert!(steady_state(g, &room(v, ach + more)) <= steady_state(g, &room(v, ach)) * (1.0 + 1e-12));
     }
 }
+
+#[test]
+fn the_heat_data_and_water_ionization_agree() {
+    // data/heat.yaml states H+ + OH- → H2O as −55.8 kJ/mol (CODATA key values); the
+    // speciation uses the ionization enthalpy of water from data/species.yaml. They are the
+    // same number with opposite signs, or the heat of neutralization would depend on which
+    // file was read.
+    let cat = catalog();
+    let water = cat.family(cat.water).steps[0].dh;
+    assert!(
+        (cat.neutralization_kj + water).abs() < 0.2,
+        "{} vs {}",
+        cat.neutralization_kj,
+        water
+    );
+}

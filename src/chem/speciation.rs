@@ -496,15 +496,27 @@ fn ionic_strength(p: &Prepared, x: f64) -> f64 {
     let oh = p.kw / (x * p.gamma1);
     let mut sum = p.strong_ionic + h + oh;
     let mut w = [0.0; MAX_STEPS + 1];
-    let totals = p.totals(x);
+    // Only a linked family's total changes with x; the common case needs no copy.
+    let totals = if p.links.is_empty() {
+        None
+    } else {
+        Some(p.totals(x))
+    };
     for l in &p.links {
         let z = l.charge as f64;
         sum += z * z * p.link_amount(l, x) / (1.0 + l.gas_factor);
     }
-    for (t, &total) in p.terms.iter().zip(&totals) {
-        let mut t = *t;
-        t.c_total = total.max(0.0);
-        let t = &t;
+    for (k, t) in p.terms.iter().enumerate() {
+        let adjusted;
+        let t = match &totals {
+            Some(tt) => {
+                let mut c = *t;
+                c.c_total = tt[k].max(0.0);
+                adjusted = c;
+                &adjusted
+            }
+            None => t,
+        };
         let d = weights(t, x, &mut w);
         let c_aq = liquid_total(t, &w, d);
         for (j, wj) in w.iter().enumerate().take(t.n + 1) {
