@@ -1,8 +1,9 @@
 //! `offgas audit`: read an inventory (YAML or CSV), audit every pair that can meet,
 //! optionally suggest moves, print or write the report.
 
-use crate::{load_catalog, load_thresholds, print, rules_cmd, SheetFormat};
+use crate::{load_catalog, load_thresholds, print, rules_cmd};
 use anyhow::{anyhow, Context, Result};
+use clap::ValueEnum;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use offgas::store::audit::{AuditSettings, Auditor, PairJudge};
 use offgas::store::csv_import::{import, mapping_from_yaml, parse_mapping, ColumnMapping};
@@ -11,18 +12,48 @@ use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
+#[derive(Clone, Copy, ValueEnum)]
+pub enum AuditFormat {
+    Table,
+    Json,
+    Html,
+}
+
+/// The arguments of `offgas audit`.
+#[derive(clap::Args)]
 pub struct AuditArgs {
+    /// The inventory: YAML, or CSV (by the .csv extension) with a column mapping.
     pub inventory: PathBuf,
+    /// CSV column mapping, e.g. "id=Bottle,substance=Chemical,amount=Qty,unit=Unit,size=Size,location=Location".
+    #[arg(long, value_name = "SPEC")]
     pub columns: Option<String>,
+    /// CSV column mapping from a small YAML file (`columns: {id: ..., ...}`).
+    #[arg(long, value_name = "FILE")]
     pub mapping: Option<PathBuf>,
+    /// Audit the rows that can be read and list the others, instead of stopping.
+    #[arg(long)]
     pub skip_bad_rows: bool,
+    /// Propose moves that remove every stop pair and as many review pairs as possible.
+    #[arg(long)]
     pub suggest: bool,
-    pub format: SheetFormat,
+    #[arg(long, value_enum, default_value_t = AuditFormat::Table)]
+    pub format: AuditFormat,
+    /// Write the report to this file (never overwrites without --force).
+    #[arg(long, value_name = "FILE")]
     pub output: Option<PathBuf>,
+    #[arg(long)]
     pub force: bool,
+    /// Pair only containers that share a spill zone, not a whole cabinet.
+    #[arg(long)]
     pub no_cabinet_level: bool,
+    /// Area a leak spreads over, e.g. "0.25 m2" (default in rules/thresholds.yaml).
+    #[arg(long, value_name = "AREA")]
     pub spill_area: Option<String>,
+    /// A folder of the site's own rule files, layered over the built-in rules.
+    #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
     pub site_rules: Option<PathBuf>,
+    /// A thresholds file to use instead of the bundled rules/thresholds.yaml.
+    #[arg(long, value_name = "FILE")]
     pub thresholds: Option<PathBuf>,
 }
 
@@ -147,12 +178,9 @@ pub fn run(a: AuditArgs) -> Result<u8> {
         ));
     }
     let text = match a.format {
-        SheetFormat::Table => offgas::store::view::audit_table(&report),
-        SheetFormat::Html => offgas::store::view::audit_html(&report),
-        SheetFormat::Json => serde_json::to_string_pretty(&report)? + "\n",
-        SheetFormat::Markdown => {
-            return Err(anyhow!("the audit report comes as table, json or html"))
-        }
+        AuditFormat::Table => offgas::store::view::audit_table(&report),
+        AuditFormat::Html => offgas::store::view::audit_html(&report),
+        AuditFormat::Json => serde_json::to_string_pretty(&report)? + "\n",
     };
     match &a.output {
         Some(out) => {

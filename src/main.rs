@@ -31,36 +31,7 @@ struct Cli {
 #[derive(Subcommand)]
 enum Command {
     /// Check pouring a stream into a container: gas in the headspace, along the pour and at the end.
-    Check {
-        /// The container file (YAML): capacity, volume, closure, contents.
-        container: PathBuf,
-        /// The stream file (YAML) to pour in.
-        #[arg(long = "add", value_name = "STREAM")]
-        stream: PathBuf,
-        #[arg(long, value_enum, default_value_t = Format::Table)]
-        format: Format,
-        /// Temperature of both batches, e.g. "30 °C" (overrides the files).
-        #[arg(long, value_name = "T")]
-        temperature: Option<String>,
-        /// A thresholds file to use instead of the bundled rules/thresholds.yaml.
-        #[arg(long, value_name = "FILE")]
-        thresholds: Option<PathBuf>,
-        /// Show every proton-transfer pair, not only those that matter.
-        #[arg(long)]
-        all_pairs: bool,
-        /// A folder of the site's own rule files, layered over the built-in rules.
-        #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
-        site_rules: Option<PathBuf>,
-        /// Volume of the room the container stands in, e.g. "40 m3" (default in rules/thresholds.yaml).
-        #[arg(long, value_name = "VOLUME")]
-        room: Option<String>,
-        /// Air changes per hour in that room (default in rules/thresholds.yaml).
-        #[arg(long, value_name = "N")]
-        air_changes: Option<f64>,
-        /// Judge a spill of this area (e.g. "1 m2") instead of the container's open surface.
-        #[arg(long, value_name = "AREA")]
-        spill_area: Option<String>,
-    },
+    Check(CheckArgs),
     /// Check a cleaning or decontamination procedure step by step and print its approval sheet.
     Procedure {
         /// The procedure file (YAML): the vessel and its steps.
@@ -81,41 +52,7 @@ enum Command {
         thresholds: Option<PathBuf>,
     },
     /// Audit a storeroom: every pair of containers that can meet if they leak, ranked.
-    Audit {
-        /// The inventory: YAML, or CSV (by the .csv extension) with a column mapping.
-        inventory: PathBuf,
-        /// CSV column mapping, e.g. "id=Bottle,substance=Chemical,amount=Qty,unit=Unit,size=Size,location=Location".
-        #[arg(long, value_name = "SPEC")]
-        columns: Option<String>,
-        /// CSV column mapping from a small YAML file (`columns: {id: ..., ...}`).
-        #[arg(long, value_name = "FILE")]
-        mapping: Option<PathBuf>,
-        /// Audit the rows that can be read and list the others, instead of stopping.
-        #[arg(long)]
-        skip_bad_rows: bool,
-        /// Propose moves that remove every stop pair and as many review pairs as possible.
-        #[arg(long)]
-        suggest: bool,
-        #[arg(long, value_enum, default_value_t = SheetFormat::Table)]
-        format: SheetFormat,
-        /// Write the report to this file (never overwrites without --force).
-        #[arg(long, value_name = "FILE")]
-        output: Option<PathBuf>,
-        #[arg(long)]
-        force: bool,
-        /// Pair only containers that share a spill zone, not a whole cabinet.
-        #[arg(long)]
-        no_cabinet_level: bool,
-        /// Area a leak spreads over, e.g. "0.25 m2" (default in rules/thresholds.yaml).
-        #[arg(long, value_name = "AREA")]
-        spill_area: Option<String>,
-        /// A folder of the site's own rule files, layered over the built-in rules.
-        #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
-        site_rules: Option<PathBuf>,
-        /// A thresholds file to use instead of the bundled rules/thresholds.yaml.
-        #[arg(long, value_name = "FILE")]
-        thresholds: Option<PathBuf>,
-    },
+    Audit(audit_cmd::AuditArgs),
     /// A carboy's running record: start it, add to it (checked), show it, close it.
     Log {
         #[command(subcommand)]
@@ -215,29 +152,7 @@ enum LookupFormat {
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
-        Command::Check {
-            container,
-            stream,
-            format,
-            temperature,
-            thresholds,
-            all_pairs,
-            site_rules,
-            room,
-            air_changes,
-            spill_area,
-        } => run_check(&CheckArgs {
-            container,
-            stream,
-            format,
-            temperature,
-            thresholds,
-            all_pairs,
-            site_rules,
-            room,
-            air_changes,
-            spill_area,
-        }),
+        Command::Check(args) => run_check(&args),
         Command::Procedure {
             file,
             format,
@@ -253,33 +168,7 @@ fn main() -> ExitCode {
             site_rules.as_deref(),
             thresholds.as_deref(),
         ),
-        Command::Audit {
-            inventory,
-            columns,
-            mapping,
-            skip_bad_rows,
-            suggest,
-            format,
-            output,
-            force,
-            no_cabinet_level,
-            spill_area,
-            site_rules,
-            thresholds,
-        } => audit_cmd::run(audit_cmd::AuditArgs {
-            inventory,
-            columns,
-            mapping,
-            skip_bad_rows,
-            suggest,
-            format,
-            output,
-            force,
-            no_cabinet_level,
-            spill_area,
-            site_rules,
-            thresholds,
-        }),
+        Command::Audit(args) => audit_cmd::run(args),
         Command::Log { action } => match action {
             LogAction::New { file, from } => log_cmd::new(&file, &from),
             LogAction::Add {
@@ -372,16 +261,36 @@ pub(crate) fn render(
     })
 }
 
+/// The arguments of `offgas check`.
+#[derive(clap::Args)]
 struct CheckArgs {
+    /// The container file (YAML): capacity, volume, closure, contents.
     container: PathBuf,
+    /// The stream file (YAML) to pour in.
+    #[arg(long = "add", value_name = "STREAM")]
     stream: PathBuf,
+    #[arg(long, value_enum, default_value_t = Format::Table)]
     format: Format,
+    /// Temperature of both batches, e.g. "30 °C" (overrides the files).
+    #[arg(long, value_name = "T")]
     temperature: Option<String>,
+    /// A thresholds file to use instead of the bundled rules/thresholds.yaml.
+    #[arg(long, value_name = "FILE")]
     thresholds: Option<PathBuf>,
+    /// Show every proton-transfer pair, not only those that matter.
+    #[arg(long)]
     all_pairs: bool,
+    /// A folder of the site's own rule files, layered over the built-in rules.
+    #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
     site_rules: Option<PathBuf>,
+    /// Volume of the room the container stands in, e.g. "40 m3" (default in rules/thresholds.yaml).
+    #[arg(long, value_name = "VOLUME")]
     room: Option<String>,
+    /// Air changes per hour in that room (default in rules/thresholds.yaml).
+    #[arg(long, value_name = "N")]
     air_changes: Option<f64>,
+    /// Judge a spill of this area (e.g. "1 m2") instead of the container's open surface.
+    #[arg(long, value_name = "AREA")]
     spill_area: Option<String>,
 }
 

@@ -3,7 +3,7 @@
 
 use super::{Leave, Procedure, Step, StepKind};
 use crate::assess::{state_findings, state_report};
-use crate::batch::{Batch, Component, InputError};
+use crate::batch::{Batch, InputError};
 use crate::catalog::Catalog;
 use crate::check::{check, CheckError, CheckOptions};
 use crate::chem::solve;
@@ -109,23 +109,9 @@ fn step_error(p: &Procedure, step: &Step, message: String, fix: Option<String>) 
 }
 
 /// The vessel's contents after `added` has been poured in and the mixture has reached
-/// `temperature_k`: components summed by substance.
+/// `temperature_k` (the heat of the pour included).
 fn merged(vessel: &Batch, added: &Batch, temperature_k: f64) -> Batch {
-    let mut out = vessel.clone();
-    for c in &added.components {
-        match out
-            .components
-            .iter_mut()
-            .find(|x| x.substance == c.substance)
-        {
-            Some(x) => x.moles += c.moles,
-            None => out.components.push(Component {
-                line: None,
-                ..c.clone()
-            }),
-        }
-    }
-    out.volume_l += added.volume_l;
+    let mut out = crate::record::pour_into(vessel, added);
     out.temperature_k = temperature_k;
     out.temperature_given = true;
     out
