@@ -72,16 +72,7 @@ const AREA_UNITS: &str = "m2, cm2, ft2";
 /// Parses a gauge pressure ("30 kPa", "0.3 bar", "5 psi") into kPa.
 pub fn parse_pressure_kpa(text: &str) -> Result<f64, QuantityError> {
     const EXAMPLE: &str = "30 kPa";
-    let (v, unit) = split_number(text, EXAMPLE)?;
-    if unit.is_empty() {
-        return Err(QuantityError::NoUnit {
-            text: text.to_string(),
-            example: EXAMPLE,
-        });
-    }
-    if v < 0.0 {
-        return Err(QuantityError::Negative(text.to_string()));
-    }
+    let (v, unit) = measured(text, EXAMPLE, true)?;
     let kpa = match unit.to_lowercase().as_str() {
         "kpa" => v,
         "pa" => v / 1e3,
@@ -103,16 +94,7 @@ pub fn parse_pressure_kpa(text: &str) -> Result<f64, QuantityError> {
 /// Parses an area ("0.05 m2", "400 cm2") into m2.
 pub fn parse_area_m2(text: &str) -> Result<f64, QuantityError> {
     const EXAMPLE: &str = "0.5 m2";
-    let (v, unit) = split_number(text, EXAMPLE)?;
-    if unit.is_empty() {
-        return Err(QuantityError::NoUnit {
-            text: text.to_string(),
-            example: EXAMPLE,
-        });
-    }
-    if v < 0.0 {
-        return Err(QuantityError::Negative(text.to_string()));
-    }
+    let (v, unit) = measured(text, EXAMPLE, true)?;
     let m2 = match unit.as_str() {
         "m2" | "m²" | "m^2" => v,
         "cm2" | "cm²" | "cm^2" => v / 1e4,
@@ -161,19 +143,29 @@ fn split_number(text: &str, example: &'static str) -> Result<(f64, String), Quan
     Ok((value, unit))
 }
 
-/// Parses an amount of a component: a concentration per litre of batch or a total.
-pub fn parse_amount(text: &str) -> Result<Amount, QuantityError> {
-    const EXAMPLE: &str = "0.1 mol/L";
-    let (v, unit) = split_number(text, EXAMPLE)?;
+/// A number with a unit, both required; `non_negative` refuses values below zero.
+fn measured(
+    text: &str,
+    example: &'static str,
+    non_negative: bool,
+) -> Result<(f64, String), QuantityError> {
+    let (v, unit) = split_number(text, example)?;
     if unit.is_empty() {
         return Err(QuantityError::NoUnit {
             text: text.to_string(),
-            example: EXAMPLE,
+            example,
         });
     }
-    if v < 0.0 {
+    if non_negative && v < 0.0 {
         return Err(QuantityError::Negative(text.to_string()));
     }
+    Ok((v, unit))
+}
+
+/// Parses an amount of a component: a concentration per litre of batch or a total.
+pub fn parse_amount(text: &str) -> Result<Amount, QuantityError> {
+    const EXAMPLE: &str = "0.1 mol/L";
+    let (v, unit) = measured(text, EXAMPLE, true)?;
     let percent = |v: f64| {
         if v > 100.0 {
             Err(QuantityError::OverHundredPercent(text.to_string()))
@@ -222,16 +214,7 @@ pub fn parse_amount(text: &str) -> Result<Amount, QuantityError> {
 /// Parses a volume ("12 L", "500 mL").
 pub fn parse_volume(text: &str) -> Result<Litres, QuantityError> {
     const EXAMPLE: &str = "12 L";
-    let (v, unit) = split_number(text, EXAMPLE)?;
-    if unit.is_empty() {
-        return Err(QuantityError::NoUnit {
-            text: text.to_string(),
-            example: EXAMPLE,
-        });
-    }
-    if v < 0.0 {
-        return Err(QuantityError::Negative(text.to_string()));
-    }
+    let (v, unit) = measured(text, EXAMPLE, true)?;
     let litres = match unit.to_lowercase().as_str() {
         "l" | "dm3" => v,
         "ml" | "cm3" => v / 1e3,
@@ -250,13 +233,7 @@ pub fn parse_volume(text: &str) -> Result<Litres, QuantityError> {
 /// Parses a temperature ("22 °C", "295 K").
 pub fn parse_temperature(text: &str) -> Result<Kelvin, QuantityError> {
     const EXAMPLE: &str = "22 °C";
-    let (v, unit) = split_number(text, EXAMPLE)?;
-    if unit.is_empty() {
-        return Err(QuantityError::NoUnit {
-            text: text.to_string(),
-            example: EXAMPLE,
-        });
-    }
+    let (v, unit) = measured(text, EXAMPLE, false)?;
     let k = match unit.as_str() {
         "°C" | "C" | "degC" | "℃" | "ºC" => Kelvin::from_celsius(v),
         "K" => Kelvin(v),
