@@ -6,8 +6,15 @@
 use super::audit::{Level, PairJudge};
 use super::{split_path, Inventory};
 use crate::report::Severity;
+use rayon::prelude::*;
 use serde::Serialize;
 use std::collections::HashMap;
+use std::time::{Duration, Instant};
+
+/// Passes over the containers in stop pairs before the search gives up.
+const MAX_PASSES: usize = 6;
+/// The longest the search runs; what it found by then is reported, with a note.
+const BUDGET: Duration = Duration::from_secs(30);
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Move {
@@ -118,6 +125,7 @@ impl Layout<'_> {
     fn best_tray(&self, i: usize) -> Option<(usize, (usize, usize))> {
         let here = &self.trays[self.at[i]];
         (0..self.trays.len())
+            .into_par_iter()
             .filter(|&t| t != self.at[i] && self.members[t].len() < self.trays[t].capacity)
             .map(|t| {
                 let c = self.conflicts_in(i, t);
@@ -204,54 +212,71 @@ pub fn suggest(
     let (stops_before, reviews_before) = layout.count();
     let mut unresolved = Vec::new();
 
-    // Stops first: the container in most stop pairs moves first.
-    let mut rounds = 0;
-    loop {
-        rounds += 1;
-        let mut worst: Vec<(usize, usize)> = (0..inv.containers.len())
-            .filter(|i| {
-                !unresolved
-                    .iter()
-                    .any(|u: &String| u.starts_with(&format!("{} ", inv.containers[*i].id)))
-            })
+    // Stops first: in passes, the containers in most stop pairs move first; a pass that
+    // moves nothing ends the search. A time budget keeps a hopeless store from hanging it.
+    let started = Instant::now();
+    let mut out_of_time = false;
+    let mut stuck: Vec<bool> = vec![false; inv.containers.len()];
+    for _pass in 0..MAX_PASSES {
+        let mut order: Vec<(usize, usize)> = (0..inv.containers.len())
+            .filter(|&i| !stuck[i])
             .map(|i| (layout.conflicts_in(i, layout.at[i]).0, i))
             .filter(|(s, _)| *s > 0)
             .collect();
-        if worst.is_empty() || rounds > 4 * inv.containers.len() + 10 {
+        if order.is_empty() {
             break;
         }
-        worst.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(&b.1)));
-        let i = worst[0].1;
-        match layout.best_tray(i) {
-            Some((t, (0, _))) => {
-                layout.move_to(i, t);
+        order.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(&b.1)));
+        let mut moved_any = false;
+        for (_, i) in order {
+            if started.elapsed() > BUDGET {
+                out_of_time = true;
+                break;
             }
-            _ => unresolved.push(format!(
-                "{} (no tray with a free place where it meets nothing it must not)",
-                inv.containers[i].id
-            )),
-        }
-    }
-    // Then reviews, one improving move at a time.
-    for _ in 0..inv.containers.len() {
-        let mut best: Option<(usize, usize, usize)> = None;
-        for i in 0..inv.containers.len() {
-            let (s_here, r_here) = layout.conflicts_in(i, layout.at[i]);
-            if r_here == 0 || s_here > 0 {
+            // Earlier moves this pass may already have freed it.
+            if layout.conflicts_in(i, layout.at[i]).0 == 0 {
                 continue;
             }
-            if let Some((t, (0, r))) = layout.best_tray(i) {
-                let gain = r_here - r.min(r_here);
-                if r < r_here && best.is_none_or(|b| gain > b.2) {
-                    best = Some((i, t, gain));
+            match layout.best_tray(i) {
+                Some((t, (0, _))) => {
+                    layout.move_to(i, t);
+                    moved_any = true;
                 }
+                _ => stuck[i] = true,
             }
         }
-        match best {
-            Some((i, t, _)) => {
-                layout.move_to(i, t);
+        if out_of_time || !moved_any {
+            break;
+        }
+    }
+    for (i, &is_stuck) in stuck.iter().enumerate() {
+        if is_stuck && layout.conflicts_in(i, layout.at[i]).0 > 0 {
+            unresolved.push(format!(
+                "{} (no tray with a free place where it meets nothing it must not)",
+                inv.containers[i].id
+            ));
+        }
+    }
+    // Then reviews: one pass, most-conflicted first, each container taking a move only if
+    // it lowers its review pairs without adding a stop.
+    if !out_of_time {
+        let mut order: Vec<(usize, usize)> = (0..inv.containers.len())
+            .map(|i| (layout.conflicts_in(i, layout.at[i]), i))
+            .filter(|((s, r), _)| *s == 0 && *r > 0)
+            .map(|((_, r), i)| (r, i))
+            .collect();
+        order.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(&b.1)));
+        for (_, i) in order {
+            if started.elapsed() > BUDGET {
+                out_of_time = true;
+                break;
             }
-            None => break,
+            let (_, r_here) = layout.conflicts_in(i, layout.at[i]);
+            if let Some((t, (0, r))) = layout.best_tray(i) {
+                if r < r_here {
+                    layout.move_to(i, t);
+                }
+            }
         }
     }
     let (stops_after, reviews_after) = layout.count();
@@ -264,7 +289,12 @@ pub fn suggest(
         })
         .collect();
     let complete = stops_after == 0;
-    let note = if complete {
+    let note = if out_of_time {
+        format!(
+            "The search stopped after {} s with {stops_after} stop pairs left; the moves so far help, but the store needs more room or fewer containers per cabinet.",
+            BUDGET.as_secs()
+        )
+    } else if complete {
         format!("Every stop pair is removed with {} moves.", moves.len())
     } else {
         format!(
