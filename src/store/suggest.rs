@@ -291,8 +291,9 @@ pub fn suggest(
     let complete = stops_after == 0;
     let note = if out_of_time {
         format!(
-            "The search stopped after {} s with {stops_after} stop pairs left; the moves so far help, but the store needs more room or fewer containers per cabinet.",
-            BUDGET.as_secs()
+            "The search stopped after {} s with {stops_after} stop pairs left ({} moves found by then); a store this crowded with pairs that must not meet needs more room or fewer containers per cabinet before moves can help.",
+            BUDGET.as_secs(),
+            layout.at.iter().zip(&at).filter(|(a, b)| a != b).count()
         )
     } else if complete {
         format!("Every stop pair is removed with {} moves.", moves.len())
