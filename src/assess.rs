@@ -1,8 +1,8 @@
 //! The one place where a computed state becomes numbers against limits, and findings.
 
-use crate::catalog::Catalog;
+use crate::catalog::{Catalog, GasKind};
 use crate::chem::{Closure, Equilibrium};
-use crate::report::{Finding, GasReport, Severity, StateReport};
+use crate::report::{Finding, GasReport, Scope, Severity, StateReport};
 use crate::thresholds::Thresholds;
 
 /// Gases below this many ppm are left out of reports (they are still in the solve).
@@ -25,6 +25,10 @@ pub fn overpressure_kpa(eq: &Equilibrium) -> f64 {
 pub fn score(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> f64 {
     let mut worst: f64 = 0.0;
     for g in &eq.gases {
+        // An asphyxiant is judged by the pressure it builds and by the room, not by ppm.
+        if cat.asphyxiant_only(&g.gas) {
+            continue;
+        }
         let c = ppm(cat, g.partial_pressure_pa);
         let ratio = match cat.judged_levels(&g.gas) {
             Some(l) => c / (l.review_ppm * th.gas.review_fraction_of_short_term),
@@ -47,10 +51,6 @@ pub struct HeadspacePressure {
     pub vented_toxic_percent: f64,
 }
 
-/// Gases with a short-term level above this (ppm) are counted as asphyxiants rather than
-/// toxic in the vented share (CO2's is 30,000 ppm; the toxic gases' are below 100).
-const TOXIC_SHORT_TERM_BELOW_PPM: f64 = 5000.0;
-
 pub fn headspace_pressure(
     cat: &Catalog,
     eq: &Equilibrium,
@@ -67,10 +67,7 @@ pub fn headspace_pressure(
     let toxic: f64 = eq
         .gases
         .iter()
-        .filter(|g| {
-            cat.judged_levels(&g.gas)
-                .is_none_or(|l| l.review_ppm < TOXIC_SHORT_TERM_BELOW_PPM)
-        })
+        .filter(|g| cat.gas_kinds(&g.gas).contains(&GasKind::Toxic))
         .map(|g| g.partial_pressure_pa)
         .sum();
     let excess = (gases + thermal).max(0.0);
@@ -125,6 +122,9 @@ pub fn state_report(
                 idlh_basis: levels.as_ref().map(|l| l.stop_basis.clone()),
                 idlh_ratio: stop.map(|s| c / s),
                 idlh_source: levels.as_ref().map(|l| l.stop_source.clone()),
+                kinds: cat.gas_kinds(&g.gas),
+                lfl_ppm: cat.lfl_ppm(&g.gas),
+                lfl_ratio: cat.lfl_ppm(&g.gas).map(|l| c / l),
             })
         })
         .collect();
@@ -157,7 +157,11 @@ pub fn state_report(
     }
 }
 
+/// Severity of a toxic gas at its headspace level (asphyxiants are judged elsewhere).
 fn gas_severity(th: &Thresholds, g: &GasReport) -> Severity {
+    if !g.kinds.contains(&GasKind::Toxic) {
+        return Severity::Clear;
+    }
     match (g.idlh_ratio, g.limit_ratio) {
         (Some(s), _) if s >= 1.0 => Severity::Stop,
         (_, Some(r)) if r >= 1.0 => Severity::Review,
@@ -166,16 +170,48 @@ fn gas_severity(th: &Thresholds, g: &GasReport) -> Severity {
     }
 }
 
+/// Severity of a flammable gas against its lower flammable limit.
+fn flammable_severity(th: &Thresholds, g: &GasReport) -> Severity {
+    let f = &th.flammable_gas;
+    match g.lfl_ratio {
+        Some(r) if r >= f.stop_fraction_of_lfl => Severity::Stop,
+        Some(r) if r >= f.review_fraction_of_lfl => Severity::Review,
+        _ => Severity::Clear,
+    }
+}
+
+/// Atmospheric pressure, kPa: what stands over an open or vented liquid.
+const ATMOSPHERE_KPA: f64 = 101.325;
+
 pub fn fmt_ppm(v: f64) -> String {
-    if v > 1e6 {
-        // A partial pressure above one atmosphere: the gas would boil off, not sit in air.
-        format!("{v:.0} ppm (a partial pressure above 1 atm: it boils off)")
-    } else if v >= 100.0 {
+    if v >= 100.0 {
         format!("{v:.0} ppm")
     } else if v >= 1.0 {
         format!("{v:.1} ppm")
     } else {
         format!("{v:.2} ppm")
+    }
+}
+
+/// A gas's level in words. A partial pressure at or above the pressure over the liquid is
+/// not a concentration in air: the headspace would be the gas itself.
+pub fn gas_level(g: &GasReport, sealed: bool) -> String {
+    if g.partial_pressure_kpa >= ATMOSPHERE_KPA {
+        if sealed {
+            format!(
+                "{} kPa, more than atmospheric pressure (the headspace would be essentially pure {} under pressure)",
+                crate::text::fixed(g.partial_pressure_kpa, 0),
+                g.formula
+            )
+        } else {
+            format!(
+                "a partial pressure of {} kPa, more than the pressure over the liquid (the headspace would be essentially pure {}, which boils off)",
+                crate::text::fixed(g.partial_pressure_kpa, 0),
+                g.formula
+            )
+        }
+    } else {
+        fmt_ppm(g.headspace_ppm)
     }
 }
 
@@ -204,155 +240,359 @@ pub fn where_in_pour(fraction: f64) -> String {
     }
 }
 
-/// Findings on gas and pressure from the end state and the worst state along the pour.
-pub fn state_findings(
-    th: &Thresholds,
-    end: &StateReport,
-    worst: &StateReport,
-    worst_fraction: f64,
-    sealed: bool,
-    rated_pressure_kpa: Option<f64>,
-) -> Vec<Finding> {
-    let mut out = Vec::new();
-    let mut names: Vec<&str> = end.gases.iter().map(|g| g.formula.as_str()).collect();
-    for g in &worst.gases {
-        if !names.contains(&g.formula.as_str()) {
-            names.push(&g.formula);
-        }
+/// The states of one pour that findings are judged on.
+pub struct PourStates<'a> {
+    pub end: &'a StateReport,
+    pub worst: &'a StateReport,
+    pub worst_fraction: f64,
+    /// The container before anything is added; the pour is judged by what it changes.
+    /// None judges the states as they stand (a procedure's hold step).
+    pub alone: Option<&'a StateReport>,
+    pub sealed: bool,
+    pub rated_pressure_kpa: Option<f64>,
+}
+
+impl PourStates<'_> {
+    fn gas_in<'s>(s: &'s StateReport, formula: &str) -> Option<&'s GasReport> {
+        s.gases.iter().find(|g| g.formula == formula)
     }
-    for name in names {
-        let at_end = end.gases.iter().find(|g| g.formula == name);
-        let at_worst = worst.gases.iter().find(|g| g.formula == name);
-        let sev_end = at_end
-            .map(|g| gas_severity(th, g))
-            .unwrap_or(Severity::Clear);
-        let sev_worst = at_worst
-            .map(|g| gas_severity(th, g))
-            .unwrap_or(Severity::Clear);
+
+    /// The gases named in the end or the worst state.
+    fn gas_names(&self) -> Vec<&str> {
+        let mut names: Vec<&str> = self.end.gases.iter().map(|g| g.formula.as_str()).collect();
+        for g in &self.worst.gases {
+            if !names.contains(&g.formula.as_str()) {
+                names.push(&g.formula);
+            }
+        }
+        names
+    }
+
+    /// The state a gas is judged in (the worst of the pour unless the end is as bad), with
+    /// where it lies.
+    fn judged_state(
+        &self,
+        name: &str,
+        severity: impl Fn(&GasReport) -> Severity,
+    ) -> Option<(Severity, &GasReport, String)> {
+        let at_end = Self::gas_in(self.end, name);
+        let at_worst = Self::gas_in(self.worst, name);
+        let sev_end = at_end.map(&severity).unwrap_or(Severity::Clear);
+        let sev_worst = at_worst.map(&severity).unwrap_or(Severity::Clear);
         let worst_is_higher = match (at_worst, at_end) {
             (Some(w), Some(e)) => w.headspace_ppm > e.headspace_ppm,
             (Some(_), None) => true,
             _ => false,
         };
-        let (sev, g, place) = if sev_worst > sev_end
-            || (sev_worst == sev_end && worst_is_higher && worst_fraction < 1.0)
+        if sev_worst > sev_end
+            || (sev_worst == sev_end && worst_is_higher && self.worst_fraction < 1.0)
         {
-            (sev_worst, at_worst.unwrap(), where_in_pour(worst_fraction))
+            Some((sev_worst, at_worst?, where_in_pour(self.worst_fraction)))
         } else {
-            match at_end {
-                Some(g) => (sev_end, g, where_in_pour(1.0)),
-                None => continue,
-            }
-        };
-        if sev <= Severity::Clear {
-            continue;
+            Some((sev_end, at_end?, where_in_pour(1.0)))
         }
-        let end_note = match (at_end, place.starts_with("while")) {
-            (Some(e), true) => format!("; {} at the end", fmt_ppm(e.headspace_ppm)),
-            _ => String::new(),
-        };
-        let (code, message, caution) = match (sev, &g.idlh_ppm, &g.limit_ppm) {
-            (Severity::Stop, Some(idlh), _) => (
-                "gas-at-danger-level",
-                format!(
-                    "{} reaches {} in the headspace {place}, {} its stop level of {} ({}){end_note}.",
-                    g.formula,
-                    fmt_ppm(g.headspace_ppm),
-                    fmt_times(g.idlh_ratio.unwrap_or(0.0)),
-                    fmt_ppm(*idlh),
-                    g.idlh_basis.clone().unwrap_or_default()
-                ),
-                format!("Do not make this mixture. Opening the vessel could expose someone to {} at a level immediately dangerous to life or health.", g.formula),
-            ),
-            (_, _, Some(limit)) => (
-                "gas-over-short-term-level",
-                format!(
-                    "{} reaches {} in the headspace {place}, {} its short-term level of {} ({}){end_note}.",
-                    g.formula,
-                    fmt_ppm(g.headspace_ppm),
-                    fmt_times(g.limit_ratio.unwrap_or(0.0)),
-                    fmt_ppm(*limit),
-                    g.limit_basis.clone().unwrap_or_default()
-                ),
-                "A competent person should review this before it is done: work in a fume hood, and keep the vessel closed except when adding.".to_string(),
-            ),
-            _ => (
-                "gas-without-exposure-level",
-                format!(
-                    "{} reaches {} in the headspace {place}, and offgas has no exposure level for it.",
-                    g.formula,
-                    fmt_ppm(g.headspace_ppm)
-                ),
-                "Without a level the gas cannot be judged safe; check its safety data sheet.".into(),
-            ),
-        };
-        out.push(Finding {
-            severity: sev,
-            code: code.into(),
-            message,
-            caution,
-            origin: "chemistry".into(),
-        });
     }
-    if sealed {
-        let op = &th.sealed_overpressure;
-        let (p, place) = if worst.overpressure_kpa > end.overpressure_kpa {
-            (worst.overpressure_kpa, where_in_pour(worst_fraction))
-        } else {
-            (end.overpressure_kpa, where_in_pour(1.0))
+
+    /// True when the container alone already shows this gas at `sev` or worse, and the
+    /// pour does not make it clearly worse.
+    fn container_explains(
+        &self,
+        th: &Thresholds,
+        name: &str,
+        sev: Severity,
+        ratio: impl Fn(&GasReport) -> f64,
+        severity: impl Fn(&GasReport) -> Severity,
+        pour_ratio: f64,
+    ) -> bool {
+        let Some(alone) = self.alone.and_then(|a| Self::gas_in(a, name)) else {
+            return false;
         };
-        let (stop, rating) = match rated_pressure_kpa {
-            Some(r) => (r, format!("the container's rating of {r} kPa")),
-            None => (
-                op.stop_kpa,
-                format!(
-                    "{} kPa for a container with no stated rating; {}",
-                    op.stop_kpa, op.basis
-                ),
+        let sev_alone = severity(alone);
+        sev_alone > sev
+            || (sev_alone == sev
+                && pour_ratio <= th.pour_change.clearly_worse_factor * ratio(alone))
+    }
+}
+
+/// The larger of a gas's ratios to its review and stop levels, scaled so that 1 is the
+/// level its severity was judged at.
+fn toxic_ratio(g: &GasReport) -> f64 {
+    g.limit_ratio
+        .unwrap_or(0.0)
+        .max(g.idlh_ratio.unwrap_or(0.0))
+}
+
+/// Findings on gas and pressure from the end state and the worst state along the pour,
+/// judged by what the pour changes in the container.
+pub fn state_findings(th: &Thresholds, p: &PourStates) -> Vec<Finding> {
+    let mut out = Vec::new();
+    for name in p.gas_names() {
+        let toxic = p.judged_state(name, |g| gas_severity(th, g));
+        let mut toxic_sev = Severity::Clear;
+        if let Some((sev, g, place)) = toxic {
+            if sev > Severity::Clear
+                && !p.container_explains(
+                    th,
+                    name,
+                    sev,
+                    toxic_ratio,
+                    |g| gas_severity(th, g),
+                    toxic_ratio(g),
+                )
+            {
+                toxic_sev = sev;
+                out.push(toxic_finding(p, sev, g, &place));
+            }
+        }
+        if let Some((sev, g, place)) = p.judged_state(name, |g| flammable_severity(th, g)) {
+            let ratio = |g: &GasReport| g.lfl_ratio.unwrap_or(0.0);
+            if sev > toxic_sev
+                && !p.container_explains(
+                    th,
+                    name,
+                    sev,
+                    ratio,
+                    |g| flammable_severity(th, g),
+                    ratio(g),
+                )
+            {
+                out.push(Finding::chemistry(
+                    sev,
+                    "flammable-headspace",
+                    format!(
+                        "{} reaches {} in the headspace {place}, {} of its lower flammable limit of {} % (review at {} and stop at {} of the limit; {}).",
+                        g.formula,
+                        gas_level(g, p.sealed),
+                        crate::text::fixed(ratio(g) * 100.0, 0) + " %",
+                        crate::text::fixed(g.lfl_ppm.unwrap_or(0.0) / 1e4, 1),
+                        th.flammable_gas.review_fraction_of_lfl,
+                        th.flammable_gas.stop_fraction_of_lfl,
+                        th.flammable_gas.basis
+                    ),
+                    "Keep ignition sources away, do not cap the container, and ventilate.",
+                ));
+            }
+        }
+    }
+    if p.sealed {
+        out.extend(overpressure_finding(th, p));
+    }
+    out.extend(activity_model_note(th, p));
+    out
+}
+
+fn toxic_finding(p: &PourStates, sev: Severity, g: &GasReport, place: &str) -> Finding {
+    let end_note = match (
+        PourStates::gas_in(p.end, &g.formula),
+        place.starts_with("while"),
+    ) {
+        (Some(e), true) => format!("; {} at the end", gas_level(e, p.sealed)),
+        _ => String::new(),
+    };
+    let level = gas_level(g, p.sealed);
+    let (code, message, caution) = match (sev, &g.idlh_ppm, &g.limit_ppm) {
+        (Severity::Stop, Some(idlh), _) => (
+            "gas-at-danger-level",
+            format!(
+                "{} reaches {level} in the headspace {place}, {} its stop level of {} ({}){end_note}.",
+                g.formula,
+                fmt_times(g.idlh_ratio.unwrap_or(0.0)),
+                fmt_ppm(*idlh),
+                g.idlh_basis.clone().unwrap_or_default()
             ),
-        };
-        let review = op.review_kpa.min(stop);
-        let sev = if p >= stop {
+            format!("Do not make this mixture. Opening the vessel could expose someone to {} at a level immediately dangerous to life or health.", g.formula),
+        ),
+        (_, _, Some(limit)) => (
+            "gas-over-short-term-level",
+            format!(
+                "{} reaches {level} in the headspace {place}, {} its short-term level of {} ({}){end_note}.",
+                g.formula,
+                fmt_times(g.limit_ratio.unwrap_or(0.0)),
+                fmt_ppm(*limit),
+                g.limit_basis.clone().unwrap_or_default()
+            ),
+            "A competent person should review this before it is done: work in a fume hood, and keep the vessel closed except when adding.".to_string(),
+        ),
+        _ => (
+            "gas-without-exposure-level",
+            format!(
+                "{} reaches {level} in the headspace {place}, and offgas has no exposure level for it.",
+                g.formula,
+            ),
+            "Without a level the gas cannot be judged safe; check its safety data sheet.".into(),
+        ),
+    };
+    Finding::chemistry(sev, code, message, &caution)
+}
+
+fn overpressure_finding(th: &Thresholds, p: &PourStates) -> Option<Finding> {
+    let op = &th.sealed_overpressure;
+    let (pressure, place) = if p.worst.overpressure_kpa > p.end.overpressure_kpa {
+        (p.worst.overpressure_kpa, where_in_pour(p.worst_fraction))
+    } else {
+        (p.end.overpressure_kpa, where_in_pour(1.0))
+    };
+    let (stop, rating) = match p.rated_pressure_kpa {
+        Some(r) => (r, format!("the container's rating of {r} kPa")),
+        None => (
+            op.stop_kpa,
+            format!(
+                "{} kPa for a container with no stated rating; {}",
+                op.stop_kpa, op.basis
+            ),
+        ),
+    };
+    let review = op.review_kpa.min(stop);
+    let level = |v: f64| {
+        if v >= stop {
             Severity::Stop
-        } else if p >= review {
+        } else if v >= review {
             Severity::Review
         } else {
             Severity::Clear
-        };
-        if sev > Severity::Clear {
-            out.push(Finding {
-                severity: sev,
-                code: "sealed-overpressure".into(),
-                message: format!(
-                    "The sealed vessel reaches {p:.1} kPa above atmospheric {place}, from the gases the liquid gives off, the warming of the air and water vapour (review at {review} kPa; stop at {rating})."
-                ),
-                caution: "Do not cap a vessel that makes gas; use a vented cap or leave the mixture in a fume hood until it stops.".into(),
-                origin: "chemistry".into(),
-            });
+        }
+    };
+    let sev = level(pressure);
+    if sev <= Severity::Clear {
+        return None;
+    }
+    if let Some(a) = p.alone {
+        let sev_alone = level(a.overpressure_kpa);
+        if sev_alone > sev
+            || (sev_alone == sev
+                && pressure <= th.pour_change.clearly_worse_factor * a.overpressure_kpa)
+        {
+            return None;
         }
     }
-    // The figures past the activity model's range matter where they decide something: the
-    // end state, and the worst state when its gas reaches a level of concern. (A strong
-    // heel at the first drop is outside the model, but nothing is judged on it.)
-    let worst_matters = worst
-        .gases
-        .iter()
-        .any(|g| gas_severity(th, g) >= Severity::Review);
-    if end.activity_model_exceeded || (worst.activity_model_exceeded && worst_matters) {
-        let i = if end.activity_model_exceeded {
-            end.ionic_strength
-        } else {
-            worst.ionic_strength
+    Some(Finding::chemistry(
+        sev,
+        "sealed-overpressure",
+        format!(
+            "The sealed vessel reaches {} kPa above atmospheric {place}, from the gases the liquid gives off, the warming of the air and water vapour (review at {review} kPa; stop at {rating}).",
+            crate::text::fixed(pressure, 1)
+        ),
+        "Do not cap a vessel that makes gas; use a vented cap or leave the mixture in a fume hood until it stops.",
+    ))
+}
+
+/// Past the activity model's range the figures are rough. That decides something only
+/// where a figure off by the model's uncertainty factor would cross a level; otherwise it
+/// is a note.
+fn activity_model_note(th: &Thresholds, p: &PourStates) -> Option<Finding> {
+    let am = &th.activity_model;
+    let states: Vec<&StateReport> = [p.end, p.worst]
+        .into_iter()
+        .filter(|s| s.activity_model_exceeded)
+        .collect();
+    let i = states.iter().map(|s| s.ionic_strength).fold(0.0, f64::max);
+    if states.is_empty() {
+        return None;
+    }
+    let factor = am.uncertainty_factor(i);
+    // A level within reach: below it as computed, at or above it with the factor.
+    let within_reach = |r: Option<f64>| r.is_some_and(|r| r < 1.0 && r * factor >= 1.0);
+    let mut could_cross: Vec<String> = Vec::new();
+    for s in &states {
+        for g in s.gases.iter().filter(|g| g.kinds.contains(&GasKind::Toxic)) {
+            // What the container already gives off is not the pour's to answer for.
+            let alone_ratio = p
+                .alone
+                .and_then(|a| PourStates::gas_in(a, &g.formula))
+                .map(toxic_ratio)
+                .unwrap_or(0.0);
+            if alone_ratio > 0.0
+                && toxic_ratio(g) <= th.pour_change.clearly_worse_factor * alone_ratio
+            {
+                continue;
+            }
+            let crosses = within_reach(g.limit_ratio) || within_reach(g.idlh_ratio);
+            if crosses && !could_cross.contains(&g.formula) {
+                could_cross.push(g.formula.clone());
+            }
+        }
+        if p.sealed && within_reach(Some(s.gas_pressure_kpa / th.sealed_overpressure.review_kpa)) {
+            let what = "the sealed vessel's pressure".to_string();
+            if !could_cross.contains(&what) {
+                could_cross.push(what);
+            }
+        }
+    }
+    let range = format!(
+        "The ionic strength reaches {i:.2} mol/L, past the {} mol/L where the activity model holds ({}); computed partial pressures may be off by up to about {} there ({}).",
+        am.max_ionic_strength,
+        am.basis,
+        fmt_times(factor),
+        am.uncertainty_basis
+    );
+    Some(if could_cross.is_empty() {
+        Finding::chemistry(
+            Severity::Info,
+            "outside-activity-model",
+            format!("{range} No level is within that factor, so the verdict stands."),
+            "Treat the figures for this concentrated mixture as indicative.",
+        )
+    } else {
+        Finding::chemistry(
+            Severity::Review,
+            "outside-activity-model",
+            format!(
+                "{range} Within that factor, {} could reach a level of concern.",
+                could_cross.join(" and ")
+            ),
+            "Concentrated mixtures can release more gas than this estimate: have a competent person review it, and treat the figures as indicative only.",
+        )
+    })
+}
+
+/// What the container is like before anything is added: a gas it already gives off, or a
+/// pressure it already holds, at a level of concern. It needs care whatever is poured.
+pub fn container_findings(th: &Thresholds, alone: &StateReport, sealed: bool) -> Vec<Finding> {
+    let mut out = Vec::new();
+    for g in &alone.gases {
+        let sev = gas_severity(th, g);
+        if sev < Severity::Review {
+            continue;
+        }
+        let against = match (sev, g.idlh_ppm, g.limit_ppm) {
+            (Severity::Stop, Some(l), _) => format!(
+                "{} its stop level of {}",
+                fmt_times(g.idlh_ratio.unwrap_or(0.0)),
+                fmt_ppm(l)
+            ),
+            (_, _, Some(l)) => format!(
+                "{} its short-term level of {}",
+                fmt_times(g.limit_ratio.unwrap_or(0.0)),
+                fmt_ppm(l)
+            ),
+            _ => "and offgas has no exposure level for it".into(),
         };
         out.push(Finding {
-            severity: Severity::Review,
-            code: "outside-activity-model".into(),
-            message: format!(
-                "The ionic strength reaches {i:.2} mol/L, past the {} mol/L where the activity model holds ({}); the figures are rough.",
-                th.activity_model.max_ionic_strength, th.activity_model.basis
-            ),
-            caution: "Concentrated mixtures can release more gas than this estimate; treat the figures as indicative only.".into(),
-            origin: "chemistry".into(),
+            scope: Scope::Container,
+            ..Finding::chemistry(
+                Severity::Review,
+                "container-already-gives-off",
+                format!(
+                    "Before anything is added, the container already gives off {} at {} in its headspace, {against}.",
+                    g.formula,
+                    gas_level(g, sealed)
+                ),
+                "Open it only in a working fume hood, whatever is poured in, and label it for the gas it gives off.",
+            )
+        });
+    }
+    if sealed && alone.overpressure_kpa >= th.sealed_overpressure.review_kpa {
+        out.push(Finding {
+            scope: Scope::Container,
+            ..Finding::chemistry(
+                Severity::Review,
+                "container-already-under-pressure",
+                format!(
+                    "Before anything is added, the sealed container already holds {} kPa above atmospheric.",
+                    crate::text::fixed(alone.overpressure_kpa, 1)
+                ),
+                "Vent it slowly in a fume hood, pointing the cap away, before anything else is done.",
+            )
         });
     }
     out

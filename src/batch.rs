@@ -77,8 +77,7 @@ struct RawBatch {
     density: Option<serde_yaml::Value>,
     rated_pressure: Option<serde_yaml::Value>,
     surface_area: Option<serde_yaml::Value>,
-    #[serde(default)]
-    contents: Vec<serde_yaml::Value>,
+    contents: Option<Vec<serde_yaml::Value>>,
     #[serde(default)]
     #[allow(dead_code)]
     note: Option<String>,
@@ -143,6 +142,7 @@ impl Batch {
     /// Parses a batch file. `file` names it in messages.
     pub fn parse(cat: &Catalog, file: &str, text: &str) -> Result<Batch, InputError> {
         let ctx = Ctx { file, text };
+        crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)?;
         let raw: RawBatch = serde_yaml::from_str(text).map_err(|e| {
             let line = e.location().map(|l| l.line());
             let msg = e.to_string();
@@ -162,9 +162,14 @@ impl Batch {
             )
         })?;
         let mut volume = ctx.quantity("volume", volume_v, parse_volume)?.0;
+        // An empty container (volume 0) may leave its contents out; anything else must say
+        // what it holds.
+        let empty_container = volume == 0.0 && raw.capacity.is_some();
+        let no_contents: &[serde_yaml::Value] = &[];
+        let contents = raw.contents.as_deref().unwrap_or(no_contents);
         // An empty container (it has a capacity and no contents) holds a film of water, so
         // that the first pour into it has something to meet.
-        if volume == 0.0 && raw.capacity.is_some() && raw.contents.is_empty() {
+        if volume == 0.0 && raw.capacity.is_some() && contents.is_empty() {
             volume = EMPTY_FILM_L;
         }
         if volume <= 0.0 {
@@ -255,10 +260,17 @@ impl Batch {
             surface_area_m2,
             components: Vec::new(),
         };
+        if raw.contents.is_none() && !empty_container {
+            return Err(ctx.err(
+                None,
+                "`contents` is missing: offgas cannot tell what the batch holds",
+                Some("list what it holds, e.g. `contents:` then `  - sodium chloride: 9 g/L`; for plain water write `contents: []`".into()),
+            ));
+        }
         let contents_line = ctx.key_line("contents").unwrap_or(1);
         let mut search_from = contents_line;
         let mut liquid_ml = 0.0;
-        for item in &raw.contents {
+        for item in contents {
             let (written, amount_text) = component_parts(item).ok_or_else(|| {
                 ctx.err(
                     line_of(text, "-", search_from),
@@ -270,6 +282,13 @@ impl Batch {
             if let Some(l) = line {
                 search_from = l + 1;
             }
+            crate::input_shape::check_name_length(&written).map_err(|m| {
+                ctx.err(
+                    line,
+                    m,
+                    Some("name the substance by its common name, formula or CAS number".into()),
+                )
+            })?;
             let sid = cat.find_substance(&written).ok_or_else(|| {
                 let close = cat.closest_names(&written, 3);
                 ctx.err(
@@ -296,6 +315,13 @@ impl Batch {
                 line,
             });
         }
+        check_total_mass(cat, &batch.components, volume).map_err(|m| {
+            ctx.err(
+                Some(contents_line),
+                m,
+                Some("check the amounts and their units".into()),
+            )
+        })?;
         if liquid_ml > volume * 1e3 * 1.001 {
             return Err(ctx.err(
                 Some(contents_line),
@@ -333,6 +359,8 @@ impl Batch {
         }
         let mut components = Vec::with_capacity(items.len());
         for (written, amount_text, line) in items {
+            crate::input_shape::check_name_length(written)
+                .map_err(|m| err(*line, format!("`{name}`: {m}"), None))?;
             let sid = cat.find_substance(written).ok_or_else(|| {
                 err(
                     *line,
@@ -357,6 +385,13 @@ impl Batch {
                 line: *line,
             });
         }
+        check_total_mass(cat, &components, volume_l).map_err(|m| {
+            err(
+                items.first().and_then(|i| i.2),
+                format!("`{name}`: {m}"),
+                None,
+            )
+        })?;
         Ok(Batch {
             file: file.to_string(),
             name: name.to_string(),
@@ -503,11 +538,15 @@ fn check_reachable(
         return Ok(());
     };
     let g_per_l = moles * mm / volume_l;
-    if let Some(sol) = s.solubility_g_per_l {
-        if g_per_l > sol * 1.0001 {
+    // A liquid past its solubility forms a layer of its own; a soluble solid past it stays
+    // solid. A slightly soluble one (a carbonate, a sulfide, a hydroxide) dissolves as acid
+    // or base meets it, so it is counted as dissolved and the report says so.
+    if let (Some(sol), PhysicalState::Solid) = (s.solubility_g_per_l, s.state) {
+        if g_per_l > sol * 1.0001 && sol >= cat.physical.slightly_soluble_below_g_per_l {
             return Err((
                 format!(
-                    "{g_per_l:.0} g/L is above its solubility of about {sol} g/L; offgas models dissolved substances only"
+                    "{} g/L is above its solubility of about {sol} g/L; offgas models dissolved substances only",
+                    fmt_big(g_per_l)
                 ),
                 "lower the amount, or raise the batch volume so that it can dissolve".into(),
             ));
@@ -521,10 +560,63 @@ fn check_reachable(
     if let Some(max) = neat {
         if g_per_l > max * 1.0001 {
             return Err((
-                format!("{g_per_l:.0} g/L is more than the neat substance holds ({max:.0} g/L)"),
+                format!(
+                    "{} g/L is more than the neat substance holds ({max:.0} g/L)",
+                    fmt_big(g_per_l)
+                ),
                 "check the amount and its unit".into(),
             ));
         }
     }
+    let densest = cat.physical.max_dissolved_g_per_l;
+    if g_per_l.is_nan() || g_per_l > densest {
+        return Err((
+            format!(
+                "{} g/L cannot be in a liquid: no aqueous solution holds more than about {densest:.0} g of dissolved matter per litre",
+                fmt_big(g_per_l)
+            ),
+            "check the amount and its unit".into(),
+        ));
+    }
     Ok(())
+}
+
+/// A slightly soluble solid given above its solubility in water, in words, if it is.
+pub fn beyond_solubility(cat: &Catalog, c: &Component, volume_l: f64) -> Option<String> {
+    let s = cat.substance(c.substance);
+    let sol = s.solubility_g_per_l?;
+    let g_per_l = c.moles * s.molar_mass? / volume_l;
+    (s.state == PhysicalState::Solid && g_per_l > sol * 1.0001).then(|| {
+        format!(
+            "`{}`: {} g/L is above its solubility in water (about {sol} g/L); it is counted as dissolved, as acid or base would dissolve it, so the figures err towards more gas where nothing dissolves it.",
+            c.written,
+            crate::text::fixed(g_per_l, 1)
+        )
+    })
+}
+
+/// The total dissolved mass of a batch: no liquid holds more than the densest solution.
+fn check_total_mass(cat: &Catalog, components: &[Component], volume_l: f64) -> Result<(), String> {
+    let total: f64 = components
+        .iter()
+        .map(|c| c.moles * cat.substance(c.substance).molar_mass.unwrap_or(0.0))
+        .sum::<f64>()
+        / volume_l;
+    let densest = cat.physical.max_dissolved_g_per_l;
+    if total > densest {
+        return Err(format!(
+            "the components add up to {} g per litre of batch; no aqueous solution holds more than about {densest:.0} g/L",
+            fmt_big(total)
+        ));
+    }
+    Ok(())
+}
+
+/// A large number short enough to read in a message.
+fn fmt_big(v: f64) -> String {
+    if v.abs() >= 1e6 {
+        format!("{v:.2e}")
+    } else {
+        format!("{v:.0}")
+    }
 }

@@ -1,6 +1,8 @@
 //! `check`: can this stream go into that container? The whole computation for one pour.
 
-use crate::assess::{fmt_times, score, state_findings, state_report, where_in_pour};
+use crate::assess::{
+    container_findings, fmt_times, score, state_findings, state_report, where_in_pour, PourStates,
+};
 use crate::batch::{Batch, InputError};
 use crate::catalog::Catalog;
 use crate::chem::{solve, Closure, SolveError, SolverSettings};
@@ -160,17 +162,27 @@ pub fn check(
 
     let end = state_report(cat, th, &forward.end.state, &end_heat);
     let worst = state_report(cat, th, &forward.worst.state, &worst_heat);
+    let container_alone = state_report(
+        cat,
+        th,
+        &eq_a,
+        &HeatReport::at_rest(eq_a.temperature_k - cat.physical.kelvin_offset),
+    );
     let sealed = container.closure == Closure::Sealed;
     let mut findings = state_findings(
         th,
-        &end,
-        &worst,
-        forward.worst.fraction_added,
-        sealed,
-        container.rated_pressure_kpa,
+        &PourStates {
+            end: &end,
+            worst: &worst,
+            worst_fraction: forward.worst.fraction_added,
+            alone: Some(&container_alone),
+            sealed,
+            rated_pressure_kpa: container.rated_pressure_kpa,
+        },
     );
+    findings.extend(container_findings(th, &container_alone, sealed));
     findings.extend(order_findings(th, &forward, &backward));
-    let ctx = rule_context(container, stream, &forward);
+    let ctx = rule_context(container, stream, &forward, &backward);
     let components: Vec<(crate::catalog::SubstanceId, f64)> =
         ctx.present.iter().map(|p| (p.substance, p.moles)).collect();
     let released = crate::release::releases(
@@ -199,6 +211,7 @@ pub fn check(
     let inert = inert_names(cat, container, stream);
     if !inert.is_empty() {
         findings.push(Finding {
+            scope: crate::report::Scope::Pour,
             severity: Severity::Info,
             code: "inert-components".into(),
             message: format!(
@@ -209,7 +222,9 @@ pub fn check(
             origin: "chemistry".into(),
         });
     }
-    findings.sort_by_key(|f| std::cmp::Reverse(f.severity));
+    // The reason that decides comes first: the most severe, and of equal severity what the
+    // pour does before a component's own hazard and the container's own state.
+    findings.sort_by_key(|f| (std::cmp::Reverse(f.severity), f.scope));
     let severity = Severity::verdict(&findings);
 
     let order = |p: &PathScan, heat: &HeatReport, description: &str| OrderReport {
@@ -227,6 +242,7 @@ pub fn check(
         container: batch_report(cat, container, true),
         stream: batch_report(cat, stream, false),
         end_state: end,
+        container_alone,
         worst_state: WorstStateReport {
             fraction_added: forward.worst.fraction_added,
             state: worst,
@@ -250,7 +266,7 @@ pub fn check(
         },
         findings,
         inert_components: inert,
-        assumptions: assumptions(container, stream, opts, th),
+        assumptions: assumptions(cat, container, stream, opts, th),
         cautions: th.cautions.clone(),
     })
 }
@@ -261,6 +277,7 @@ fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> V
     let (fw, bw) = (forward.worst.score, backward.worst.score);
     if fw >= 1.0 && bw * factor <= fw {
         out.push(Finding {
+            scope: crate::report::Scope::Pour,
             severity: Severity::Info,
             code: "safer-order".into(),
             message: format!(
@@ -272,6 +289,7 @@ fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> V
         });
     } else if bw >= 1.0 && fw * factor <= bw {
         out.push(Finding {
+            scope: crate::report::Scope::Pour,
             severity: Severity::Info,
             code: "keep-this-order".into(),
             message: format!(
@@ -285,6 +303,7 @@ fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> V
     let end = forward.end.score;
     if fw >= 1.0 && forward.worst.fraction_added < 1.0 && fw >= factor * end {
         out.push(Finding {
+            scope: crate::report::Scope::Pour,
             severity: Severity::Info,
             code: "worst-while-pouring".into(),
             message: format!(
@@ -300,7 +319,12 @@ fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> V
     out
 }
 
-fn rule_context(container: &Batch, stream: &Batch, forward: &PathScan) -> RuleContext {
+fn rule_context(
+    container: &Batch,
+    stream: &Batch,
+    forward: &PathScan,
+    backward: &PathScan,
+) -> RuleContext {
     let present = container
         .components
         .iter()
@@ -314,10 +338,11 @@ fn rule_context(container: &Batch, stream: &Batch, forward: &PathScan) -> RuleCo
         .collect();
     RuleContext {
         present,
-        liquid_l: container.volume_l + stream.volume_l,
-        ph_min: forward.ph_range.0,
-        ph_max: forward.ph_range.1,
-        temperature_max_c: forward.temperature_max_k - 273.15,
+        container_l: container.volume_l,
+        stream_l: stream.volume_l,
+        ph_min: forward.ph_range.0.min(backward.ph_range.0),
+        ph_max: forward.ph_range.1.max(backward.ph_range.1),
+        temperature_max_c: forward.temperature_max_k.max(backward.temperature_max_k) - 273.15,
     }
 }
 
@@ -393,6 +418,11 @@ fn rule_findings(
         let r = &hit.rule.rule;
         let met: Vec<String> = hit.groups.iter().map(|g| g.join(" or ")).collect();
         out.push(Finding {
+            scope: if r.presence {
+                crate::report::Scope::Component
+            } else {
+                crate::report::Scope::Pour
+            },
             severity: r.severity.into(),
             code: r.id.clone(),
             message: format!(
@@ -475,6 +505,7 @@ fn heat_findings(
     let mut out = Vec::new();
     let push = |out: &mut Vec<Finding>, severity, code: &str, message: String, caution: &str| {
         out.push(Finding {
+            scope: crate::report::Scope::Pour,
             severity,
             code: code.into(),
             message,
@@ -566,6 +597,7 @@ fn room_findings(
     for g in gases {
         if let Some(r) = g.worst_case_idlh_ratio.filter(|r| *r >= 1.0) {
             out.push(Finding {
+                scope: crate::report::Scope::Pour,
                 severity: Severity::Review,
                 code: "room-worst-case".into(),
                 message: format!(
@@ -594,6 +626,7 @@ fn room_findings(
             None => "never".into(),
         };
         out.push(Finding {
+            scope: crate::report::Scope::Pour,
             severity: if exposed { severity } else { Severity::Info },
             code: "room-evaporation".into(),
             message: format!(
@@ -632,6 +665,7 @@ fn release_findings(th: &Thresholds, released: &[ReleaseReport]) -> Vec<Finding>
                 return None;
             };
             Some(Finding {
+                scope: crate::report::Scope::Pour,
                 severity,
                 code: "flammable-gas-in-headspace".into(),
                 message: format!(
@@ -689,6 +723,7 @@ fn unruled_findings(
         return Vec::new();
     }
     vec![Finding {
+        scope: crate::report::Scope::Pour,
         severity: Severity::Review,
         code: "hazard-not-assessed".into(),
         message: format!(
@@ -752,6 +787,7 @@ fn format_amount(a: crate::quantity::Amount) -> String {
 }
 
 fn assumptions(
+    cat: &Catalog,
     container: &Batch,
     stream: &Batch,
     opts: &CheckOptions,
@@ -776,6 +812,9 @@ fn assumptions(
         ));
     }
     for b in [container, stream] {
+        for c in &b.components {
+            out.extend(crate::batch::beyond_solubility(cat, c, b.volume_l));
+        }
         if !b.temperature_given && opts.temperature_k.is_none() {
             out.push(format!("`{}` has no temperature: 25 °C assumed.", b.name));
         }

@@ -28,6 +28,10 @@ pub const RULE_FILES: &[(&str, &str)] = &[
         "rules/organics.yaml",
         include_str!("../rules/organics.yaml"),
     ),
+    (
+        "rules/presence.yaml",
+        include_str!("../rules/presence.yaml"),
+    ),
 ];
 
 /// The bundled catalog. The bundled files are checked by the test suite, so a failure

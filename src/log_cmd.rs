@@ -244,14 +244,7 @@ pub fn show(path: &Path, as_json: bool) -> Result<u8> {
     let state = offgas::chem::solve(&cat, &mixture, &settings)
         .map(|eq| {
             let t = eq.temperature_k - cat.physical.kelvin_offset;
-            let heat = offgas::pour::HeatReport {
-                start_temperature_c: t,
-                reaction_heat_kj: 0.0,
-                dilution_heat_kj: 0.0,
-                temperature_rise_k: 0.0,
-                final_temperature_c: t,
-                boils: false,
-            };
+            let heat = offgas::pour::HeatReport::at_rest(t);
             offgas::assess::state_report(&cat, &th, &eq, &heat)
         })
         .map_err(|e| anyhow!("the current contents could not be assessed: {e}"))?;

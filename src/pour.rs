@@ -77,6 +77,20 @@ impl BatchHeat {
     }
 }
 
+impl HeatReport {
+    /// A state that no heat has reached: at rest at `t_c`.
+    pub fn at_rest(t_c: f64) -> HeatReport {
+        HeatReport {
+            start_temperature_c: t_c,
+            reaction_heat_kj: 0.0,
+            dilution_heat_kj: 0.0,
+            temperature_rise_k: 0.0,
+            final_temperature_c: t_c,
+            boils: false,
+        }
+    }
+}
+
 /// A pour of `stream` into a vessel holding `vessel`.
 pub struct Pour<'a> {
     pub cat: &'a Catalog,

@@ -52,6 +52,19 @@ impl fmt::Display for Severity {
     }
 }
 
+/// What a finding is about.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Default)]
+#[serde(rename_all = "lowercase")]
+pub enum Scope {
+    /// What the pour does: the verdict on making this mixture.
+    #[default]
+    Pour,
+    /// A component's own hazard, present whatever it meets.
+    Component,
+    /// What the container is already like before anything is added.
+    Container,
+}
+
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Finding {
     pub severity: Severity,
@@ -60,6 +73,22 @@ pub struct Finding {
     pub caution: String,
     /// What raised it: "chemistry", or the rule and the file it came from.
     pub origin: String,
+    /// What it is about: the pour, a component's own hazard, or the container as it is.
+    pub scope: Scope,
+}
+
+impl Finding {
+    /// A finding of the chemistry about the pour.
+    pub fn chemistry(severity: Severity, code: &str, message: String, caution: &str) -> Finding {
+        Finding {
+            severity,
+            code: code.into(),
+            message,
+            caution: caution.into(),
+            origin: "chemistry".into(),
+            scope: Scope::Pour,
+        }
+    }
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -77,6 +106,11 @@ pub struct GasReport {
     pub idlh_basis: Option<String>,
     pub idlh_ratio: Option<f64>,
     pub idlh_source: Option<String>,
+    /// How the gas does harm: toxic, asphyxiant, flammable.
+    pub kinds: Vec<crate::catalog::GasKind>,
+    /// Lower flammable limit, ppm, and the headspace's ratio to it (flammable gases).
+    pub lfl_ppm: Option<f64>,
+    pub lfl_ratio: Option<f64>,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -156,6 +190,8 @@ pub struct CheckReport {
     pub container: BatchReport,
     pub stream: BatchReport,
     pub end_state: StateReport,
+    /// The container before anything is added, at its own temperature.
+    pub container_alone: StateReport,
     pub worst_state: WorstStateReport,
     pub poured_as_written: OrderReport,
     pub poured_other_way: Option<OrderReport>,

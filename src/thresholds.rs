@@ -14,6 +14,7 @@ pub struct Thresholds {
     pub activity_model: ActivityModel,
     pub proton_transfer: ProtonTransfer,
     pub mixing_path: MixingPath,
+    pub pour_change: PourChange,
     pub flammable_gas: FlammableGas,
     pub heat: HeatThresholds,
     pub room: RoomDefaults,
@@ -45,6 +46,27 @@ pub struct Overpressure {
 #[serde(deny_unknown_fields)]
 pub struct ActivityModel {
     pub max_ionic_strength: f64,
+    pub basis: String,
+    /// Past `max_ionic_strength`, a computed partial pressure may be off by up to
+    /// 10^(uncertainty_per_mol_l × (I − max_ionic_strength)).
+    pub uncertainty_per_mol_l: f64,
+    pub uncertainty_basis: String,
+}
+
+impl ActivityModel {
+    /// The factor a computed partial pressure may be off by at ionic strength `i`.
+    pub fn uncertainty_factor(&self, i: f64) -> f64 {
+        10f64.powf(self.uncertainty_per_mol_l * (i - self.max_ionic_strength).max(0.0))
+    }
+}
+
+/// How a pour is told apart from what the container already does.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PourChange {
+    /// A gas already at a level in the container counts against the pour only when the
+    /// pour makes it this many times worse.
+    pub clearly_worse_factor: f64,
     pub basis: String,
 }
 
@@ -84,6 +106,10 @@ pub struct RoomDefaults {
     pub air_changes_per_hour: f64,
     pub air_speed_m_per_s: f64,
     pub basis: String,
+    /// Minutes of evaporation counted in the room's worst case (the short-term level's
+    /// averaging time).
+    pub exposure_window_min: f64,
+    pub window_basis: String,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -104,6 +130,8 @@ pub struct MixingPath {
 
 impl Thresholds {
     pub fn parse(file: &str, text: &str) -> Result<Thresholds, String> {
+        crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)
+            .map_err(|e| e.to_string())?;
         let t: Thresholds = serde_yaml::from_str(text).map_err(|e| {
             let at = e
                 .location()
@@ -120,6 +148,9 @@ impl Thresholds {
             && t.activity_model.max_ionic_strength > 0.0
             && t.proton_transfer.complete_above_log_k > t.proton_transfer.negligible_below_log_k
             && t.mixing_path.safer_order_factor >= 1.0
+            && t.pour_change.clearly_worse_factor >= 1.0
+            && t.activity_model.uncertainty_per_mol_l >= 0.0
+            && t.room.exposure_window_min > 0.0
             && t.flammable_gas.review_fraction_of_lfl > 0.0
             && t.flammable_gas.stop_fraction_of_lfl >= t.flammable_gas.review_fraction_of_lfl
             && t.heat.stop_rise_k >= t.heat.review_rise_k

@@ -240,14 +240,17 @@ fn zero_or_negative_volume_is_refused() {
 fn volume_above_capacity_is_refused() {
     let f = Files::new();
     let c = f.write("carboy.yaml", "name: c\ncapacity: 5 L\nvolume: 6 L\n");
-    let s = f.write("stream.yaml", "name: s\nvolume: 1 L\n");
+    let s = f.write("stream.yaml", "name: s\nvolume: 1 L\ncontents: []\n");
     check(&c, &s)
         .assert()
         .code(1)
         .stderr(predicate::str::contains("carboy.yaml:3"))
         .stderr(predicate::str::contains("more than the `capacity`"));
     // and a pour that would overflow
-    let c = f.write("carboy2.yaml", "name: c\ncapacity: 5 L\nvolume: 4.5 L\n");
+    let c = f.write(
+        "carboy2.yaml",
+        "name: c\ncapacity: 5 L\nvolume: 4.5 L\ncontents: []\n",
+    );
     check(&c, &s)
         .assert()
         .code(1)
@@ -425,7 +428,7 @@ fn a_site_rule_that_would_lower_a_severity_stops_the_run() {
         "description: x\nrules:\n  - id: softer\n    raises: hypochlorite-with-acid\n    meet: [[hypochlorite], [strong_acid]]\n    severity: review\n    message: m\n    caution: c\n    basis: b\n",
     );
     let c = f.write("carboy.yaml", CARBOY);
-    let s = f.write("stream.yaml", "name: s\nvolume: 1 L\n");
+    let s = f.write("stream.yaml", "name: s\nvolume: 1 L\ncontents: []\n");
     check(&c, &s)
         .arg("--rules")
         .arg(rules.dir.path())
@@ -495,14 +498,14 @@ fn a_bad_procedure_file_names_the_step_and_line() {
     let f = Files::new();
     let p = f.write(
         "proc.yaml",
-        "name: p\nvessel:\n  name: v\n  capacity: 10 L\n  volume: 2 L\nsteps:\n  - description: heat it\n    boil: { time: 5 min }\n",
+        "name: p\nvessel:\n  name: v\n  capacity: 10 L\n  volume: 2 L\n  contents: []\nsteps:\n  - description: heat it\n    boil: { time: 5 min }\n",
     );
     offgas()
         .arg("procedure")
         .arg(&p)
         .assert()
         .code(1)
-        .stderr(predicate::str::contains("proc.yaml:7"))
+        .stderr(predicate::str::contains("proc.yaml:8"))
         .stderr(predicate::str::contains("unknown step kind `boil`"));
 }
 

@@ -183,7 +183,7 @@ fn draining_more_than_is_there_or_adding_past_capacity_is_refused() {
     ));
     assert!(e.contains("leaves 60 L"), "{e}");
     let e = run_err(&format!(
-        "{HEEL}steps:\n  - description: fill\n    add:\n      volume: 60 L\n"
+        "{HEEL}steps:\n  - description: fill\n    add:\n      volume: 60 L\n      contents: []\n"
     ));
     assert!(
         e.contains("step 1") && e.contains("more than its capacity"),

@@ -45,7 +45,8 @@ fn satisfying(rule: &Rule, present: Vec<Present>) -> RuleContext {
     let ph_max = w.ph_above.map(|v| v + 0.5).unwrap_or(7.0).max(ph_min);
     RuleContext {
         present,
-        liquid_l: 1.0,
+        container_l: 1.0,
+        stream_l: 1.0,
         ph_min,
         ph_max,
         temperature_max_c: w.temperature_above_c.map(|t| t + 5.0).unwrap_or(25.0),
@@ -73,7 +74,8 @@ fn members_of(rule: &Rule) -> Vec<Present> {
         present.push(Present {
             side,
             substance: id,
-            moles: 1.0,
+            // Enough to meet a concentration condition in a litre.
+            moles: rule.when.min_mol_per_l.map_or(1.0, |c| (2.0 * c).max(1.0)),
         });
     }
     present
@@ -130,10 +132,18 @@ fn every_flagged_class_is_covered_by_a_built_in_rule() {
     }
 }
 
+/// The rule on its own: a presence rule stays quiet where another rule names the same
+/// component, so it is tested without the others.
+fn alone(lr: &offgas::rules::LoadedRule) -> RuleSet {
+    RuleSet {
+        rules: vec![lr.clone()],
+    }
+}
+
 #[test]
 fn every_built_in_rule_fires_when_its_classes_meet() {
-    let set = builtin();
-    for lr in &set.rules {
+    for lr in &builtin().rules {
+        let set = alone(lr);
         let ctx = satisfying(&lr.rule, members_of(&lr.rule));
         assert!(
             fired(&set, &ctx, &lr.rule.id),
@@ -192,7 +202,8 @@ fn every_conditional_rule_is_silent_when_its_condition_fails() {
         if let Some(c) = w.min_mol_per_l {
             conditional += 1;
             let mut ctx = satisfying(&lr.rule, members_of(&lr.rule));
-            ctx.liquid_l = 2.0 / c.max(1e-12);
+            ctx.container_l = 2.0 / c.max(1e-12);
+            ctx.stream_l = ctx.container_l;
             assert!(
                 !fired(&set, &ctx, &lr.rule.id),
                 "rule {} fired below {c} mol/L",
@@ -236,7 +247,8 @@ fn across_means_one_group_on_each_side() {
                 moles: 1.0,
             },
         ],
-        liquid_l: 1.0,
+        container_l: 1.0,
+        stream_l: 1.0,
         ph_min: 2.0,
         ph_max: 9.0,
         temperature_max_c: 25.0,
@@ -329,7 +341,8 @@ fn site_rules_add_and_raise_but_never_lower() {
             substance: sid,
             moles: 0.01,
         }],
-        liquid_l: 10.0,
+        container_l: 10.0,
+        stream_l: 10.0,
         ph_min: 11.0,
         ph_max: 12.0,
         temperature_max_c: 20.0,

@@ -33,12 +33,27 @@ pub struct Level {
     pub source: String,
 }
 
+/// How a gas does harm, which decides how it is judged.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum GasKind {
+    /// Judged against its exposure levels wherever a person can meet it.
+    Toxic,
+    /// Harmful only by displacing air at percent levels: judged by the pressure it builds
+    /// in a sealed vessel and by what reaches the room.
+    Asphyxiant,
+    /// Judged against its lower flammable limit.
+    Flammable,
+}
+
 #[derive(Debug, Clone, Deserialize)]
 pub struct GasLimits {
     pub gas: String,
     pub name: String,
     #[serde(default)]
     pub cas: Option<String>,
+    pub kinds: Vec<GasKind>,
+    pub kinds_source: String,
     #[serde(default)]
     pub idlh: Option<Level>,
     #[serde(default)]
@@ -69,6 +84,11 @@ pub struct JudgedLevels {
 }
 
 impl GasLimits {
+    /// True when the gas is judged only by pressure and the room, not by headspace ppm.
+    pub fn asphyxiant_only(&self) -> bool {
+        !self.kinds.contains(&GasKind::Toxic) && self.kinds.contains(&GasKind::Asphyxiant)
+    }
+
     fn level(&self, name: &str) -> Option<&Level> {
         match name {
             "idlh" => self.idlh.as_ref(),

@@ -13,7 +13,7 @@ pub mod substances;
 
 use std::collections::HashMap;
 
-pub use limits::{GasLimits, JudgedLevels, LimitsFile};
+pub use limits::{GasKind, GasLimits, JudgedLevels, LimitsFile};
 pub use species::{Family, StrongIon};
 pub use substances::{HazardClass, PhysicalState};
 
@@ -460,7 +460,18 @@ impl Catalog {
 
         let mut gas_index = HashMap::new();
         for (i, g) in limits.gases.iter().enumerate() {
-            gas_index.insert(g.gas.clone(), i);
+            if g.kinds.is_empty() || g.kinds_source.trim().is_empty() {
+                return Err(bad(
+                    src.limits.0,
+                    format!(
+                        "gas `{}`: `kinds` needs at least one kind and a kinds_source",
+                        g.gas
+                    ),
+                ));
+            }
+            if gas_index.insert(g.gas.clone(), i).is_some() {
+                return Err(bad(src.limits.0, format!("gas `{}` appears twice", g.gas)));
+            }
         }
 
         Ok(Catalog {
@@ -523,6 +534,26 @@ impl Catalog {
         self.gas_limits(gas)?.judged(&self.limits.fallback)
     }
 
+    /// How a gas does harm; a gas the limits file does not know counts as toxic.
+    pub fn gas_kinds(&self, gas: &str) -> Vec<GasKind> {
+        self.gas_limits(gas)
+            .map(|g| g.kinds.clone())
+            .unwrap_or_else(|| vec![GasKind::Toxic])
+    }
+
+    /// True when the gas is judged by pressure and the room only (carbon dioxide).
+    pub fn asphyxiant_only(&self, gas: &str) -> bool {
+        self.gas_limits(gas).is_some_and(|g| g.asphyxiant_only())
+    }
+
+    /// Lower flammable limit of a gas, ppm by volume.
+    pub fn lfl_ppm(&self, gas: &str) -> Option<f64> {
+        self.gas_limits(gas)?
+            .flammability
+            .as_ref()
+            .map(|f| f.lfl.value)
+    }
+
     /// Finds a substance by name, synonym, formula or CAS number.
     pub fn find_substance(&self, query: &str) -> Option<SubstanceId> {
         self.substance_index.get(&normalize_name(query)).copied()
@@ -530,7 +561,11 @@ impl Catalog {
 
     /// The known names closest to an unknown one, best first.
     pub fn closest_names(&self, query: &str, n: usize) -> Vec<String> {
-        let q = normalize_name(query);
+        // Bounded: a name far longer than any known one matches nothing better for its tail.
+        let q: String = normalize_name(query)
+            .chars()
+            .take(crate::input_shape::MAX_NAME_CHARS)
+            .collect();
         let mut scored: Vec<(f64, &str)> = self
             .substance_index
             .keys()

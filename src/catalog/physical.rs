@@ -8,6 +8,16 @@ pub struct PhysicalFile {
     pub davies: DaviesData,
     pub water_vapour: Antoine,
     pub evaporation: Evaporation,
+    pub bounds: Bounds,
+}
+
+/// Physical bounds on what a user can write.
+#[derive(Debug, Clone, Copy, Deserialize)]
+pub struct Bounds {
+    /// g/mL: no aqueous solution is denser, so none holds more than this per mL.
+    pub densest_aqueous_solution: Value,
+    /// g/L: a solid less soluble than this dissolves mainly by reacting with acid or base.
+    pub slightly_soluble_below: Value,
 }
 
 /// The evaporation-rate correlation, in the units of its source (see physical.yaml).
@@ -78,6 +88,10 @@ pub struct Physical {
     rho: Density,
     vapour: Antoine,
     pub evaporation: Evaporation,
+    /// g per litre: the most dissolved matter any aqueous solution holds.
+    pub max_dissolved_g_per_l: f64,
+    /// g per litre: below this a solid's solubility is not a bound on what a batch holds.
+    pub slightly_soluble_below_g_per_l: f64,
 }
 
 impl From<PhysicalFile> for Physical {
@@ -93,6 +107,8 @@ impl From<PhysicalFile> for Physical {
             rho: f.davies.density,
             vapour: f.water_vapour,
             evaporation: f.evaporation,
+            max_dissolved_g_per_l: f.bounds.densest_aqueous_solution.value * 1e3,
+            slightly_soluble_below_g_per_l: f.bounds.slightly_soluble_below.value,
         }
     }
 }

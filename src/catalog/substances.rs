@@ -90,4 +90,8 @@ pub struct HazardClass {
     pub id: String,
     pub description: String,
     pub beyond_proton_model: bool,
+    /// Its hazard appears only when it meets what a rule names (acid, an oxidiser), so its
+    /// presence alone is not flagged.
+    #[serde(default)]
+    pub needs_partner: bool,
 }

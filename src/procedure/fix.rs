@@ -12,7 +12,7 @@ const MAX_RINSES: u32 = 20;
 
 fn water_batch(e: &Engine, volume_l: f64, name: &str) -> Option<Batch> {
     // Plain water: a batch with no components.
-    let text = format!("name: \"{name}\"\nvolume: {volume_l} L\n");
+    let text = format!("name: \"{name}\"\nvolume: {volume_l} L\ncontents: []\n");
     Batch::parse(e.cat, name, &text).ok()
 }
 

@@ -106,6 +106,7 @@ impl Procedure {
             message,
             fix,
         };
+        crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)?;
         let doc: serde_yaml::Value = serde_yaml::from_str(text).map_err(|e| {
             err(
                 e.location().map(|l| l.line()),

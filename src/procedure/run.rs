@@ -2,7 +2,7 @@
 //! checked in full against what is in the vessel at that moment.
 
 use super::{Leave, Procedure, Step, StepKind};
-use crate::assess::{state_findings, state_report};
+use crate::assess::{state_findings, state_report, PourStates};
 use crate::batch::{Batch, InputError};
 use crate::catalog::Catalog;
 use crate::check::{check, CheckError, CheckOptions};
@@ -238,21 +238,20 @@ impl Engine<'_> {
         let t_c = eq.temperature_k - self.cat.physical.kelvin_offset;
         let heat = HeatReport {
             start_temperature_c: vessel.temperature_k - self.cat.physical.kelvin_offset,
-            reaction_heat_kj: 0.0,
-            dilution_heat_kj: 0.0,
-            temperature_rise_k: 0.0,
-            final_temperature_c: t_c,
-            boils: false,
+            ..HeatReport::at_rest(t_c)
         };
         let state = state_report(self.cat, self.th, &eq, &heat);
         let sealed = after.closure == crate::chem::Closure::Sealed;
         let findings = state_findings(
             self.th,
-            &state,
-            &state,
-            1.0,
-            sealed,
-            after.rated_pressure_kpa,
+            &PourStates {
+                end: &state,
+                worst: &state,
+                worst_fraction: 1.0,
+                alone: None,
+                sealed,
+                rated_pressure_kpa: after.rated_pressure_kpa,
+            },
         );
         let severity = Severity::verdict(&findings);
         let action = match (minutes, t_k) {

@@ -14,14 +14,61 @@ pub struct Present {
 }
 
 /// The mixture as rules judge it: what is in it, and the computed state along the pour.
+///
+/// Where the stream enters, the two batches meet in every ratio, from the container's own
+/// liquid to the stream as poured: concentration conditions are judged there, not on the
+/// finished (diluted) mixture. The pH and temperature span both orders of pouring, which
+/// between them cover every ratio.
 #[derive(Debug, Clone)]
 pub struct RuleContext {
     pub present: Vec<Present>,
-    /// Liquid volume of the finished mixture, L.
-    pub liquid_l: f64,
+    /// Liquid volume of the container's batch, L.
+    pub container_l: f64,
+    /// Liquid volume of the stream, L.
+    pub stream_l: f64,
     pub ph_min: f64,
     pub ph_max: f64,
     pub temperature_max_c: f64,
+}
+
+impl RuleContext {
+    /// Concentration (mol/L) of the members on each side in its own liquid.
+    fn side_concentrations(&self, members: &[usize]) -> (f64, f64) {
+        let mut a = 0.0;
+        let mut b = 0.0;
+        for &i in members {
+            match self.present[i].side {
+                Side::Container => a += self.present[i].moles,
+                Side::Stream => b += self.present[i].moles,
+            }
+        }
+        let per = |n: f64, v: f64| if v > 0.0 { n / v } else { 0.0 };
+        (per(a, self.container_l), per(b, self.stream_l))
+    }
+
+    /// True when some ratio of the two batches gives every group at least `min` mol/L:
+    /// a group's concentration is linear in the stream's share s of the meeting liquid,
+    /// c(s) = (1 − s)·c_container + s·c_stream, so each group allows an interval of s.
+    fn meets_concentrations(&self, groups: &[Vec<usize>], min: f64) -> bool {
+        let (mut lo, mut hi) = (0.0f64, 1.0f64);
+        for g in groups {
+            let (a, b) = self.side_concentrations(g);
+            let slope = b - a;
+            if slope.abs() < f64::MIN_POSITIVE {
+                if a < min {
+                    return false;
+                }
+                continue;
+            }
+            let s_at_min = (min - a) / slope;
+            if slope > 0.0 {
+                lo = lo.max(s_at_min);
+            } else {
+                hi = hi.min(s_at_min);
+            }
+        }
+        lo <= hi
+    }
 }
 
 /// A rule that holds, with the components that met in each group.
@@ -30,6 +77,8 @@ pub struct RuleHit<'r> {
     pub rule: &'r LoadedRule,
     /// For each group, the names of the components that satisfy it.
     pub groups: Vec<Vec<String>>,
+    /// The substances that satisfy any group.
+    pub substances: Vec<SubstanceId>,
 }
 
 fn carries(cat: &Catalog, sid: SubstanceId, group: &[String]) -> bool {
@@ -74,28 +123,25 @@ impl RuleSet {
         for lr in &self.rules {
             let r = &lr.rule;
             let w = &r.when;
-            let min_c = w.min_mol_per_l.unwrap_or(0.0);
             let candidates: Vec<Vec<usize>> = r
                 .meet
                 .iter()
                 .map(|group| {
-                    let members: Vec<usize> = ctx
-                        .present
+                    ctx.present
                         .iter()
                         .enumerate()
                         .filter(|(_, p)| carries(cat, p.substance, group))
                         .map(|(i, _)| i)
-                        .collect();
-                    let total: f64 = members.iter().map(|&i| ctx.present[i].moles).sum();
-                    if ctx.liquid_l > 0.0 && total / ctx.liquid_l < min_c {
-                        Vec::new()
-                    } else {
-                        members
-                    }
+                        .collect()
                 })
                 .collect();
             if candidates.iter().any(|c| c.is_empty()) {
                 continue;
+            }
+            if let Some(min) = w.min_mol_per_l {
+                if !ctx.meets_concentrations(&candidates, min) {
+                    continue;
+                }
             }
             let mut used = Vec::new();
             if !assign(
@@ -130,8 +176,35 @@ impl RuleSet {
                     names
                 })
                 .collect();
-            hits.push(RuleHit { rule: lr, groups });
+            let substances = candidates
+                .iter()
+                .flatten()
+                .map(|&i| ctx.present[i].substance)
+                .collect();
+            hits.push(RuleHit {
+                rule: lr,
+                groups,
+                substances,
+            });
         }
+        // A component's own hazard is not repeated where a rule about its meeting names it.
+        let named_by_meeting: Vec<SubstanceId> = hits
+            .iter()
+            .filter(|h| !h.rule.rule.presence)
+            .flat_map(|h| h.substances.iter().copied())
+            .collect();
+        let mut named_by_presence: Vec<SubstanceId> = Vec::new();
+        hits.retain(|h| {
+            if !h.rule.rule.presence {
+                return true;
+            }
+            let fresh = h
+                .substances
+                .iter()
+                .any(|s| !named_by_meeting.contains(s) && !named_by_presence.contains(s));
+            named_by_presence.extend(h.substances.iter().copied());
+            fresh
+        });
         hits
     }
 }

@@ -72,6 +72,11 @@ pub struct Rule {
     /// A site rule may raise a built-in rule by id instead of adding a new one.
     #[serde(default)]
     pub raises: Option<String>,
+    /// A rule about one component's own hazard, whatever it meets: it holds whenever the
+    /// component is in the pour, and is not repeated when another rule already names that
+    /// component.
+    #[serde(default)]
+    pub presence: bool,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Deserialize, serde::Serialize)]
@@ -158,6 +163,15 @@ impl RuleSet {
         text: &str,
         origin: Origin,
     ) -> Result<Vec<LoadedRule>, Vec<RuleError>> {
+        if let Err(e) =
+            crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)
+        {
+            return Err(vec![RuleError {
+                file: file.to_string(),
+                line: e.line,
+                message: e.message,
+            }]);
+        }
         let parsed: RuleFile = serde_yaml::from_str(text).map_err(|e| {
             vec![RuleError {
                 file: file.to_string(),
@@ -235,6 +249,9 @@ fn validate(cat: &Catalog, r: &Rule) -> Vec<String> {
     }
     if r.meet.is_empty() || r.meet.iter().any(|g| g.is_empty()) {
         out.push("`meet` needs at least one non-empty group of classes".into());
+    }
+    if r.presence && (r.meet.len() != 1 || r.meeting == Meeting::Across) {
+        out.push("a `presence` rule names one group of classes and no `meeting: across`".into());
     }
     if r.meeting == Meeting::Across && r.meet.len() < 2 {
         out.push("`meeting: across` needs at least two groups".into());

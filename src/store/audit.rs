@@ -125,6 +125,8 @@ struct Profile {
     /// Concentrated enough for heat of neutralization or dilution to matter.
     strong: bool,
     present: Vec<(SubstanceId, f64)>,
+    /// Litres the contents fill (a dry solid: the litre it is taken to dissolve in).
+    volume_l: f64,
     dry: bool,
     /// How bad the contents are on their own, as an open puddle (ratio to review levels).
     alone_score: f64,
@@ -243,6 +245,7 @@ fn profile(cat: &Catalog, th: &Thresholds, c: &StoredContainer) -> Profile {
             .iter()
             .any(|(s, _)| cat.dissolution_heat(*s).is_some());
     Profile {
+        volume_l: m.liquid_l,
         ph: eq.map(|e| e.ph),
         acid_volatile,
         base_volatile,
@@ -289,8 +292,8 @@ fn rule_context(a: &Profile, b: &Profile, ph_min: f64, ph_max: f64) -> RuleConte
         .collect();
     RuleContext {
         present,
-        // A leak pools in about a litre: concentration conditions are judged on that.
-        liquid_l: 1.0,
+        container_l: a.volume_l,
+        stream_l: b.volume_l,
         ph_min,
         ph_max,
         temperature_max_c: 25.0,
@@ -360,6 +363,8 @@ fn outcome_of(r: &CheckReport, alone: f64, both_orders: bool) -> PairOutcome {
         .findings
         .iter()
         .filter(|f| f.severity >= Severity::Review)
+        // A component's own hazard and a container's own state are not the pair's.
+        .filter(|f| f.scope == crate::report::Scope::Pour)
         .filter(|f| pair_adds_gas || !is_gas_finding(&f.code))
         // Rough activity figures matter only where the meeting brings a gas near a level.
         .filter(|f| {

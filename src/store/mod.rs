@@ -223,6 +223,7 @@ impl Inventory {
             message,
             fix,
         };
+        crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_INVENTORY_BYTES)?;
         let raw: RawInventory = serde_yaml::from_str(text).map_err(|e| {
             err(
                 e.location().map(|l| l.line()),

@@ -1,0 +1,25 @@
+//! Numbers as people read them in reports: fixed decimals, no "-0.0".
+
+/// `v` with `decimals` decimals; a value that rounds to zero is written without a sign.
+pub fn fixed(v: f64, decimals: usize) -> String {
+    let s = format!("{v:.decimals$}");
+    if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
+        s[1..].to_string()
+    } else {
+        s
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::fixed;
+
+    #[test]
+    fn no_negative_zero() {
+        assert_eq!(fixed(-0.0, 1), "0.0");
+        assert_eq!(fixed(-0.04, 1), "0.0");
+        assert_eq!(fixed(-0.4, 0), "0");
+        assert_eq!(fixed(-0.06, 1), "-0.1");
+        assert_eq!(fixed(12.345, 2), "12.35");
+    }
+}
