@@ -193,23 +193,42 @@ pub fn fmt_ppm(v: f64) -> String {
     }
 }
 
-/// A gas's level in words. A partial pressure at or above the pressure over the liquid is
-/// not a concentration in air: the headspace would be the gas itself.
-pub fn gas_level(g: &GasReport, sealed: bool) -> String {
+/// "HCN reaches 227 ppm in the headspace {place}", or, where its partial pressure passes
+/// the pressure over the liquid, what that means: the headspace would be the gas itself.
+pub fn gas_reaches(g: &GasReport, sealed: bool, place: &str) -> String {
+    let place = if place.is_empty() {
+        String::new()
+    } else {
+        format!(" {place}")
+    };
+    if g.partial_pressure_kpa < ATMOSPHERE_KPA {
+        return format!(
+            "{} reaches {} in the headspace{place}",
+            g.formula,
+            fmt_ppm(g.headspace_ppm)
+        );
+    }
+    let kpa = crate::text::fixed(g.partial_pressure_kpa, 0);
+    if sealed {
+        format!(
+            "{} reaches {kpa} kPa in the sealed headspace{place}, more than atmospheric pressure: the headspace would be essentially pure {} under pressure",
+            g.formula, g.formula
+        )
+    } else {
+        format!(
+            "{}'s partial pressure reaches {kpa} kPa{place}, more than the pressure over the liquid: the headspace would be essentially pure {}, which boils off",
+            g.formula, g.formula
+        )
+    }
+}
+
+/// A gas's level in words, for a short mention ("12 ppm", "139 kPa, above 1 atm").
+pub fn gas_level(g: &GasReport) -> String {
     if g.partial_pressure_kpa >= ATMOSPHERE_KPA {
-        if sealed {
-            format!(
-                "{} kPa, more than atmospheric pressure (the headspace would be essentially pure {} under pressure)",
-                crate::text::fixed(g.partial_pressure_kpa, 0),
-                g.formula
-            )
-        } else {
-            format!(
-                "a partial pressure of {} kPa, more than the pressure over the liquid (the headspace would be essentially pure {}, which boils off)",
-                crate::text::fixed(g.partial_pressure_kpa, 0),
-                g.formula
-            )
-        }
+        format!(
+            "{} kPa, above atmospheric pressure",
+            crate::text::fixed(g.partial_pressure_kpa, 0)
+        )
     } else {
         fmt_ppm(g.headspace_ppm)
     }
@@ -360,9 +379,8 @@ pub fn state_findings(th: &Thresholds, p: &PourStates) -> Vec<Finding> {
                     sev,
                     "flammable-headspace",
                     format!(
-                        "{} reaches {} in the headspace {place}, {} of its lower flammable limit of {} % (review at {} and stop at {} of the limit; {}).",
-                        g.formula,
-                        gas_level(g, p.sealed),
+                        "{}, {} of its lower flammable limit of {} % (review at {} and stop at {} of the limit; {}).",
+                        gas_reaches(g, p.sealed, &place),
                         crate::text::fixed(ratio(g) * 100.0, 0) + " %",
                         crate::text::fixed(g.lfl_ppm.unwrap_or(0.0) / 1e4, 1),
                         th.flammable_gas.review_fraction_of_lfl,
@@ -386,16 +404,15 @@ fn toxic_finding(p: &PourStates, sev: Severity, g: &GasReport, place: &str) -> F
         PourStates::gas_in(p.end, &g.formula),
         place.starts_with("while"),
     ) {
-        (Some(e), true) => format!("; {} at the end", gas_level(e, p.sealed)),
+        (Some(e), true) => format!("; {} at the end", gas_level(e)),
         _ => String::new(),
     };
-    let level = gas_level(g, p.sealed);
+    let reaches = gas_reaches(g, p.sealed, place);
     let (code, message, caution) = match (sev, &g.idlh_ppm, &g.limit_ppm) {
         (Severity::Stop, Some(idlh), _) => (
             "gas-at-danger-level",
             format!(
-                "{} reaches {level} in the headspace {place}, {} its stop level of {} ({}){end_note}.",
-                g.formula,
+                "{reaches}, {} its stop level of {} ({}){end_note}.",
                 fmt_times(g.idlh_ratio.unwrap_or(0.0)),
                 fmt_ppm(*idlh),
                 g.idlh_basis.clone().unwrap_or_default()
@@ -405,8 +422,7 @@ fn toxic_finding(p: &PourStates, sev: Severity, g: &GasReport, place: &str) -> F
         (_, _, Some(limit)) => (
             "gas-over-short-term-level",
             format!(
-                "{} reaches {level} in the headspace {place}, {} its short-term level of {} ({}){end_note}.",
-                g.formula,
+                "{reaches}, {} its short-term level of {} ({}){end_note}.",
                 fmt_times(g.limit_ratio.unwrap_or(0.0)),
                 fmt_ppm(*limit),
                 g.limit_basis.clone().unwrap_or_default()
@@ -416,8 +432,7 @@ fn toxic_finding(p: &PourStates, sev: Severity, g: &GasReport, place: &str) -> F
         _ => (
             "gas-without-exposure-level",
             format!(
-                "{} reaches {level} in the headspace {place}, and offgas has no exposure level for it.",
-                g.formula,
+                "{reaches}, and offgas has no exposure level for it.",
             ),
             "Without a level the gas cannot be judged safe; check its safety data sheet.".into(),
         ),
@@ -573,9 +588,8 @@ pub fn container_findings(th: &Thresholds, alone: &StateReport, sealed: bool) ->
                 Severity::Review,
                 "container-already-gives-off",
                 format!(
-                    "Before anything is added, the container already gives off {} at {} in its headspace, {against}.",
-                    g.formula,
-                    gas_level(g, sealed)
+                    "Before anything is added, the container already gives off gas: {}, {against}.",
+                    gas_reaches(g, sealed, "")
                 ),
                 "Open it only in a working fume hood, whatever is poured in, and label it for the gas it gives off.",
             )

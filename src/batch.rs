@@ -302,10 +302,10 @@ impl Batch {
             })?;
             let amount = parse_amount(&amount_text)
                 .map_err(|e| ctx.err(line, format!("`{written}`: {e}"), None))?;
+            check_share_form(cat, sid, amount)
+                .map_err(|(m, fix)| ctx.err(line, format!("`{written}`: {m}"), Some(fix)))?;
             let (moles, ml) = moles_of(cat, sid, amount, volume, density)
                 .map_err(|m| ctx.err(line, format!("`{written}`: {m}"), None))?;
-            check_reachable(cat, sid, moles, volume)
-                .map_err(|(m, fix)| ctx.err(line, format!("`{written}`: {m}"), Some(fix)))?;
             liquid_ml += ml;
             batch.components.push(Component {
                 written,
@@ -314,6 +314,30 @@ impl Batch {
                 moles,
                 line,
             });
+        }
+        let shares: f64 = batch
+            .components
+            .iter()
+            .filter_map(|c| match c.amount {
+                Amount::PercentWeightPerWeight(w) => Some(w),
+                _ => None,
+            })
+            .sum();
+        if shares > 100.0 + 1e-9 {
+            return Err(ctx.err(
+                Some(contents_line),
+                format!("the % w/w amounts add up to {shares} %, more than the whole batch"),
+                Some("check the percentages".into()),
+            ));
+        }
+        if shares > 0.0 && !density_given {
+            batch.settle_shares(cat, volume).map_err(|(c, m, fix)| {
+                ctx.err(c.line, format!("`{}`: {m}", c.written), Some(fix))
+            })?;
+        }
+        for c in &batch.components {
+            check_reachable(cat, c.substance, c.moles, volume)
+                .map_err(|(m, fix)| ctx.err(c.line, format!("`{}`: {m}", c.written), Some(fix)))?;
         }
         check_total_mass(cat, &batch.components, volume).map_err(|m| {
             ctx.err(
@@ -408,6 +432,63 @@ impl Batch {
         })
     }
 
+    /// What the batch weighs and how much water it holds.
+    pub fn composition(&self, cat: &Catalog) -> crate::composition::Composition {
+        let parts: Vec<(SubstanceId, f64)> = self
+            .components
+            .iter()
+            .map(|c| (c.substance, c.moles))
+            .collect();
+        crate::composition::composition(
+            cat,
+            &parts,
+            self.volume_l,
+            self.density_given.then_some(self.density_g_per_ml),
+        )
+    }
+
+    /// Moles of `% w/w` amounts at the batch's own density, from the density tables: the
+    /// density depends on the moles and the moles on the density, so the two are settled
+    /// together.
+    fn settle_shares(
+        &mut self,
+        cat: &Catalog,
+        volume_l: f64,
+    ) -> Result<(), (Component, String, String)> {
+        for c in &self.components {
+            if let Amount::PercentWeightPerWeight(w) = c.amount {
+                if w > UNTABLED_SHARE_PERCENT && cat.density_table(c.substance).is_none() {
+                    return Err((
+                        c.clone(),
+                        format!(
+                            "offgas has no density table for solutions of `{}`, and at {w} % w/w the density matters",
+                            cat.substance(c.substance).name
+                        ),
+                        "give the batch's density (e.g. `density: 1.12 g/mL`), or the amount in g/L or mol/L".into(),
+                    ));
+                }
+            }
+        }
+        let mut rho = 1.0;
+        for _ in 0..100 {
+            for c in &mut self.components {
+                if let Amount::PercentWeightPerWeight(_) = c.amount {
+                    c.moles = moles_of(cat, c.substance, c.amount, volume_l, rho)
+                        .map(|m| m.0)
+                        .unwrap_or(c.moles);
+                }
+            }
+            let next = self.composition(cat).density_g_per_ml;
+            let done = (next - rho).abs() < 1e-9;
+            rho = next;
+            if done {
+                break;
+            }
+        }
+        self.density_g_per_ml = rho;
+        Ok(())
+    }
+
     /// The batch as amounts for the solver, in a vessel of `capacity_l`.
     pub fn to_mixture(&self, cat: &Catalog, capacity_l: f64) -> Mixture {
         let mut m = Mixture::empty(self.temperature_k, self.closure);
@@ -421,6 +502,7 @@ impl Batch {
             }
         }
         m.liquid_l = self.volume_l;
+        m.water_kg = Some(self.composition(cat).water_g / 1e3);
         m.headspace_l = (capacity_l - self.volume_l).max(0.0);
         m
     }
@@ -524,6 +606,39 @@ fn moles_of(
         return Err(format!("`{}` has no molar mass in the data", s.name));
     }
     Ok(out)
+}
+
+/// Above this % w/w a solute with no density table needs the batch's stated density.
+const UNTABLED_SHARE_PERCENT: f64 = 5.0;
+
+/// A percentage of a commercial solution would count its concentration twice
+/// ("sulfuric acid, concentrated: 96 % w/w").
+fn check_share_form(
+    cat: &Catalog,
+    sid: SubstanceId,
+    amount: Amount,
+) -> Result<(), (String, String)> {
+    let s = cat.substance(sid);
+    let Some(sol) = &s.solution else {
+        return Ok(());
+    };
+    if !matches!(
+        amount,
+        Amount::PercentWeightPerWeight(_) | Amount::PercentWeightPerVolume(_)
+    ) {
+        return Ok(());
+    }
+    let solute = &cat.substance(sol.solute).name;
+    Err((
+        format!(
+            "`{}` is already a {} % solution of {solute}: a percentage of it would count that concentration twice",
+            s.name, sol.mass_percent
+        ),
+        format!(
+            "for the acid or base at a strength, write the solute (`{solute}: {} % w/w`); for some of the commercial solution in a batch, give its volume (`{}: 50 mL/L`)",
+            sol.mass_percent, s.name
+        ),
+    ))
 }
 
 /// Refuses amounts that cannot dissolve or exceed the neat substance.

@@ -4,6 +4,7 @@ use crate::assess::{
     container_findings, fmt_times, score, state_findings, state_report, where_in_pour, PourStates,
 };
 use crate::batch::{Batch, InputError};
+use crate::boiling::{vapour_pressure, VapourPressure};
 use crate::catalog::Catalog;
 use crate::chem::{solve, Closure, SolveError, SolverSettings};
 use crate::pairs::pair_table;
@@ -148,9 +149,37 @@ pub fn check(
             error,
         })
     };
-    let end_heat = heat_at(&as_written, 1.0)?;
-    let worst_heat = heat_at(&as_written, forward.worst.fraction_added)?;
-    let other_heat = heat_at(&other_way, backward.worst.fraction_added)?;
+    let mut end_heat = heat_at(&as_written, 1.0)?;
+    let mut worst_heat = heat_at(&as_written, forward.worst.fraction_added)?;
+    let mut other_heat = heat_at(&other_way, backward.worst.fraction_added)?;
+    let boil_end = boiling(cat, th, &as_written, 1.0, &forward.end.state, &end_heat)?;
+    let boil_worst = boiling(
+        cat,
+        th,
+        &as_written,
+        forward.worst.fraction_added,
+        &forward.worst.state,
+        &worst_heat,
+    )?;
+    let boil_other = boiling(
+        cat,
+        th,
+        &other_way,
+        backward.worst.fraction_added,
+        &backward.worst.state,
+        &other_heat,
+    )?;
+    let boil_alone = boiling(
+        cat,
+        th,
+        &as_written,
+        0.0,
+        &eq_a,
+        &HeatReport::at_rest(eq_a.temperature_k - cat.physical.kelvin_offset),
+    )?;
+    end_heat.boils = boil_end.boils();
+    worst_heat.boils = boil_worst.boils();
+    other_heat.boils = boil_other.boils();
 
     let pairs = pair_table(
         cat,
@@ -194,18 +223,28 @@ pub fn check(
         container.closure,
     );
     findings.extend(release_findings(th, &released));
-    findings.extend(heat_findings(
-        cat,
+    findings.extend(heat_findings(th, &end.heat, &worst.heat));
+    findings.extend(boiling_findings(
         th,
-        container,
-        stream,
-        &end.heat,
-        &worst.heat,
+        [
+            (&boil_end, 1.0),
+            (&boil_worst, forward.worst.fraction_added),
+        ],
+        &boil_alone,
     ));
     let room_settings = room_settings(th, container, capacity, opts);
     let room_gases = crate::room::room_report(cat, &forward.end.state, &room_settings);
+    let room_alone = crate::room::room_report(cat, &eq_a, &room_settings);
     let exposed = opts.spill_area_m2.is_some() || container.closure != Closure::Sealed;
-    findings.extend(room_findings(&room_gases, &room_settings, exposed));
+    findings.extend(room_findings(
+        cat,
+        th,
+        &room_gases,
+        &room_alone,
+        &room_settings,
+        container.closure,
+        exposed,
+    ));
     findings.extend(rule_findings(cat, rules, &ctx, &end, &worst, &released));
     findings.extend(unruled_findings(cat, rules, container, stream));
     let inert = inert_names(cat, container, stream);
@@ -224,7 +263,15 @@ pub fn check(
     }
     // The reason that decides comes first: the most severe, and of equal severity what the
     // pour does before a component's own hazard and the container's own state.
-    findings.sort_by_key(|f| (std::cmp::Reverse(f.severity), f.scope));
+    // A rule about this meeting names the reason in words a practitioner knows, so at
+    // equal severity it comes before the computed figures.
+    findings.sort_by_key(|f| {
+        (
+            std::cmp::Reverse(f.severity),
+            f.scope,
+            f.origin == "chemistry",
+        )
+    });
     let severity = Severity::verdict(&findings);
 
     let order = |p: &PathScan, heat: &HeatReport, description: &str| OrderReport {
@@ -476,6 +523,19 @@ fn room_settings(
             )
         }
     };
+    let window = th.room.exposure_window_min;
+    let worst_case = match (opts.spill_area_m2, container.closure) {
+        (Some(a), _) => format!(
+            "a spill of {a} m2: the headspace at once, then the spill evaporating for {window} min"
+        ),
+        (None, Closure::Sealed) => format!(
+            "the container opened after standing sealed: its headspace at once, then the open surface evaporating for {window} min"
+        ),
+        (None, Closure::Vented) => format!(
+            "the headspace vented at once, then the surface evaporating for {window} min"
+        ),
+        (None, Closure::Open) => format!("the open surface evaporating for {window} min"),
+    };
     crate::room::RoomSettings {
         volume_m3: opts.room_volume_m3.unwrap_or(th.room.volume_m3),
         air_changes_per_hour: opts
@@ -484,36 +544,147 @@ fn room_settings(
         air_speed_m_per_s: th.room.air_speed_m_per_s,
         surface_area_m2: area,
         surface_basis: basis,
+        exposure_window_min: window,
+        worst_case,
     }
 }
 
-/// Findings on heat: the rise, the final temperature, and boiling components.
-fn heat_findings(
+/// Whether a state boils, is close to it, or neither, from its own vapour pressure.
+#[derive(Debug, Clone)]
+enum Boil {
+    No,
+    /// Within the margin of thresholds.yaml: the vapour pressure that much warmer.
+    Near(VapourPressure),
+    Boils(VapourPressure),
+}
+
+impl Boil {
+    fn boils(&self) -> bool {
+        matches!(self, Boil::Boils(_))
+    }
+    fn rank(&self) -> u8 {
+        match self {
+            Boil::No => 0,
+            Boil::Near(_) => 1,
+            Boil::Boils(_) => 2,
+        }
+    }
+}
+
+/// The boiling status of the state at fraction `f` of `pour`, solved as `eq` at the
+/// temperature `heat` brought it to.
+fn boiling(
     cat: &Catalog,
     th: &Thresholds,
-    container: &Batch,
-    stream: &Batch,
-    end: &HeatReport,
-    worst: &HeatReport,
-) -> Vec<Finding> {
+    pour: &Pour,
+    f: f64,
+    eq: &crate::chem::Equilibrium,
+    heat: &HeatReport,
+) -> Result<Boil, CheckError> {
+    let makeup = pour.makeup(f);
+    let k = cat.physical.kelvin_offset;
+    // An asphyxiant that passes the atmosphere's pressure (CO2 from a neutralised carbonate)
+    // bubbles out of the liquid rather than boiling it; it is judged by the pressure it
+    // builds and by what reaches the room.
+    let mut eq = eq.clone();
+    eq.gases.retain(|g| !cat.asphyxiant_only(&g.gas));
+    let eq = &eq;
+    // Past the top of the aqueous model, water and solvents are taken at the temperature
+    // the heat would bring them to, with the gases as solved at the top.
+    let t = (heat.would_reach_c + k).max(eq.temperature_k);
+    let now = vapour_pressure(cat, eq, &makeup, t);
+    if now.boils() {
+        return Ok(Boil::Boils(now));
+    }
+    let warmer = t + th.heat.boiling_margin_k;
+    let eq_warm = pour
+        .solve_at(f, warmer)
+        .map_err(|error| CheckError::Solve {
+            what: format!("the boiling point {}", where_in_pour(f)),
+            error,
+        })?;
+    let mut eq_warm = eq_warm;
+    eq_warm.gases.retain(|g| !cat.asphyxiant_only(&g.gas));
+    let then = vapour_pressure(cat, &eq_warm, &makeup, warmer);
+    Ok(if then.boils() {
+        Boil::Near(then)
+    } else {
+        Boil::No
+    })
+}
+
+/// Findings on boiling, judged by what the pour changes: a container whose liquid already
+/// boils or is close to it gets its own finding.
+fn boiling_findings(th: &Thresholds, states: [(&Boil, f64); 2], alone: &Boil) -> Vec<Finding> {
+    let mut out = Vec::new();
+    let (worst, f) = states
+        .into_iter()
+        .max_by_key(|(b, f)| (b.rank(), (*f * 1e6) as i64))
+        .expect("two states");
+    let margin = th.heat.boiling_margin_k;
+    let describe = |b: &Boil| {
+        match b {
+        Boil::Boils(v) => format!(
+            "the liquid reaches {} °C, where its vapour pressure is {} kPa ({}) against {} kPa over it: it boils",
+            crate::text::fixed(v.temperature_c, 1),
+            crate::text::fixed(v.total_kpa, 0),
+            v.describe(),
+            crate::text::fixed(v.pressure_over_kpa, 1)
+        ),
+        Boil::Near(v) => format!(
+            "{margin} K warmer than it gets, at {} °C, the liquid's vapour pressure would reach {} kPa ({}), the {} kPa over it: it is close to boiling",
+            crate::text::fixed(v.temperature_c, 1),
+            crate::text::fixed(v.total_kpa, 0),
+            v.describe(),
+            crate::text::fixed(v.pressure_over_kpa, 1)
+        ),
+        Boil::No => String::new(),
+    }
+    };
+    if worst.rank() > alone.rank() {
+        let (severity, code) = if worst.boils() {
+            (Severity::Stop, "mixture-boils")
+        } else {
+            (Severity::Review, "mixture-near-boiling")
+        };
+        out.push(Finding::chemistry(
+            severity,
+            code,
+            format!(
+                "{}, {} ({}).",
+                crate::text::sentence_start(&where_in_pour(f)),
+                describe(worst),
+                th.heat.boiling_basis
+            ),
+            "Cool the receiving container, add slowly in small portions, and keep volatile solvents and dissolved gases out of pours that warm.",
+        ));
+    }
+    if alone.rank() > 0 {
+        out.push(Finding {
+            scope: crate::report::Scope::Container,
+            ..Finding::chemistry(
+                Severity::Review,
+                if alone.boils() {
+                    "container-boils"
+                } else {
+                    "container-near-boiling"
+                },
+                format!("Before anything is added, {}.", describe(alone)),
+                "Keep it cool and closed, open it only in a fume hood, and do not warm it.",
+            )
+        });
+    }
+    out
+}
+
+/// Findings on heat: the rise and the final temperature.
+fn heat_findings(th: &Thresholds, end: &HeatReport, worst: &HeatReport) -> Vec<Finding> {
     let h = &th.heat;
-    let hot = if worst.final_temperature_c > end.final_temperature_c {
+    let hot = if worst.would_reach_c > end.would_reach_c {
         worst
     } else {
         end
     };
-    let mut out = Vec::new();
-    let push = |out: &mut Vec<Finding>, severity, code: &str, message: String, caution: &str| {
-        out.push(Finding {
-            scope: crate::report::Scope::Pour,
-            severity,
-            code: code.into(),
-            message,
-            caution: caution.into(),
-            origin: "chemistry".into(),
-        })
-    };
-    let rise = hot.temperature_rise_k;
     let level = |v: f64, review: f64, stop: f64| {
         if v >= stop {
             Severity::Stop
@@ -523,94 +694,104 @@ fn heat_findings(
             Severity::Clear
         }
     };
-    let sev = level(rise, h.review_rise_k, h.stop_rise_k)
-        .max(level(
-            hot.final_temperature_c,
+    let sev = level(hot.temperature_rise_k, h.review_rise_k, h.stop_rise_k).max(level(
+        hot.would_reach_c,
+        h.review_final_c,
+        h.stop_final_c,
+    ));
+    if sev <= Severity::Clear {
+        return Vec::new();
+    }
+    let fixed = crate::text::fixed;
+    vec![Finding::chemistry(
+        sev,
+        "mixture-heats-up",
+        format!(
+            "The pour releases {} kJ ({} kJ from proton transfers, {} kJ from diluting concentrated reagents): the mixture goes from {} °C to {} °C (review at a rise of {} K or {} °C, stop at {} K or {} °C; {}).",
+            fixed(hot.reaction_heat_kj + hot.dilution_heat_kj, 0),
+            fixed(hot.reaction_heat_kj, 0),
+            fixed(hot.dilution_heat_kj, 0),
+            fixed(hot.start_temperature_c, 1),
+            fixed(hot.would_reach_c, 1),
+            h.review_rise_k,
             h.review_final_c,
+            h.stop_rise_k,
             h.stop_final_c,
-        ))
-        .max(if hot.boils {
-            Severity::Stop
-        } else {
-            Severity::Clear
-        });
-    if sev > Severity::Clear {
-        push(
-            &mut out,
-            sev,
-            "mixture-heats-up",
-            format!(
-                "The pour releases {:.0} kJ ({:.0} kJ from proton transfers, {:.0} kJ from diluting concentrated reagents): the mixture goes from {:.1} °C to {:.1} °C{} (review at a rise of {} K or {} °C, stop at {} K or {} °C; {}).",
-                hot.reaction_heat_kj + hot.dilution_heat_kj,
-                hot.reaction_heat_kj,
-                hot.dilution_heat_kj,
-                hot.start_temperature_c,
-                hot.final_temperature_c,
-                if hot.boils { " and boils" } else { "" },
-                h.review_rise_k,
-                h.review_final_c,
-                h.stop_rise_k,
-                h.stop_final_c,
-                h.basis
-            ),
-            "Add slowly with stirring and cooling, in small portions, and let the container cool before it is capped.",
-        );
-    }
-    let mut seen = Vec::new();
-    for c in container.components.iter().chain(stream.components.iter()) {
-        let Some(bp) = cat.boiling_point_c(c.substance) else {
-            continue;
-        };
-        if seen.contains(&c.substance) {
-            continue;
-        }
-        seen.push(c.substance);
-        let t = hot.final_temperature_c;
-        let sev = if t >= bp {
-            Severity::Stop
-        } else if t >= bp - h.boiling_margin_k {
-            Severity::Review
-        } else {
-            continue;
-        };
-        push(
-            &mut out,
-            sev,
-            "near-boiling-point",
-            format!(
-                "The mixture reaches {t:.1} °C; {} boils at {bp} °C and comes off as vapour.",
-                cat.substance(c.substance).name
-            ),
-            "Cool the receiving container and add slowly; keep volatile solvents out of reactive pours.",
-        );
-    }
-    out
+            h.basis
+        ),
+        "Add slowly with stirring and cooling, in small portions, and let the container cool before it is capped.",
+    )]
 }
 
-/// Findings on what a person in the room would breathe.
+/// Findings on what a person in the room would breathe. A figure the container already
+/// reaches on its own counts against the pour only when the pour makes it clearly worse.
 fn room_findings(
+    cat: &Catalog,
+    th: &Thresholds,
     gases: &[crate::room::RoomGasReport],
+    alone: &[crate::room::RoomGasReport],
     room: &crate::room::RoomSettings,
+    closure: Closure,
     exposed: bool,
 ) -> Vec<Finding> {
+    let factor = th.pour_change.clearly_worse_factor;
     let mut out = Vec::new();
     for g in gases {
-        if let Some(r) = g.worst_case_idlh_ratio.filter(|r| *r >= 1.0) {
-            out.push(Finding {
-                scope: crate::report::Scope::Pour,
-                severity: Severity::Review,
-                code: "room-worst-case".into(),
-                message: format!(
-                    "If all the {} the mixture holds in volatile form ({:.3} mol) came out at once, a {} m3 room would reach {} ppm, {:.1} × its stop level.",
+        let before = alone.iter().find(|a| a.formula == g.formula);
+        let pour_adds = |now: f64, then: fn(&crate::room::RoomGasReport) -> f64| {
+            before.is_none_or(|b| now > factor * then(b))
+        };
+        let asphyxiant = cat.asphyxiant_only(&g.formula);
+        let stop_ratio = g.worst_case_idlh_ratio.unwrap_or(0.0);
+        let review_ratio = g.worst_case_limit_ratio.unwrap_or(0.0);
+        // An asphyxiant in a vented or open vessel is judged here; a toxic gas is judged
+        // by its headspace, and the room's worst case asks for a spill plan.
+        let severity = if asphyxiant {
+            let s = if stop_ratio >= 1.0 {
+                Severity::Stop
+            } else if review_ratio >= 1.0 {
+                Severity::Review
+            } else {
+                Severity::Clear
+            };
+            if closure == Closure::Sealed {
+                s.min(Severity::Info)
+            } else {
+                s
+            }
+        } else if stop_ratio >= 1.0 {
+            Severity::Review
+        } else {
+            Severity::Clear
+        };
+        if severity != Severity::Clear
+            && pour_adds(g.worst_case_room_ppm, |b| b.worst_case_room_ppm)
+        {
+            let (ratio, level) = if stop_ratio >= 1.0 {
+                (stop_ratio, "stop level")
+            } else {
+                (review_ratio, "short-term level")
+            };
+            out.push(Finding::chemistry(
+                severity,
+                "room-worst-case",
+                format!(
+                    "Worst case for the room ({}): {} mol of {} ({} mol from the headspace, {} mol evaporated) would bring a {} m3 room to {}, {} its {level}.",
+                    room.worst_case,
+                    crate::text::fixed(g.headspace_mol + g.evaporated_mol, 3),
                     g.formula,
-                    g.releasable_mol,
+                    crate::text::fixed(g.headspace_mol, 3),
+                    crate::text::fixed(g.evaporated_mol, 3),
                     room.volume_m3,
-                    crate::assess::fmt_ppm(g.worst_case_room_ppm).trim_end_matches(" ppm"),
-                    r
+                    crate::assess::fmt_ppm(g.worst_case_room_ppm),
+                    crate::assess::fmt_times(ratio),
                 ),
-                caution: "Plan for a spill: keep the container in secondary containment in a ventilated place, and know the way out.".into(),
-                origin: "chemistry".into(),
-            });
+                if asphyxiant {
+                    "Pour slowly in a ventilated place and leave the vessel vented until the gas stops."
+                } else {
+                    "Plan for a spill: keep the container in secondary containment in a ventilated place, and know the way out."
+                },
+            ));
         }
         let css_stop = g.steady_state_idlh_ratio.unwrap_or(0.0);
         let css_review = g.steady_state_limit_ratio.unwrap_or(0.0);
@@ -621,30 +802,31 @@ fn room_findings(
         } else {
             continue;
         };
+        if !pour_adds(g.steady_state_ppm, |b| b.steady_state_ppm) {
+            continue;
+        }
         let when = |m: Option<f64>| match m {
             Some(m) => format!("after {m:.0} min"),
             None => "never".into(),
         };
-        out.push(Finding {
-            scope: crate::report::Scope::Pour,
-            severity: if exposed { severity } else { Severity::Info },
-            code: "room-evaporation".into(),
-            message: format!(
-                "{} {} evaporates from {} at about {:.1} mg/min; with {} air changes per hour in {} m3 the room settles at {} ppm ({:.1} × its short-term level; short-term level reached {}, stop level {}).",
+        out.push(Finding::chemistry(
+            if exposed { severity } else { Severity::Info },
+            "room-evaporation",
+            format!(
+                "{} {} evaporates from {} at about {} mg/min; with {} air changes per hour in {} m3 the room settles at {} ({} its short-term level; short-term level reached {}, stop level {}).",
                 if exposed { "Open to the room," } else { "If the container is opened," },
                 g.formula,
                 room.surface_basis,
-                g.emission_mg_per_min,
+                crate::text::fixed(g.emission_mg_per_min, 1),
                 room.air_changes_per_hour,
                 room.volume_m3,
-                crate::assess::fmt_ppm(g.steady_state_ppm).trim_end_matches(" ppm"),
-                css_review,
+                crate::assess::fmt_ppm(g.steady_state_ppm),
+                crate::assess::fmt_times(css_review),
                 when(g.minutes_to_short_term),
                 when(g.minutes_to_idlh)
             ),
-            caution: "Keep the container closed and in a fume hood or ventilated cabinet; the figures are a well-mixed room estimate, not a ventilation survey.".into(),
-            origin: "chemistry".into(),
-        });
+            "Keep the container closed and in a fume hood or ventilated cabinet; the figures are a well-mixed room estimate, not a ventilation survey.",
+        ));
     }
     out
 }
@@ -830,8 +1012,12 @@ fn assumptions(
         }
     }
     out.push(format!(
-        "Room: a well-mixed room ({} m3, {} air changes per hour unless --room and --air-changes say otherwise; {}); evaporation from the open surface by the EPA RMP equation D-1 with the gas's partial pressure over the liquid, at a constant rate (no depletion), which overstates what a dilute solution gives off; the worst case spreads everything the mixture holds in volatile form through the room at once.",
-        th.room.volume_m3, th.room.air_changes_per_hour, th.room.basis
+        "Room: a well-mixed room ({} m3, {} air changes per hour unless --room and --air-changes say otherwise; {}); evaporation from the open surface by the EPA RMP equation D-1 with the gas's partial pressure over the liquid; the room's steady state takes that rate as constant (no depletion), which overstates what a dilute solution gives off; the worst case releases the headspace at once and adds what evaporates over {} min ({}) as the liquid runs out of gas, all of it spread through the room with no credit for ventilation.",
+        th.room.volume_m3,
+        th.room.air_changes_per_hour,
+        th.room.basis,
+        th.room.exposure_window_min,
+        th.room.window_basis
     ));
     match container.closure {
         Closure::Sealed => {}

@@ -11,7 +11,9 @@ pub const PHYSICAL: &str = include_str!("../data/physical.yaml");
 pub const COMBINED: &str = include_str!("../data/combined.yaml");
 pub const RELEASES: &str = include_str!("../data/gas-release.yaml");
 pub const HEAT: &str = include_str!("../data/heat.yaml");
-pub const BOILING: &str = include_str!("../data/boiling-points.yaml");
+pub const DENSITY: &str = include_str!("../data/density.yaml");
+pub const DILUTION: &str = include_str!("../data/dilution-heat.yaml");
+pub const VOLATILITY: &str = include_str!("../data/volatility.yaml");
 pub const THRESHOLDS: &str = include_str!("../rules/thresholds.yaml");
 
 /// The built-in hazard rule files, by the name they carry in reports.
@@ -46,7 +48,9 @@ pub fn catalog() -> Result<Catalog, crate::catalog::CatalogError> {
         combined: ("data/combined.yaml", COMBINED),
         releases: ("data/gas-release.yaml", RELEASES),
         heat: ("data/heat.yaml", HEAT),
-        boiling: ("data/boiling-points.yaml", BOILING),
+        density: ("data/density.yaml", DENSITY),
+        dilution: ("data/dilution-heat.yaml", DILUTION),
+        volatility: ("data/volatility.yaml", VOLATILITY),
     })
 }
 

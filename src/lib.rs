@@ -5,9 +5,11 @@
 
 pub mod assess;
 pub mod batch;
+pub mod boiling;
 pub mod catalog;
 pub mod check;
 pub mod chem;
+pub mod composition;
 pub mod embedded;
 pub mod heat;
 pub mod input_shape;

@@ -2,6 +2,7 @@
 //! heat of reaction and dilution, solved at the temperature it reaches.
 
 use crate::batch::Batch;
+use crate::boiling::LiquidMakeup;
 use crate::catalog::{Catalog, SubstanceId};
 use crate::chem::{solve, Equilibrium, Mixture, SolveError, SolverSettings};
 use crate::heat::{reaction_heat_kj, temperature_rise};
@@ -10,17 +11,17 @@ use serde::Serialize;
 /// Highest temperature the aqueous model is solved at; above it the mixture boils.
 const BOILING_K: f64 = 373.15;
 
-/// A reagent below this mass share of its batch is already dilute: the rest of its heat of
-/// dilution is small (a few kJ/mol at most) and is not counted.
-const CONCENTRATED_SHARE: f64 = 0.1;
-
 /// A batch as the heat balance sees it.
 #[derive(Debug, Clone)]
 pub struct BatchHeat {
     /// Mass of the batch, g.
     pub mass_g: f64,
-    /// Components with a heat of dilution: (substance, mol of solute, mass as written, g).
-    pub diluting: Vec<(SubstanceId, f64, f64)>,
+    /// Mol of water in it.
+    pub water_mol: f64,
+    /// Components with a dilution curve: (substance, mol of solute).
+    pub diluting: Vec<(SubstanceId, f64)>,
+    /// Solvents and other volatile liquids, for the boiling point: (substance, mol).
+    pub solvents: Vec<(SubstanceId, f64)>,
 }
 
 /// Heat and temperature of one state along the pour.
@@ -33,47 +34,35 @@ pub struct HeatReport {
     /// Heat of diluting concentrated reagents, kJ.
     pub dilution_heat_kj: f64,
     pub temperature_rise_k: f64,
-    /// Temperature the mixture reaches (held at 100 °C when it would boil).
+    /// Temperature the mixture reaches (held at 100 °C, the top of the aqueous model).
     pub final_temperature_c: f64,
+    /// Temperature the heat alone would bring it to (beyond 100 °C when it boils).
+    pub would_reach_c: f64,
+    /// Its vapour pressure reaches the pressure over it (set by the boiling assessment).
     pub boils: bool,
-}
-
-/// Grams of a component as written (a commercial solution counts with its water).
-fn component_mass_g(cat: &Catalog, sid: SubstanceId, moles: f64) -> f64 {
-    let s = cat.substance(sid);
-    match (&s.solution, s.density_g_per_ml) {
-        (Some(sol), Some(d)) => moles / sol.solute_mol_per_ml * d,
-        _ => moles * s.molar_mass.unwrap_or(0.0),
-    }
 }
 
 impl BatchHeat {
     pub fn of(cat: &Catalog, b: &Batch) -> BatchHeat {
-        let written: f64 = b
-            .components
-            .iter()
-            .map(|c| component_mass_g(cat, c.substance, c.moles))
-            .sum();
-        // Without a stated density, a batch weighs at least its water and at least what
-        // its components weigh (a neat concentrated reagent is heavier than water).
-        let mass_g = if b.density_given {
-            b.volume_l * b.density_g_per_ml * 1e3
-        } else {
-            (b.volume_l * 1e3).max(written)
-        };
+        let comp = b.composition(cat);
         let diluting = b
             .components
             .iter()
-            .filter(|c| cat.dissolution_heat(c.substance).is_some())
-            .map(|c| {
-                (
-                    c.substance,
-                    c.moles,
-                    component_mass_g(cat, c.substance, c.moles),
-                )
-            })
+            .filter(|c| c.moles > 0.0 && cat.dilution_curve(c.substance).is_some())
+            .map(|c| (c.substance, c.moles))
             .collect();
-        BatchHeat { mass_g, diluting }
+        let solvents = b
+            .components
+            .iter()
+            .filter(|c| c.moles > 0.0 && cat.volatility(c.substance).is_some())
+            .map(|c| (c.substance, c.moles))
+            .collect();
+        BatchHeat {
+            mass_g: comp.mass_g,
+            water_mol: comp.water_mol(),
+            diluting,
+            solvents,
+        }
     }
 }
 
@@ -86,6 +75,7 @@ impl HeatReport {
             dilution_heat_kj: 0.0,
             temperature_rise_k: 0.0,
             final_temperature_c: t_c,
+            would_reach_c: t_c,
             boils: false,
         }
     }
@@ -110,28 +100,23 @@ impl Pour<'_> {
         self.vessel.pour(self.stream, f, self.capacity_l)
     }
 
-    /// Heat of dilution (kJ) when the stream's fraction `f` joins the vessel: each
-    /// concentrated component (at least a tenth of its batch by mass) releases its heat to
-    /// infinite dilution in proportion to how far its mass share falls (a linear stand-in
-    /// for the integral heat curve).
+    /// Heat of dilution (kJ) when the stream's fraction `f` joins the vessel: each solute
+    /// with a dilution curve goes from the water it had in its own batch to the water of
+    /// the mixture, and releases the difference of its integral heats of dilution.
     fn dilution_kj(&self, f: f64) -> f64 {
-        let total = self.vessel_heat.mass_g + f * self.stream_heat.mass_g;
-        if total <= 0.0 {
-            return 0.0;
-        }
+        let water = self.vessel_heat.water_mol + f * self.stream_heat.water_mol;
         let mut q = 0.0;
         for (heat, scale) in [(self.vessel_heat, 1.0), (self.stream_heat, f)] {
-            if heat.mass_g <= 0.0 || scale == 0.0 {
+            if scale == 0.0 {
                 continue;
             }
-            for &(sid, moles, mass) in &heat.diluting {
-                let dh = self.cat.dissolution_heat(sid).unwrap_or(0.0);
-                let before = (mass / heat.mass_g).min(1.0);
-                if before < CONCENTRATED_SHARE {
+            for &(sid, moles) in &heat.diluting {
+                let Some(curve) = self.cat.dilution_curve(sid) else {
                     continue;
-                }
-                let after = (mass * scale / total).min(1.0);
-                q += -dh * moles * scale * (before - after).max(0.0);
+                };
+                let before = heat.water_mol / moles;
+                let after = water / (moles * scale);
+                q += moles * scale * (curve.value(after) - curve.value(before));
             }
         }
         q
@@ -153,8 +138,33 @@ impl Pour<'_> {
             dilution_heat_kj: dilution,
             temperature_rise_k: rise,
             final_temperature_c: end_k.min(BOILING_K) - self.cat.physical.kelvin_offset,
+            would_reach_c: end_k - self.cat.physical.kelvin_offset,
             boils: end_k > BOILING_K,
         }
+    }
+
+    /// What the liquid holds at fraction `f` besides the solved species.
+    pub fn makeup(&self, f: f64) -> LiquidMakeup {
+        let m = self.mixture(f);
+        let mut solvents = self.vessel_heat.solvents.clone();
+        for &(sid, n) in &self.stream_heat.solvents {
+            match solvents.iter_mut().find(|(s, _)| *s == sid) {
+                Some((_, have)) => *have += n * f,
+                None => solvents.push((sid, n * f)),
+            }
+        }
+        LiquidMakeup {
+            water_mol: self.vessel_heat.water_mol + f * self.stream_heat.water_mol,
+            strong_ion_mol: m.ions.iter().map(|(_, n)| n).sum(),
+            solvents,
+        }
+    }
+
+    /// The mixture at fraction `f` solved at `t_k` (within the aqueous model's range).
+    pub fn solve_at(&self, f: f64, t_k: f64) -> Result<Equilibrium, SolveError> {
+        let mut m = self.mixture(f);
+        m.temperature_k = t_k.clamp(273.15, BOILING_K);
+        solve(self.cat, &m, &self.settings)
     }
 
     /// The state at fraction `f`, solved at the temperature its own heat brings it to.

@@ -341,10 +341,11 @@ fn heat_and_room_text(r: &CheckReport) -> String {
         let _ = writeln!(out, "  Nothing volatile to release.");
         return out;
     }
+    let _ = writeln!(out, "  Worst case: {}.", room.settings.worst_case);
     let mut t = table();
     t.set_header(vec![
         "gas",
-        "all of it in the room, ppm",
+        "worst case, ppm",
         "vs stop level",
         "evaporation mg/min",
         "steady state, ppm",

@@ -1,6 +1,7 @@
-//! What a person in the room would breathe: the worst case (all the gas the mixture can
-//! give off, spread through the room), and evaporation from an open surface into a
-//! ventilated, well-mixed room.
+//! What a person in the room would breathe: the worst case that can happen (the headspace
+//! released at once, then evaporation from the open surface or a spill over the exposure
+//! window, the liquid running out of gas as it goes, all of it spread through the room),
+//! and evaporation from an open surface into a ventilated, well-mixed room.
 //!
 //! Well-mixed room model (AIHA, Mathematical Models for Estimating Occupational Exposure
 //! to Chemicals, 2nd ed., 2009, ch. 6): C(t) = (G/Q)(1 − exp(−Q t / V)), steady state
@@ -20,6 +21,10 @@ pub struct RoomSettings {
     pub surface_area_m2: f64,
     /// Where the area came from, in words.
     pub surface_basis: String,
+    /// Minutes of evaporation the worst case counts.
+    pub exposure_window_min: f64,
+    /// Which worst case applies, in words (opened after standing sealed, vented, open, spill).
+    pub worst_case: String,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -27,9 +32,16 @@ pub struct RoomGasReport {
     pub formula: String,
     /// Moles in volatile form, in the liquid and the headspace together.
     pub releasable_mol: f64,
-    /// All of it spread evenly through the room, ppm.
+    /// Moles in the headspace, released at once when the vessel is opened or vents.
+    pub headspace_mol: f64,
+    /// Moles that evaporate from the surface over the exposure window, the liquid running
+    /// out of gas as it goes.
+    pub evaporated_mol: f64,
+    /// The headspace and the evaporated gas spread through the room (no credit for
+    /// ventilation during the window), ppm.
     pub worst_case_room_ppm: f64,
     pub worst_case_idlh_ratio: Option<f64>,
+    pub worst_case_limit_ratio: Option<f64>,
     /// Evaporation from the open surface, mg/min.
     pub emission_mg_per_min: f64,
     /// Steady-state room concentration from that emission, ppm.
@@ -79,6 +91,17 @@ fn to_ppm(cat: &Catalog, kg_per_m3: f64, mw: f64, t_k: f64) -> f64 {
     kg_per_m3 * 1e3 / mw * cat.physical.r * t_k / cat.physical.p_std * 1e6
 }
 
+/// Moles that leave `in_liquid_mol` of a volatile form over `window_s`, when it starts to
+/// evaporate at `emission_kg_per_s` and the rate falls in proportion to what is left
+/// (first-order depletion: N(t) = N0 exp(−k t), k = G0 / (N0 M)).
+pub fn evaporated_mol(in_liquid_mol: f64, emission_kg_per_s: f64, mw: f64, window_s: f64) -> f64 {
+    if in_liquid_mol <= 0.0 || emission_kg_per_s <= 0.0 {
+        return 0.0;
+    }
+    let k = emission_kg_per_s / (in_liquid_mol * mw / 1e3);
+    in_liquid_mol * -(-k * window_s).exp_m1()
+}
+
 /// Room figures for every gas of a state.
 pub fn room_report(cat: &Catalog, eq: &Equilibrium, r: &RoomSettings) -> Vec<RoomGasReport> {
     let t_k = eq.temperature_k;
@@ -108,11 +131,6 @@ pub fn room_report(cat: &Catalog, eq: &Equilibrium, r: &RoomSettings) -> Vec<Roo
             continue;
         }
         let levels = cat.judged_levels(&g.gas);
-        let worst_ppm = releasable * cat.physical.r * t_k / cat.physical.p_std / r.volume_m3 * 1e6;
-        if worst_ppm < 1e-6 {
-            // Below anything a report shows; the headspace tables apply the same floor.
-            continue;
-        }
         let emission = cat.physical.evaporation_kg_per_s(
             mw,
             g.partial_pressure_pa,
@@ -120,6 +138,14 @@ pub fn room_report(cat: &Catalog, eq: &Equilibrium, r: &RoomSettings) -> Vec<Roo
             t_k,
             r.air_speed_m_per_s,
         );
+        let in_liquid = (releasable - g.moles_in_gas).max(0.0);
+        let evaporated = evaporated_mol(in_liquid, emission, mw, r.exposure_window_min * 60.0);
+        let released = g.moles_in_gas + evaporated;
+        let worst_ppm = released * cat.physical.r * t_k / cat.physical.p_std / r.volume_m3 * 1e6;
+        if worst_ppm < 1e-6 && releasable * cat.physical.r * t_k / cat.physical.p_std < 1e-12 {
+            // Below anything a report shows; the headspace tables apply the same floor.
+            continue;
+        }
         let css_ppm = to_ppm(cat, steady_state(emission, r), mw, t_k);
         let ppm_to_kg =
             |ppm: f64| ppm / 1e6 * cat.physical.p_std / (cat.physical.r * t_k) * mw / 1e3;
@@ -133,8 +159,11 @@ pub fn room_report(cat: &Catalog, eq: &Equilibrium, r: &RoomSettings) -> Vec<Roo
         out.push(RoomGasReport {
             formula: g.gas.clone(),
             releasable_mol: releasable,
+            headspace_mol: g.moles_in_gas,
+            evaporated_mol: evaporated,
             worst_case_room_ppm: worst_ppm,
             worst_case_idlh_ratio: levels.as_ref().map(|l| worst_ppm / l.stop_ppm),
+            worst_case_limit_ratio: levels.as_ref().map(|l| worst_ppm / l.review_ppm),
             emission_mg_per_min: emission * 1e6 * 60.0,
             steady_state_ppm: css_ppm,
             steady_state_limit_ratio: levels.as_ref().map(|l| css_ppm / l.review_ppm),

@@ -10,6 +10,15 @@ pub fn fixed(v: f64, decimals: usize) -> String {
     }
 }
 
+/// `s` with its first letter in capitals, to open a sentence.
+pub fn sentence_start(s: &str) -> String {
+    let mut c = s.chars();
+    match c.next() {
+        Some(first) => first.to_uppercase().chain(c).collect(),
+        None => String::new(),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::fixed;

@@ -87,6 +87,7 @@ pub struct HeatThresholds {
     pub stop_final_c: f64,
     pub boiling_margin_k: f64,
     pub basis: String,
+    pub boiling_basis: String,
 }
 
 #[derive(Debug, Clone, Deserialize)]

@@ -1,5 +1,5 @@
-//! Heat data: heats of dilution of concentrated reagents, the heat capacity of water
-//! (`data/heat.yaml`), and boiling points (`data/boiling-points.yaml`).
+//! Heat data (`data/heat.yaml`): the heat of neutralization and the heat capacity of
+//! water; and the reference to a proton step that dilution curves share.
 
 use serde::Deserialize;
 
@@ -7,7 +7,6 @@ use serde::Deserialize;
 pub struct HeatFile {
     pub neutralization: SourcedValue,
     pub heat_capacity: SourcedValue,
-    pub dissolution: Vec<Dissolution>,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -17,30 +16,7 @@ pub struct SourcedValue {
 }
 
 #[derive(Debug, Clone, Deserialize)]
-pub struct Dissolution {
-    pub substance: String,
-    /// kJ per mol of solute from the entry's form to infinite dilution (negative releases heat).
-    pub dh_to_infinite_dilution_kj_per_mol: f64,
-    pub source: String,
-    /// Proton steps the handbook value runs through that the speciation already counts.
-    #[serde(default)]
-    pub weak_steps_included: Vec<StepRef>,
-}
-
-#[derive(Debug, Clone, Deserialize)]
 pub struct StepRef {
     pub family: String,
     pub step: usize,
-}
-
-#[derive(Debug, Clone, Deserialize)]
-pub struct BoilingFile {
-    pub boiling_points: Vec<BoilingPoint>,
-}
-
-#[derive(Debug, Clone, Deserialize)]
-pub struct BoilingPoint {
-    pub substance: String,
-    pub celsius: f64,
-    pub source: String,
 }

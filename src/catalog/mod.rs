@@ -5,11 +5,14 @@
 //! engine can index without checking again. It never reads files itself.
 
 pub mod combined;
+pub mod density;
+pub mod dilution;
 pub mod heat;
 pub mod limits;
 pub mod physical;
 pub mod species;
 pub mod substances;
+pub mod volatility;
 
 use std::collections::HashMap;
 
@@ -36,7 +39,9 @@ pub struct DataSources<'a> {
     pub combined: (&'a str, &'a str),
     pub releases: (&'a str, &'a str),
     pub heat: (&'a str, &'a str),
-    pub boiling: (&'a str, &'a str),
+    pub density: (&'a str, &'a str),
+    pub dilution: (&'a str, &'a str),
+    pub volatility: (&'a str, &'a str),
 }
 
 /// A commercial solution: one millilitre holds `solute_mol_per_ml` of the solute.
@@ -133,10 +138,18 @@ pub struct Catalog {
     pub combined: Vec<CombinedSpecies>,
     /// Stoichiometric gas releases (hydrogen from metals and hydrides).
     pub releases: Vec<(SubstanceId, Release)>,
-    /// kJ per mol of solute released (negative) or taken up on dilution to infinity.
-    pub dissolution: Vec<(SubstanceId, f64)>,
-    /// Boiling points, °C.
-    pub boiling: Vec<(SubstanceId, f64)>,
+    /// Density of pure water, g/mL, at the density tables' temperature.
+    pub water_density: f64,
+    /// Density tables, and for each substance the table of what it dissolves as, with the
+    /// g/mol of the anhydrous solute the table counts.
+    pub density_tables: Vec<density::DensityTable>,
+    density_of: Vec<Option<(usize, f64)>>,
+    /// Dilution curves, and for each substance the curve of its solute.
+    pub dilution_curves: Vec<dilution::DilutionCurve>,
+    dilution_of: Vec<Option<usize>>,
+    /// Volatility of solvents, and for each substance its solvent entry.
+    pub volatilities: Vec<volatility::Volatility>,
+    volatility_of: Vec<Option<usize>>,
     /// J/(g K) of the mixed liquid (water's).
     pub heat_capacity: f64,
     /// kJ/mol for H+ + OH- → H2O, as the heat data file states it (a check on water's dh).
@@ -147,6 +160,9 @@ pub struct Catalog {
     substance_index: HashMap<String, SubstanceId>,
     gas_index: HashMap<String, usize>,
 }
+
+/// g/mol of water, for crystal water and mole fractions.
+pub const WATER_MOLAR_MASS: f64 = 18.015;
 
 /// Lower-cases and collapses whitespace so that "Sodium  Cyanide" finds "sodium cyanide".
 pub fn normalize_name(s: &str) -> String {
@@ -173,7 +189,9 @@ impl Catalog {
         let combined: combined::CombinedFile = parse(src.combined)?;
         let releases: ReleasesFile = parse(src.releases)?;
         let heat_file: heat::HeatFile = parse(src.heat)?;
-        let boiling_file: heat::BoilingFile = parse(src.boiling)?;
+        let density_file: density::DensityFile = parse(src.density)?;
+        let dilution_file: dilution::DilutionFile = parse(src.dilution)?;
+        let volatility_file: volatility::VolatilityFile = parse(src.volatility)?;
         let bad = |file: &str, message: String| CatalogError::Invalid {
             file: file.to_string(),
             message,
@@ -425,38 +443,125 @@ impl Catalog {
                 .copied()
                 .ok_or_else(|| bad(file, format!("unknown substance `{name}`")))
         };
-        let mut dissolution = Vec::new();
-        for d in &heat_file.dissolution {
-            let v = d.dh_to_infinite_dilution_kj_per_mol;
-            if !v.is_finite() || d.source.trim().is_empty() {
+        let n = resolved.len();
+        // What a substance dissolves as: itself, or a commercial solution's solute.
+        let dissolves_as =
+            |i: usize| -> usize { resolved[i].solution.as_ref().map_or(i, |sol| sol.solute.0) };
+
+        if density_file.water.source.trim().is_empty() {
+            return Err(bad(src.density.0, "the water density has no source".into()));
+        }
+        let water_density = density_file.water.density;
+        let mut density_tables = Vec::new();
+        let mut table_of_substance: HashMap<usize, usize> = HashMap::new();
+        for e in &density_file.solutes {
+            let sid = lookup(src.density.0, &e.substance)?;
+            let t =
+                density::DensityTable::new(e, water_density).map_err(|m| bad(src.density.0, m))?;
+            if table_of_substance
+                .insert(sid.0, density_tables.len())
+                .is_some()
+            {
                 return Err(bad(
-                    src.heat.0,
-                    format!("`{}`: heat must be finite with a source", d.substance),
+                    src.density.0,
+                    format!("`{}` appears twice", e.substance),
                 ));
             }
-            // The speciation's proton-transfer heat already counts these steps.
-            let mut counted = 0.0;
-            for sr in &d.weak_steps_included {
-                let step = family_index
+            density_tables.push(t);
+        }
+        // A hydrate shares its anhydrous salt's table and the other way round: same ions
+        // and families in water, mass percent counted as the anhydrous salt.
+        let signature = |s: &Substance| -> Option<String> {
+            if s.is_inert() {
+                return None;
+            }
+            let mut parts: Vec<String> = s
+                .families
+                .iter()
+                .map(|(f, k)| format!("f{}x{k}", f.0))
+                .chain(s.ions.iter().map(|(i, k)| format!("i{}x{k}", i.0)))
+                .collect();
+            parts.sort();
+            Some(parts.join(","))
+        };
+        let anhydrous_mass = |s: &Substance| -> Option<f64> {
+            let m = s.molar_mass?;
+            let water = s.formula.as_deref().map_or(0.0, density::crystal_water);
+            Some(m - water * WATER_MOLAR_MASS)
+        };
+        let mut density_of = vec![None; n];
+        for (i, slot) in density_of.iter_mut().enumerate() {
+            let base = dissolves_as(i);
+            let table = table_of_substance.get(&base).copied().or_else(|| {
+                let sig = signature(&resolved[base])?;
+                let mut same = table_of_substance
+                    .iter()
+                    .filter(|(k, _)| signature(&resolved[**k]).as_deref() == Some(sig.as_str()));
+                let first = same.next()?;
+                same.next().is_none().then_some(*first.1)
+            });
+            if let (Some(t), Some(m)) = (table, anhydrous_mass(&resolved[base])) {
+                *slot = Some((t, m));
+            }
+        }
+
+        let mut dilution_curves = Vec::new();
+        let mut curve_of_substance: HashMap<usize, usize> = HashMap::new();
+        for e in &dilution_file.curves {
+            let sid = lookup(src.dilution.0, &e.solute)?;
+            let mut steps = Vec::new();
+            for sr in &e.weak_steps_included {
+                let fam = family_index
                     .get(&sr.family)
-                    .and_then(|f| species.families[f.0].steps.get(sr.step))
+                    .map(|f| &species.families[f.0])
+                    .filter(|f| sr.step < f.steps.len())
                     .ok_or_else(|| {
                         bad(
-                            src.heat.0,
+                            src.dilution.0,
                             format!(
                                 "`{}`: no step {} in family `{}`",
-                                d.substance, sr.step, sr.family
+                                e.solute, sr.step, sr.family
                             ),
                         )
                     })?;
-                counted += step.dh;
+                steps.push(dilution::IncludedStep {
+                    ka: 10f64.powf(-fam.steps[sr.step].pka),
+                    dh: fam.steps[sr.step].dh,
+                    protons_before: sr.step as f64,
+                });
             }
-            dissolution.push((lookup(src.heat.0, &d.substance)?, v - counted));
+            let c = dilution::DilutionCurve::new(e, steps).map_err(|m| bad(src.dilution.0, m))?;
+            if curve_of_substance
+                .insert(sid.0, dilution_curves.len())
+                .is_some()
+            {
+                return Err(bad(src.dilution.0, format!("`{}` appears twice", e.solute)));
+            }
+            dilution_curves.push(c);
         }
-        let mut boiling = Vec::new();
-        for b in &boiling_file.boiling_points {
-            boiling.push((lookup(src.boiling.0, &b.substance)?, b.celsius));
+        let dilution_of = (0..n)
+            .map(|i| curve_of_substance.get(&dissolves_as(i)).copied())
+            .collect();
+
+        let mut volatilities = Vec::new();
+        let mut volatility_of_substance: HashMap<usize, usize> = HashMap::new();
+        for e in &volatility_file.solvents {
+            let sid = lookup(src.volatility.0, &e.substance)?;
+            let v = volatility::Volatility::from_entry(e).map_err(|m| bad(src.volatility.0, m))?;
+            if volatility_of_substance
+                .insert(sid.0, volatilities.len())
+                .is_some()
+            {
+                return Err(bad(
+                    src.volatility.0,
+                    format!("`{}` appears twice", e.substance),
+                ));
+            }
+            volatilities.push(v);
         }
+        let volatility_of = (0..n)
+            .map(|i| volatility_of_substance.get(&dissolves_as(i)).copied())
+            .collect();
 
         let mut gas_index = HashMap::new();
         for (i, g) in limits.gases.iter().enumerate() {
@@ -483,8 +588,13 @@ impl Catalog {
             physical: physical.into(),
             combined: linked,
             releases: resolved_releases,
-            dissolution,
-            boiling,
+            water_density,
+            density_tables,
+            density_of,
+            dilution_curves,
+            dilution_of,
+            volatilities,
+            volatility_of,
             heat_capacity: heat_file.heat_capacity.value,
             neutralization_kj: heat_file.neutralization.value,
             water,
@@ -496,17 +606,24 @@ impl Catalog {
     }
 
     /// kJ per mol of solute on dilution to infinity, for concentrated reagents.
-    pub fn dissolution_heat(&self, id: SubstanceId) -> Option<f64> {
-        self.dissolution
-            .iter()
-            .find(|(s, _)| *s == id)
-            .map(|(_, v)| *v)
+    /// The density table of what a substance dissolves as, with the g/mol its mass
+    /// percent counts (the anhydrous solute).
+    pub fn density_table(&self, id: SubstanceId) -> Option<(&density::DensityTable, f64)> {
+        self.density_of[id.0].map(|(t, m)| (&self.density_tables[t], m))
     }
+
+    /// The dilution curve of a substance's solute.
+    pub fn dilution_curve(&self, id: SubstanceId) -> Option<&dilution::DilutionCurve> {
+        self.dilution_of[id.0].map(|c| &self.dilution_curves[c])
+    }
+
     pub fn water_heat_capacity(&self) -> f64 {
         self.heat_capacity
     }
-    pub fn boiling_point_c(&self, id: SubstanceId) -> Option<f64> {
-        self.boiling.iter().find(|(s, _)| *s == id).map(|(_, v)| *v)
+
+    /// The volatility of a solvent (or of a commercial solution's solvent-like solute).
+    pub fn volatility(&self, id: SubstanceId) -> Option<&volatility::Volatility> {
+        self.volatility_of[id.0].map(|v| &self.volatilities[v])
     }
 
     pub fn family(&self, id: FamilyId) -> &Family {

@@ -63,8 +63,28 @@ pub struct Volatile {
     /// d ln Hcp / d(1/T), K.
     pub hcp_b: f64,
     pub source: String,
+    /// The neutral form's activity coefficient in its own concentrated solution,
+    /// ln γ = 2 λ m with λ = a + b/T + c/T² (Pitzer's self-interaction of a neutral solute).
+    #[serde(default)]
+    pub self_interaction: Option<SelfInteraction>,
     #[serde(default)]
     pub note: Option<String>,
+}
+
+/// λ(T) = a + b/T + c/T², kg/mol.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SelfInteraction {
+    pub a: f64,
+    pub b: f64,
+    pub c: f64,
+    pub source: String,
+}
+
+impl SelfInteraction {
+    pub fn lambda(&self, t_k: f64) -> f64 {
+        self.a + self.b / t_k + self.c / (t_k * t_k)
+    }
 }
 
 /// pKw(T) = a/T + b + c·T.

@@ -21,6 +21,8 @@ pub struct Mixture {
     pub families: Vec<(FamilyId, f64)>,
     pub ions: Vec<(IonId, f64)>,
     pub liquid_l: f64,
+    /// kg of water in the liquid (None: not known, taken as a dilute solution).
+    pub water_kg: Option<f64>,
     pub headspace_l: f64,
     pub temperature_k: f64,
     pub closure: Closure,
@@ -32,6 +34,7 @@ impl Mixture {
             families: Vec::new(),
             ions: Vec::new(),
             liquid_l: 0.0,
+            water_kg: None,
             headspace_l: 0.0,
             temperature_k,
             closure,
@@ -76,6 +79,10 @@ impl Mixture {
                 (self.temperature_k * self.liquid_l + other.temperature_k * added) / liquid;
         }
         m.liquid_l = liquid;
+        m.water_kg = match (self.water_kg, other.water_kg) {
+            (Some(a), Some(b)) => Some(a + b * fraction),
+            _ => None,
+        };
         m.headspace_l = (capacity_l - liquid).max(0.0);
         m
     }

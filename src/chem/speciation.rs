@@ -15,6 +15,13 @@ use crate::catalog::{Catalog, FamilyId};
 /// Most steps any family may have (EDTA has six).
 const MAX_STEPS: usize = 8;
 
+/// kg of water in a litre of dilute solution (water's density at 25 °C), the scale on
+/// which Henry's law constants are given.
+const DILUTE_WATER_KG_PER_L: f64 = 0.997;
+
+/// Least water per litre the molal scale follows, kg/L.
+const MIN_WATER_KG_PER_L: f64 = 0.5;
+
 #[derive(Debug, Clone, Copy)]
 pub struct SolverSettings {
     /// Ionic strength above which Davies is outside its validity; coefficients are held
@@ -128,9 +135,17 @@ struct Term {
     ka: [f64; MAX_STEPS],
     /// Cumulative conditional constants: beta[j] = Π_{i<=j} K'_i; beta[0] = 1.
     beta: [f64; MAX_STEPS + 1],
-    /// Moles in gas per mole in liquid, per unit volatile fraction: V_g / (Hcp R T V_l).
+    /// Moles in gas per mole in liquid, per unit volatile fraction:
+    /// henry · V_g / (Hcp R T V_l).
     gas_factor: f64,
+    /// V_g / (Hcp R T V_l) before the neutral form's activity and the molal scale.
+    base_gas_factor: f64,
     volatile: usize,
+    /// Partial pressure per mol/L of the neutral form, over 1/Hcp: the molal scale times the
+    /// neutral form's activity coefficient.
+    henry: f64,
+    /// The neutral form's self-interaction λ at the temperature, when the data give one.
+    lambda: Option<f64>,
 }
 
 /// A combined species prepared for evaluation: parents are indices into `terms`.
@@ -154,6 +169,8 @@ struct Point {
 }
 
 struct Prepared {
+    /// mol/kg of water per mol/L of liquid.
+    molal: f64,
     terms: Vec<Term>,
     links: Vec<Link>,
     strong_charge: f64,
@@ -214,6 +231,29 @@ impl Prepared {
 }
 
 impl Prepared {
+    /// Sets each self-interacting neutral form's activity coefficient from its molality at
+    /// x; true when none changed.
+    fn update_neutral_activity(&mut self, x: f64, molal_scale: f64) -> bool {
+        let mut settled = true;
+        let molal = self.molal;
+        for t in self.terms.iter_mut() {
+            let Some(lambda) = t.lambda else {
+                continue;
+            };
+            let mut w = [0.0; MAX_STEPS + 1];
+            let d = weights(t, x, &mut w);
+            let neutral = liquid_total(t, &w, d) * w[t.volatile] / d;
+            let gamma = (2.0 * lambda * neutral * molal).exp();
+            let henry = molal_scale * gamma;
+            if (henry - t.henry).abs() > 1e-12 * henry {
+                settled = false;
+            }
+            t.henry = henry;
+            t.gas_factor = t.base_gas_factor * henry;
+        }
+        settled
+    }
+
     /// Moles per litre of liquid (liquid and gas together) of each link's species at x.
     fn link_amount(&self, l: &Link, x: f64) -> f64 {
         let (ta, tb) = (&self.terms[l.first.0], &self.terms[l.second.0]);
@@ -330,6 +370,16 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
         m.headspace_l.max(0.0)
     };
 
+    // Henry's law holds on the molal scale: per mol/L of liquid, a mol/kg of water is
+    // 1/water_kg_per_l; the constants are for dilute solution, where that is 1/0.997.
+    // Below half a kilogram of water per litre the liquid is mostly something else and
+    // outside the aqueous model: the scale is held there rather than followed to infinity.
+    let water_kg_per_l = match m.water_kg {
+        Some(w) => (w / vl).max(MIN_WATER_KG_PER_L),
+        None => DILUTE_WATER_KG_PER_L,
+    };
+    let molal = 1.0 / water_kg_per_l;
+    let molal_scale = DILUTE_WATER_KG_PER_L / water_kg_per_l;
     let mut strong_charge = 0.0;
     let mut strong_ionic = 0.0;
     for &(ion, n) in &m.ions {
@@ -363,8 +413,14 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
                 let hcp = henry_hcp(phys, v, t_k);
                 ((vg / vl) / (hcp * phys.r * t_k), idx)
             }
+            (Some(_), Some(idx)) => (0.0, idx),
             _ => (0.0, 0),
         };
+        let lambda = fam
+            .volatile
+            .as_ref()
+            .and_then(|v| v.self_interaction.as_ref())
+            .map(|si| si.lambda(t_k));
         term_of.push(fid);
         terms.push(Term {
             c_total: n / vl,
@@ -372,8 +428,11 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
             z0: fam.species[0].charge,
             ka,
             beta: [0.0; MAX_STEPS + 1],
-            gas_factor,
+            gas_factor: gas_factor * molal_scale,
+            base_gas_factor: gas_factor,
             volatile,
+            henry: molal_scale,
+            lambda,
         });
     }
     let kw = 10f64.powf(log_kw(phys, cat.family(cat.water), t_k));
@@ -406,6 +465,7 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
         });
     }
     let mut p = Prepared {
+        molal,
         terms,
         links,
         strong_charge,
@@ -432,7 +492,8 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
         // Above the limit the coefficients no longer change with I, so one more pass is exact.
         let frozen = ionic > s.activity_limit && new_ionic > s.activity_limit;
         ionic = new_ionic;
-        if close || frozen {
+        let neutrals_settled = p.update_neutral_activity(root.exp(), molal_scale);
+        if (close || frozen) && neutrals_settled {
             converged = true;
             if frozen {
                 limited = true;
@@ -577,8 +638,9 @@ fn assemble(
         }
         if let (Some(v), Some(idx)) = (&fam.volatile, fam.volatile_index()) {
             let hcp = henry_hcp(phys, v, t_k);
-            // c in mol/L → mol/m3; p = c / Hcp.
-            let pa = concentrations[idx] * 1e3 / hcp;
+            // c in mol/L → mol/m3; p = c / Hcp on the molal scale, with the neutral form's
+            // activity coefficient.
+            let pa = concentrations[idx] * 1e3 * t.henry / hcp;
             let moles_in_gas = pa * (vg / 1e3) / (phys.r * t_k);
             gases.push(GasState {
                 family: fid,

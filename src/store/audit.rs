@@ -208,6 +208,10 @@ fn profile(cat: &Catalog, th: &Thresholds, c: &StoredContainer) -> Profile {
                 m.add_ion(i, n * moles);
             }
             m.liquid_l = 1.0;
+            m.water_kg = Some(
+                crate::composition::composition(cat, &[(*substance, *moles)], 1.0, None).water_g
+                    / 1e3,
+            );
             (m, vec![(*substance, *moles)], true)
         }
     };
@@ -243,7 +247,7 @@ fn profile(cat: &Catalog, th: &Thresholds, c: &StoredContainer) -> Profile {
     let strong = eq.as_ref().is_none_or(|e| e.ionic_strength > 0.5)
         || present
             .iter()
-            .any(|(s, _)| cat.dissolution_heat(*s).is_some());
+            .any(|(s, _)| cat.dilution_curve(*s).is_some());
     Profile {
         volume_l: m.liquid_l,
         ph: eq.map(|e| e.ph),
