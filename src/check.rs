@@ -754,8 +754,8 @@ fn room_findings(
             } else {
                 Severity::Clear
             };
-            if closure == Closure::Sealed {
-                s.min(Severity::Info)
+            if closure == Closure::Sealed && s > Severity::Clear {
+                Severity::Info
             } else {
                 s
             }

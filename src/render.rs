@@ -1,5 +1,6 @@
 //! Laying out a report as a terminal table or markdown. No chemistry here.
 
+use crate::catalog::GasKind;
 use crate::pairs::{pairs_that_matter, Extent, Pair};
 use crate::report::{CheckReport, Finding, GasReport, Severity, StateReport};
 use comfy_table::{presets, Cell, CellAlignment, ContentArrangement, Table};
@@ -39,6 +40,28 @@ fn fmt_ppm(v: f64) -> String {
         format!("{v:.3}")
     } else {
         format!("{v:.1e}")
+    }
+}
+
+/// A headspace level for a table cell: ppm, or "over 1 atm" where the partial pressure
+/// passes the atmosphere's (the figure in ppm would mean nothing).
+fn ppm_cell(g: &GasReport) -> String {
+    if g.partial_pressure_kpa >= 101.325 {
+        format!(
+            "over 1 atm ({} kPa)",
+            crate::text::fixed(g.partial_pressure_kpa, 0)
+        )
+    } else {
+        fmt_ppm(g.headspace_ppm)
+    }
+}
+
+/// The ratio that judges a gas in the headspace; an asphyxiant is judged by pressure and
+/// the room instead.
+fn judged_ratio(g: Option<&GasReport>) -> String {
+    match g {
+        Some(g) if !g.kinds.contains(&GasKind::Toxic) => "by pressure and room".into(),
+        g => fmt_ratio(g.and_then(|g| g.limit_ratio)),
     }
 }
 
@@ -168,16 +191,15 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
             let any = row.any();
             t.add_row(vec![
                 Cell::new(&row.formula),
-                Cell::new(e.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()))
+                Cell::new(e.map(ppm_cell).unwrap_or("-".into()))
                     .set_alignment(CellAlignment::Right),
-                Cell::new(w.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()))
+                Cell::new(w.map(ppm_cell).unwrap_or("-".into()))
                     .set_alignment(CellAlignment::Right),
-                Cell::new(o.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()))
+                Cell::new(o.map(ppm_cell).unwrap_or("-".into()))
                     .set_alignment(CellAlignment::Right),
                 Cell::new(fmt_opt(any.limit_ppm)).set_alignment(CellAlignment::Right),
                 Cell::new(fmt_opt(any.idlh_ppm)).set_alignment(CellAlignment::Right),
-                Cell::new(fmt_ratio(w.and_then(|g| g.limit_ratio)))
-                    .set_alignment(CellAlignment::Right),
+                Cell::new(judged_ratio(w.or(e))).set_alignment(CellAlignment::Right),
             ]);
         }
         let _ = writeln!(out, "{t}");
@@ -215,6 +237,7 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
             format!("{:.3}", s.overpressure_kpa),
         ]);
     };
+    state_row("container before", "0 %".into(), &r.container_alone);
     state_row("end", "100 %".into(), &r.end_state);
     state_row(
         "worst while pouring",
@@ -287,28 +310,31 @@ fn heat_and_room_text(r: &CheckReport) -> String {
     let mut out = String::new();
     let h = &r.end_state.heat;
     let _ = writeln!(out, "\nHeat and pressure");
+    let fixed = crate::text::fixed;
     let _ = writeln!(
         out,
-        "  The pour releases {:.1} kJ ({:.1} from proton transfers, {:.1} from dilution): {:.1} °C → {:.1} °C{}.",
-        h.reaction_heat_kj + h.dilution_heat_kj,
-        h.reaction_heat_kj,
-        h.dilution_heat_kj,
-        h.start_temperature_c,
-        h.final_temperature_c,
+        "  The pour releases {} kJ ({} from proton transfers, {} from dilution): {} °C → {} °C{}.",
+        fixed(h.reaction_heat_kj + h.dilution_heat_kj, 1),
+        fixed(h.reaction_heat_kj, 1),
+        fixed(h.dilution_heat_kj, 1),
+        fixed(h.start_temperature_c, 1),
+        fixed(h.would_reach_c, 1),
         if h.boils { ", and it boils" } else { "" }
     );
     let e = &r.end_state;
     if e.vented_gas_l > 0.0 || e.overpressure_kpa == 0.0 {
         let _ = writeln!(
             out,
-            "  No pressure builds (vented or open): {:.2} L of gas leaves at 1 atm, {:.0} % of it toxic.",
-            e.vented_gas_l, e.vented_toxic_percent
+            "  No pressure builds (vented or open): {} L of gas leaves at 1 atm, {} % of it toxic.",
+            fixed(e.vented_gas_l, 2),
+            fixed(e.vented_toxic_percent, 0)
         );
     } else {
         let _ = writeln!(
             out,
-            "  Sealed: {:.1} kPa above atmospheric at the end ({:.1} kPa of it from the gases the liquid gives off).",
-            e.overpressure_kpa, e.gas_pressure_kpa
+            "  Sealed: {} kPa above atmospheric at the end ({} kPa of it from the gases the liquid gives off).",
+            fixed(e.overpressure_kpa, 1),
+            fixed(e.gas_pressure_kpa, 1)
         );
     }
     for g in &r.stoichiometric_gases {
@@ -417,11 +443,11 @@ pub fn check_markdown(r: &CheckReport, v: View) -> String {
             out,
             "| {} | {} | {} | {} | {} | {} |",
             row.formula,
-            e.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()),
-            w.map(|g| fmt_ppm(g.headspace_ppm)).unwrap_or("-".into()),
+            e.map(ppm_cell).unwrap_or("-".into()),
+            w.map(ppm_cell).unwrap_or("-".into()),
             fmt_opt(any.limit_ppm),
             fmt_opt(any.idlh_ppm),
-            fmt_ratio(w.and_then(|g| g.limit_ratio))
+            judged_ratio(w.or(e))
         );
     }
     let _ = writeln!(out, "\n## States\n");
@@ -441,6 +467,7 @@ pub fn check_markdown(r: &CheckReport, v: View) -> String {
             s.overpressure_kpa
         );
     };
+    row("container before", 0.0, &r.container_alone);
     row("end", 1.0, &r.end_state);
     row(
         "worst while pouring",

@@ -562,3 +562,121 @@ fn a_csv_with_bad_rows_stops_before_computing_unless_told_to_skip() {
         .collect();
     assert!(rows.contains(&3) && rows.contains(&4), "{rows:?}");
 }
+
+#[test]
+fn an_amount_no_liquid_can_hold_is_refused() {
+    // 1e308 g/L is finite as a number but no solution holds it (HEPES has no solubility in
+    // the data, so the physical bound speaks); 1000 g/L of sodium chloride is nearly three
+    // times its solubility (about 320 g/L).
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - hepes: 1e308 g/L\n",
+        &["stream.yaml:4", "cannot be in a liquid", "fix:"],
+    );
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium chloride: 1e308 g/L\n",
+        &["stream.yaml:4", "1.00e308 g/L", "fix:"],
+    );
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium chloride: 1000 g/L\n",
+        &["stream.yaml:4", "above its solubility", "fix:"],
+    );
+}
+
+#[test]
+fn a_stream_without_contents_is_refused_not_checked_as_water() {
+    bad_stream(
+        "name: x\nvolume: 1 L\n",
+        &["`contents` is missing", "contents: []"],
+    );
+    // Plain water is said so, and is accepted.
+    let f = Files::new();
+    let c = f.write("carboy.yaml", CARBOY);
+    let s = f.write("stream.yaml", "name: x\nvolume: 1 L\ncontents: []\n");
+    check(&c, &s).assert().code(0);
+}
+
+#[test]
+fn deep_nesting_is_refused_at_once_with_the_line() {
+    let deep = format!(
+        "name: x\nvolume: 1 L\ncontents: {}{}\n",
+        "[".repeat(100_000),
+        "]".repeat(100_000)
+    );
+    let started = std::time::Instant::now();
+    bad_stream(&deep, &["stream.yaml:3", "nests", "levels deep"]);
+    // Not a timing test: a refusal that took the old 37 s would be the parser, not us.
+    assert!(started.elapsed() < std::time::Duration::from_secs(20));
+}
+
+#[test]
+fn an_oversized_file_or_name_is_refused_briefly() {
+    bad_stream(
+        &format!(
+            "name: x\nvolume: 1 L\ncontents: []\nnote: \"{}\"\n",
+            "x".repeat(2 << 20)
+        ),
+        &["bytes, more than"],
+    );
+    let long = "a".repeat(900_000);
+    let f = Files::new();
+    let c = f.write("carboy.yaml", CARBOY);
+    let s = f.write(
+        "stream.yaml",
+        &format!("name: x\nvolume: 1 L\ncontents:\n  - {{substance: \"{long}\", amount: 1 g/L}}\n"),
+    );
+    let out = check(&c, &s).output().unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("stream.yaml:4") && err.contains("characters long"),
+        "{err}"
+    );
+    assert!(err.len() < 1000, "the message must not echo the whole name");
+}
+
+#[test]
+fn a_percentage_of_a_commercial_solution_is_refused() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sulfuric acid, concentrated: 96 % w/w\n",
+        &[
+            "stream.yaml:4",
+            "count that concentration twice",
+            "sulfuric acid: 96 % w/w",
+        ],
+    );
+}
+
+#[test]
+fn shares_past_the_whole_batch_or_without_a_density_are_refused() {
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium hydroxide: 60 % w/w\n  - sodium chloride: 50 % w/w\n",
+        &["add up to 110 %"],
+    );
+    // Sodium oxalate has no density table: at 20 % w/w the density matters.
+    bad_stream(
+        "name: x\nvolume: 1 L\ncontents:\n  - sodium formate: 20 % w/w\n",
+        &["stream.yaml:4", "no density table", "density:"],
+    );
+}
+
+#[test]
+fn concentrated_acid_by_share_has_its_moles() {
+    // 96 % H2SO4 at 1.8355 g/mL (CRC): 0.96 × 1835.5 / 98.079 = 17.97 mol/L, not the
+    // 9.79 mol/L that 1.00 g/mL would give.
+    let f = Files::new();
+    let c = f.write(
+        "carboy.yaml",
+        "name: c\ncapacity: 20 L\nvolume: 10 L\nclosure: open\ncontents: []\n",
+    );
+    let s = f.write(
+        "stream.yaml",
+        "name: x\nvolume: 0.5 L\ncontents:\n  - sulfuric acid: 96 % w/w\n",
+    );
+    let out = check(&c, &s).arg("--format").arg("json").output().unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let moles = v["stream"]["components"][0]["moles"].as_f64().unwrap();
+    assert!((moles / 0.5 - 17.97).abs() < 0.1, "{} mol/L", moles / 0.5);
+    // 0.5 L of it into 10 L of water releases about 570 kJ of dilution heat.
+    let q = v["end_state"]["heat"]["dilution_heat_kj"].as_f64().unwrap();
+    assert!((500.0..650.0).contains(&q), "{q} kJ");
+}
