@@ -707,10 +707,8 @@ fn heat_findings(th: &Thresholds, end: &HeatReport, worst: &HeatReport) -> Vec<F
         sev,
         "mixture-heats-up",
         format!(
-            "The pour releases {} kJ ({} kJ from proton transfers, {} kJ from diluting concentrated reagents): the mixture goes from {} °C to {} °C (review at a rise of {} K or {} °C, stop at {} K or {} °C; {}).",
-            fixed(hot.reaction_heat_kj + hot.dilution_heat_kj, 0),
-            fixed(hot.reaction_heat_kj, 0),
-            fixed(hot.dilution_heat_kj, 0),
+            "The pour {}: the mixture goes from {} °C to {} °C (review at a rise of {} K or {} °C, stop at {} K or {} °C; {}).",
+            hot.released_words(0),
             fixed(hot.start_temperature_c, 1),
             fixed(hot.would_reach_c, 1),
             h.review_rise_k,
@@ -968,6 +966,12 @@ fn format_amount(a: crate::quantity::Amount) -> String {
     }
 }
 
+/// A batch whose untabled solutes pass this mass share has its mass called an estimate.
+const UNTABLED_NOTE_SHARE: f64 = 0.05;
+
+/// Below this much water per litre a liquid is mostly something else (kg/L).
+const MOSTLY_WATER_KG_PER_L: f64 = 0.5;
+
 fn assumptions(
     cat: &Catalog,
     container: &Batch,
@@ -976,13 +980,18 @@ fn assumptions(
     th: &Thresholds,
 ) -> Vec<String> {
     let mut out = vec![
-        "Equilibrium of a well-mixed liquid with its headspace; the headspace starts as air at 1 atm and each volatile form shares its moles with it by Henry's law.".to_string(),
+        "Equilibrium of a well-mixed liquid with its headspace; the headspace starts as air at 1 atm and each volatile form shares its moles with it by Henry's law on the molal scale (ammonia with its own activity in concentrated solution).".to_string(),
         format!(
             "Activity coefficients by the Davies equation, held at their value at I = {} mol/L above that.",
             th.activity_model.max_ionic_strength
         ),
         "Constants adjusted to the mixture temperature by the van 't Hoff equation with each step's ionization enthalpy; Kw from its temperature equation.".to_string(),
-        "Heat: proton transfers by Hess's law from each step's ionization enthalpy (25 °C values, no heat-capacity change), plus the heat of diluting concentrated reagents (a tenth or more of their batch by mass) to infinite dilution, in proportion to how far their share falls; the mixture warms as water does (4.18 J/(g K)), starting from the volume-weighted mean of the two temperatures, and is re-solved at the temperature it reaches.".to_string(),
+        "Heat: proton transfers by Hess's law from each step's ionization enthalpy (25 °C values, no heat-capacity change), plus each concentrated reagent's heat of dilution from the water it had to the water of the mixture (integral heats of dilution); the mixture's mass from the density tables, warming as water does (4.18 J/(g K)) from the volume-weighted mean of the two temperatures, re-solved at the temperature it reaches.".to_string(),
+        format!(
+            "Boiling: the liquid boils where its vapour pressure (water by Raoult's law, dissolved gases from the speciation, solvents by Henry's law or as a layer of their own) reaches the {} kPa over it; close to boiling within {} K of that.",
+            crate::text::fixed(cat.physical.p_std / 1e3, 1),
+            th.heat.boiling_margin_k
+        ),
         "Pressure in a sealed vessel: the gases the liquid gives off, plus the warming of the air sealed in at the start and the change of water's vapour pressure; vented and open vessels hold no pressure and the report gives the litres vented.".to_string(),
         "Metal cyanide and other metal complexes are not modelled; cyanide is counted as free, which overstates HCN.".to_string(),
         "The other order of pouring is computed in the same vessel with the same closure.".to_string(),
@@ -1000,14 +1009,30 @@ fn assumptions(
         if !b.temperature_given && opts.temperature_k.is_none() {
             out.push(format!("`{}` has no temperature: 25 °C assumed.", b.name));
         }
+        let comp = b.composition(cat);
         let uses_ww = b
             .components
             .iter()
             .any(|c| matches!(c.amount, crate::quantity::Amount::PercentWeightPerWeight(_)));
         if uses_ww && !b.density_given {
             out.push(format!(
-                "`{}` gives % w/w amounts without a density: 1.00 g/mL assumed.",
-                b.name
+                "`{}` gives % w/w amounts: its density, {} g/mL, comes from the density tables of its solutes.",
+                b.name,
+                crate::text::fixed(comp.density_g_per_ml, 3)
+            ));
+        }
+        if comp.untabled_share > UNTABLED_NOTE_SHARE && !b.density_given {
+            out.push(format!(
+                "`{}`: {} % of its mass is in solutes with no density table, taken to occupy the volume of their neat liquid or of water; its mass and water are estimates.",
+                b.name,
+                crate::text::fixed(comp.untabled_share * 100.0, 0)
+            ));
+        }
+        if comp.water_g < MOSTLY_WATER_KG_PER_L * 1e3 * b.volume_l && b.volume_l > 0.0 {
+            out.push(format!(
+                "`{}` holds {} kg of water per litre: the liquid is mostly something else, and the aqueous model (Henry's law, pKa, activity) is stretched; treat its figures as rough.",
+                b.name,
+                crate::text::fixed(comp.water_g / 1e3 / b.volume_l, 2)
             ));
         }
     }

@@ -67,6 +67,18 @@ impl BatchHeat {
 }
 
 impl HeatReport {
+    /// "releases 581 kJ (8 kJ from proton transfers, 573 kJ from diluting concentrated
+    /// reagents)", with `decimals` decimals.
+    pub fn released_words(&self, decimals: usize) -> String {
+        let fixed = crate::text::fixed;
+        format!(
+            "releases {} kJ ({} kJ from proton transfers, {} kJ from diluting concentrated reagents)",
+            fixed(self.reaction_heat_kj + self.dilution_heat_kj, decimals),
+            fixed(self.reaction_heat_kj, decimals),
+            fixed(self.dilution_heat_kj, decimals)
+        )
+    }
+
     /// A state that no heat has reached: at rest at `t_c`.
     pub fn at_rest(t_c: f64) -> HeatReport {
         HeatReport {

@@ -313,10 +313,8 @@ fn heat_and_room_text(r: &CheckReport) -> String {
     let fixed = crate::text::fixed;
     let _ = writeln!(
         out,
-        "  The pour releases {} kJ ({} from proton transfers, {} from dilution): {} °C → {} °C{}.",
-        fixed(h.reaction_heat_kj + h.dilution_heat_kj, 1),
-        fixed(h.reaction_heat_kj, 1),
-        fixed(h.dilution_heat_kj, 1),
+        "  The pour {}: {} °C → {} °C{}.",
+        h.released_words(1),
         fixed(h.start_temperature_c, 1),
         fixed(h.would_reach_c, 1),
         if h.boils { ", and it boils" } else { "" }

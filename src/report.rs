@@ -1,6 +1,6 @@
 //! The report model: one structure per check, rendered as a table, markdown or JSON.
 //!
-//! Field names here are the JSON contract of brief section 6; renderers never compute
+//! Field names here are the JSON contract the README documents; renderers never compute
 //! chemistry, they only lay this out.
 
 use crate::pairs::Pair;

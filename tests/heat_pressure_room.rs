@@ -3,28 +3,13 @@
 
 mod common;
 use common::*;
-use offgas::batch::Batch;
-use offgas::check::{check, CheckOptions};
+use offgas::check::CheckOptions;
 use offgas::report::CheckReport;
 use offgas::room::{concentration_after, steady_state, time_to_reach, RoomSettings};
 use proptest::prelude::*;
 
-fn batch(text: &str) -> Batch {
-    Batch::parse(catalog(), "t.yaml", text).unwrap()
-}
-
 fn run(container: &str, stream: &str, opts: &CheckOptions) -> CheckReport {
-    let th = offgas::embedded::thresholds().unwrap();
-    let rules = offgas::embedded::rules(catalog()).unwrap();
-    check(
-        catalog(),
-        &th,
-        &rules,
-        &batch(container),
-        &batch(stream),
-        opts,
-    )
-    .unwrap()
+    check_texts(container, stream, opts)
 }
 
 #[test]

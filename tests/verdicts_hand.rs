@@ -6,27 +6,12 @@
 mod common;
 use common::{catalog, R};
 use offgas::assess::{state_findings, PourStates};
-use offgas::batch::Batch;
 use offgas::catalog::GasKind;
-use offgas::check::{check, CheckOptions};
+use offgas::check::CheckOptions;
 use offgas::report::{CheckReport, GasReport, Scope, Severity, StateReport};
 
-fn batch(text: &str) -> Batch {
-    Batch::parse(catalog(), "t.yaml", text).unwrap_or_else(|e| panic!("{e}"))
-}
-
 fn run(container: &str, stream: &str) -> CheckReport {
-    let th = offgas::embedded::thresholds().unwrap();
-    let rules = offgas::embedded::rules(catalog()).unwrap();
-    check(
-        catalog(),
-        &th,
-        &rules,
-        &batch(container),
-        &batch(stream),
-        &CheckOptions::default(),
-    )
-    .unwrap()
+    common::check_texts(container, stream, &CheckOptions::default())
 }
 
 fn codes(r: &CheckReport) -> Vec<&str> {
@@ -498,4 +483,34 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
             }
         }
     }
+}
+
+#[test]
+fn concentrated_acid_gives_the_same_heat_under_either_name() {
+    // 0.5 L of 37 % hydrochloric acid into 5 L of water, written as the gas at 37 % w/w and
+    // as the commercial solution: both are 37 % acid (1.18 g/mL, CRC), 0.5 × 1180 × 0.37 /
+    // 36.46 = 5.99 mol, diluted from 3.45 to about 55 mol of water per mole: per the CRC
+    // table of enthalpies of dilution (Parker 1965) about −16.4 − (−1.1) = 15 kJ/mol, some
+    // 90 kJ in all — not the 75 kJ/mol of dissolving the gas (about 450 kJ).
+    let water = "name: c\ncapacity: 10 L\nvolume: 5 L\nclosure: open\ncontents: []\n";
+    let as_gas = run(
+        water,
+        "name: s\nvolume: 0.5 L\ncontents:\n  - hydrogen chloride: 37 % w/w\n",
+    );
+    let as_solution = run(
+        water,
+        "name: s\nvolume: 0.5 L\ncontents:\n  - hydrochloric acid, concentrated: 1000 mL/L\n",
+    );
+    let q = |r: &CheckReport| r.end_state.heat.dilution_heat_kj;
+    assert!(
+        (q(&as_gas) - q(&as_solution)).abs() < 0.03 * q(&as_solution),
+        "{} vs {} kJ",
+        q(&as_gas),
+        q(&as_solution)
+    );
+    assert!(
+        (70.0..110.0).contains(&q(&as_solution)),
+        "{} kJ",
+        q(&as_solution)
+    );
 }

@@ -489,16 +489,22 @@ impl Catalog {
             let water = s.formula.as_deref().map_or(0.0, density::crystal_water);
             Some(m - water * WATER_MOLAR_MASS)
         };
+        // Tables by what their substance gives; a signature two tables share is ambiguous.
+        let mut table_of_signature: HashMap<String, Option<usize>> = HashMap::new();
+        for (&sub, &t) in &table_of_substance {
+            if let Some(sig) = signature(&resolved[sub]) {
+                table_of_signature
+                    .entry(sig)
+                    .and_modify(|v| *v = None)
+                    .or_insert(Some(t));
+            }
+        }
         let mut density_of = vec![None; n];
         for (i, slot) in density_of.iter_mut().enumerate() {
             let base = dissolves_as(i);
             let table = table_of_substance.get(&base).copied().or_else(|| {
-                let sig = signature(&resolved[base])?;
-                let mut same = table_of_substance
-                    .iter()
-                    .filter(|(k, _)| signature(&resolved[**k]).as_deref() == Some(sig.as_str()));
-                let first = same.next()?;
-                same.next().is_none().then_some(*first.1)
+                signature(&resolved[base])
+                    .and_then(|sig| table_of_signature.get(&sig).copied().flatten())
             });
             if let (Some(t), Some(m)) = (table, anhydrous_mass(&resolved[base])) {
                 *slot = Some((t, m));

@@ -276,7 +276,11 @@ fn needs_check(cat: &Catalog, rules: &RuleSet, a: &Profile, b: &Profile) -> bool
         return true;
     }
     let ctx = rule_context(a, b, pa.min(pb), pa.max(pb));
-    !rules.evaluate(cat, &ctx).is_empty()
+    // A component's own hazard is the container's, not the pair's.
+    rules
+        .evaluate(cat, &ctx)
+        .iter()
+        .any(|h| !h.rule.rule.presence)
 }
 
 fn rule_context(a: &Profile, b: &Profile, ph_min: f64, ph_max: f64) -> RuleContext {

@@ -63,3 +63,23 @@ pub fn pkw25() -> f64 {
 }
 
 pub const R: f64 = 8.314462618;
+
+/// A check of two batch files' texts with the bundled thresholds and rules.
+pub fn check_texts(
+    container: &str,
+    stream: &str,
+    opts: &offgas::check::CheckOptions,
+) -> offgas::report::CheckReport {
+    let cat = catalog();
+    let parse =
+        |t: &str| offgas::batch::Batch::parse(cat, "t.yaml", t).unwrap_or_else(|e| panic!("{e}"));
+    offgas::check::check(
+        cat,
+        &offgas::embedded::thresholds().unwrap(),
+        &offgas::embedded::rules(cat).unwrap(),
+        &parse(container),
+        &parse(stream),
+        opts,
+    )
+    .unwrap()
+}
