@@ -6,7 +6,7 @@ use crate::report::{Finding, GasReport, Scope, Severity, StateReport};
 use crate::thresholds::Thresholds;
 
 /// Gases below this many ppm are left out of reports (they are still in the solve).
-const REPORT_FLOOR_PPM: f64 = 1e-6;
+pub const REPORT_FLOOR_PPM: f64 = 1e-6;
 
 pub fn ppm(cat: &Catalog, partial_pressure_pa: f64) -> f64 {
     partial_pressure_pa / cat.physical.p_std * 1e6
@@ -38,6 +38,29 @@ pub fn score(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> f64 {
         worst = worst.max(ratio);
     }
     worst.max(overpressure_kpa(eq) / th.sealed_overpressure.review_kpa)
+}
+
+/// A gas at its own worst point along a pour, against its levels.
+pub fn gas_peak(
+    cat: &Catalog,
+    th: &Thresholds,
+    formula: &str,
+    fraction_added: f64,
+    partial_pressure_pa: f64,
+) -> crate::report::GasPeak {
+    let c = ppm(cat, partial_pressure_pa);
+    let levels = cat.judged_levels(formula);
+    crate::report::GasPeak {
+        formula: formula.to_string(),
+        fraction_added,
+        headspace_ppm: c,
+        limit_ratio: levels
+            .as_ref()
+            .map(|l| c / (l.review_ppm * th.gas.review_fraction_of_short_term)),
+        idlh_ratio: levels
+            .as_ref()
+            .map(|l| c / (l.stop_ppm * th.gas.stop_fraction_of_idlh)),
+    }
 }
 
 /// Pressure in the headspace: what the liquid gives off, the warming of the air that was
@@ -245,18 +268,54 @@ pub fn fmt_times(r: f64) -> String {
     }
 }
 
-/// Where along the pour a state lies, in words.
-pub fn where_in_pour(fraction: f64) -> String {
-    if fraction >= 1.0 {
-        "when the pour is complete".into()
-    } else if fraction <= 0.0 {
-        "before anything is added".into()
-    } else {
-        format!(
-            "while pouring, at {:.1} % of the stream added",
-            fraction * 100.0
-        )
+/// What brings the two liquids together, so that findings say where in it a state lies.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Action {
+    /// A stream poured into a container.
+    #[default]
+    Pour,
+    /// Rinse water run into a vessel (a procedure's rinse).
+    Rinse,
+    /// A vessel held as it is, perhaps warmed (a procedure's hold).
+    Hold,
+    /// Two stored containers leaking into one spill (the storeroom audit).
+    Leak,
+}
+
+impl Action {
+    /// How a finding about the first liquid on its own opens.
+    pub fn before(self) -> &'static str {
+        match self {
+            Action::Pour => "Before anything is added",
+            Action::Rinse => "Before the rinse water goes in",
+            Action::Hold => "Before the hold",
+            Action::Leak => "On its own",
+        }
     }
+
+    /// Where in the action a state at `fraction` of the second liquid lies, in words.
+    pub fn place(self, fraction: f64) -> String {
+        let pct = fraction * 100.0;
+        match self {
+            Action::Pour if fraction >= 1.0 => "when the pour is complete".into(),
+            Action::Pour if fraction <= 0.0 => "before anything is added".into(),
+            Action::Pour => format!("while pouring, at {pct:.1} % of the stream added"),
+            Action::Rinse if fraction >= 1.0 => "once the rinse water is in".into(),
+            Action::Rinse if fraction <= 0.0 => "before the rinse water goes in".into(),
+            Action::Rinse => format!("as the rinse water goes in, at {pct:.1} % of it"),
+            Action::Hold => "during the hold".into(),
+            Action::Leak if fraction >= 1.0 => "when both have leaked into the spill".into(),
+            Action::Leak if fraction <= 0.0 => "in the first container's own spill".into(),
+            Action::Leak => format!(
+                "where the two leaks meet, with {pct:.1} % of the second container's contents in the spill"
+            ),
+        }
+    }
+}
+
+/// Where along a pour a state lies, in words.
+pub fn where_in_pour(fraction: f64) -> String {
+    Action::Pour.place(fraction)
 }
 
 /// The states of one pour that findings are judged on.
@@ -269,6 +328,8 @@ pub struct PourStates<'a> {
     pub alone: Option<&'a StateReport>,
     pub sealed: bool,
     pub rated_pressure_kpa: Option<f64>,
+    /// What brings the liquids together, for the words of each finding.
+    pub action: Action,
 }
 
 impl PourStates<'_> {
@@ -306,9 +367,9 @@ impl PourStates<'_> {
         if sev_worst > sev_end
             || (sev_worst == sev_end && worst_is_higher && self.worst_fraction < 1.0)
         {
-            Some((sev_worst, at_worst?, where_in_pour(self.worst_fraction)))
+            Some((sev_worst, at_worst?, self.action.place(self.worst_fraction)))
         } else {
-            Some((sev_end, at_end?, where_in_pour(1.0)))
+            Some((sev_end, at_end?, self.action.place(1.0)))
         }
     }
 
@@ -443,9 +504,9 @@ fn toxic_finding(p: &PourStates, sev: Severity, g: &GasReport, place: &str) -> F
 fn overpressure_finding(th: &Thresholds, p: &PourStates) -> Option<Finding> {
     let op = &th.sealed_overpressure;
     let (pressure, place) = if p.worst.overpressure_kpa > p.end.overpressure_kpa {
-        (p.worst.overpressure_kpa, where_in_pour(p.worst_fraction))
+        (p.worst.overpressure_kpa, p.action.place(p.worst_fraction))
     } else {
-        (p.end.overpressure_kpa, where_in_pour(1.0))
+        (p.end.overpressure_kpa, p.action.place(1.0))
     };
     let (stop, rating) = match p.rated_pressure_kpa {
         Some(r) => (r, format!("the container's rating of {r} kPa")),
@@ -562,7 +623,12 @@ fn activity_model_note(th: &Thresholds, p: &PourStates) -> Option<Finding> {
 
 /// What the container is like before anything is added: a gas it already gives off, or a
 /// pressure it already holds, at a level of concern. It needs care whatever is poured.
-pub fn container_findings(th: &Thresholds, alone: &StateReport, sealed: bool) -> Vec<Finding> {
+pub fn container_findings(
+    th: &Thresholds,
+    alone: &StateReport,
+    sealed: bool,
+    action: Action,
+) -> Vec<Finding> {
     let mut out = Vec::new();
     for g in &alone.gases {
         let sev = gas_severity(th, g);
@@ -588,7 +654,8 @@ pub fn container_findings(th: &Thresholds, alone: &StateReport, sealed: bool) ->
                 Severity::Review,
                 "container-already-gives-off",
                 format!(
-                    "Before anything is added, the container already gives off gas: {}, {against}.",
+                    "{}, the container already gives off gas: {}, {against}.",
+                    action.before(),
                     gas_reaches(g, sealed, "")
                 ),
                 "Open it only in a working fume hood, whatever is poured in, and label it for the gas it gives off.",
@@ -602,7 +669,8 @@ pub fn container_findings(th: &Thresholds, alone: &StateReport, sealed: bool) ->
                 Severity::Review,
                 "container-already-under-pressure",
                 format!(
-                    "Before anything is added, the sealed container already holds {} kPa above atmospheric.",
+                    "{}, the sealed container already holds {} kPa above atmospheric.",
+                    action.before(),
                     crate::text::fixed(alone.overpressure_kpa, 1)
                 ),
                 "Vent it slowly in a fume hood, pointing the cap away, before anything else is done.",

@@ -1,9 +1,8 @@
 //! `offgas audit`: read an inventory (YAML or CSV), audit every pair that can meet,
 //! optionally suggest moves, print or write the report.
 
-use crate::{load_catalog, load_thresholds, print, rules_cmd};
+use crate::{load_catalog, load_thresholds, rules_cmd, Format, OutputArgs};
 use anyhow::{anyhow, Context, Result};
-use clap::ValueEnum;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use offgas::store::audit::{AuditSettings, Auditor, PairJudge};
 use offgas::store::csv_import::{import, mapping_from_yaml, parse_mapping, ColumnMapping};
@@ -11,13 +10,6 @@ use offgas::store::Inventory;
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
-
-#[derive(Clone, Copy, ValueEnum)]
-pub enum AuditFormat {
-    Table,
-    Json,
-    Html,
-}
 
 /// The arguments of `offgas audit`.
 #[derive(clap::Args)]
@@ -36,13 +28,11 @@ pub struct AuditArgs {
     /// Propose moves that remove every stop pair and as many review pairs as possible.
     #[arg(long)]
     pub suggest: bool,
-    #[arg(long, value_enum, default_value_t = AuditFormat::Table)]
-    pub format: AuditFormat,
-    /// Write the report to this file (never overwrites without --force).
-    #[arg(long, value_name = "FILE")]
-    pub output: Option<PathBuf>,
-    #[arg(long)]
-    pub force: bool,
+    /// How to lay out the report (the cabinet matrices are drawn in table and html).
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    #[command(flatten)]
+    pub out: OutputArgs,
     /// Pair only containers that share a spill zone, not a whole cabinet.
     #[arg(long)]
     pub no_cabinet_level: bool,
@@ -103,14 +93,10 @@ fn read_inventory(
                 .collect();
             Ok((inv, skipped))
         }
-        Err(errors) => {
-            let list: Vec<String> = errors.iter().map(|e| format!("  {e}")).collect();
-            Err(anyhow!(
-                "{} rows of {name} cannot be read; nothing was audited:\n{}\n  (--skip-bad-rows audits the rest and lists these)",
-                errors.len(),
-                list.join("\n")
-            ))
-        }
+        Err(errors) => Err(anyhow!(
+            "{}",
+            offgas::store::csv_import::refusal_message(&name, &errors)
+        )),
     }
 }
 
@@ -127,15 +113,8 @@ fn progress_bar() -> (ProgressBar, Instant) {
 pub fn run(a: AuditArgs) -> Result<u8> {
     let cat = load_catalog()?;
     let th = load_thresholds(a.thresholds.as_deref())?;
+    a.out.check_free()?;
     let rules = rules_cmd::load(&cat, a.site_rules.as_deref())?;
-    if let Some(out) = &a.output {
-        if out.exists() && !a.force {
-            return Err(anyhow!(
-                "{} already exists; offgas does not overwrite it unless you add --force",
-                out.display()
-            ));
-        }
-    }
     let spill_area_m2 = match &a.spill_area {
         Some(s) => {
             let v = offgas::quantity::parse_area_m2(s).map_err(|e| anyhow!("--spill-area: {e}"))?;
@@ -178,16 +157,11 @@ pub fn run(a: AuditArgs) -> Result<u8> {
         ));
     }
     let text = match a.format {
-        AuditFormat::Table => offgas::store::view::audit_table(&report),
-        AuditFormat::Html => offgas::store::view::audit_html(&report),
-        AuditFormat::Json => serde_json::to_string_pretty(&report)? + "\n",
+        Format::Table => offgas::store::view::audit_table(&report),
+        Format::Markdown => offgas::store::view::audit_markdown(&report),
+        Format::Html => offgas::store::view::audit_html(&report),
+        Format::Json => serde_json::to_string_pretty(&report)? + "\n",
     };
-    match &a.output {
-        Some(out) => {
-            std::fs::write(out, text).with_context(|| format!("cannot write {}", out.display()))?;
-            eprintln!("offgas: wrote the audit report to {}", out.display());
-        }
-        None => print(&text)?,
-    }
+    a.out.deliver(&text, "the audit report")?;
     Ok(crate::exit_status(report.severity))
 }

@@ -32,6 +32,8 @@ pub struct CheckOptions {
     pub spill_area_m2: Option<f64>,
     /// How finely the pour is followed (coarse for audits of many pairs).
     pub detail: crate::path::Detail,
+    /// What brings the two liquids together (a pour, a rinse, a leak), for the words.
+    pub action: crate::assess::Action,
 }
 
 #[derive(Debug, thiserror::Error)]
@@ -207,10 +209,16 @@ pub fn check(
             alone: Some(&container_alone),
             sealed,
             rated_pressure_kpa: container.rated_pressure_kpa,
+            action: opts.action,
         },
     );
-    findings.extend(container_findings(th, &container_alone, sealed));
-    findings.extend(order_findings(th, &forward, &backward));
+    findings.extend(container_findings(
+        th,
+        &container_alone,
+        sealed,
+        opts.action,
+    ));
+    findings.extend(order_findings(th, &forward, &backward, opts.action));
     let ctx = rule_context(container, stream, &forward, &backward);
     let components: Vec<(crate::catalog::SubstanceId, f64)> =
         ctx.present.iter().map(|p| (p.substance, p.moles)).collect();
@@ -231,6 +239,7 @@ pub fn check(
             (&boil_worst, forward.worst.fraction_added),
         ],
         &boil_alone,
+        opts.action,
     ));
     let room_settings = room_settings(th, container, capacity, opts);
     let room_gases = crate::room::room_report(cat, &forward.end.state, &room_settings);
@@ -246,6 +255,7 @@ pub fn check(
         exposed,
     ));
     findings.extend(rule_findings(cat, rules, &ctx, &end, &worst, &released));
+    let uncomputed_gases = uncomputed_gases(cat, rules, &ctx, &end, &worst, &released);
     findings.extend(unruled_findings(cat, rules, container, stream));
     let inert = inert_names(cat, container, stream);
     if !inert.is_empty() {
@@ -281,6 +291,12 @@ pub fn check(
             state: state_report(cat, th, &p.worst.state, heat),
         },
         worst_limit_ratio: p.worst.score,
+        gas_peaks: p
+            .gas_peaks
+            .iter()
+            .filter(|(_, _, pa)| crate::assess::ppm(cat, *pa) >= crate::assess::REPORT_FLOOR_PPM)
+            .map(|(g, f, pa)| crate::assess::gas_peak(cat, th, g, *f, *pa))
+            .collect(),
     };
     Ok(CheckReport {
         tool: "offgas",
@@ -312,13 +328,19 @@ pub fn check(
             gases: room_gases,
         },
         findings,
+        uncomputed_gases,
         inert_components: inert,
         assumptions: assumptions(cat, container, stream, opts, th),
         cautions: th.cautions.clone(),
     })
 }
 
-fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> Vec<Finding> {
+fn order_findings(
+    th: &Thresholds,
+    forward: &PathScan,
+    backward: &PathScan,
+    action: crate::assess::Action,
+) -> Vec<Finding> {
     let mut out = Vec::new();
     let factor = th.mixing_path.safer_order_factor;
     let (fw, bw) = (forward.worst.score, backward.worst.score);
@@ -355,7 +377,7 @@ fn order_findings(th: &Thresholds, forward: &PathScan, backward: &PathScan) -> V
             code: "worst-while-pouring".into(),
             message: format!(
                 "The worst moment is {}, not the end: {} the short-term level there against {} at the end.",
-                where_in_pour(forward.worst.fraction_added),
+                action.place(forward.worst.fraction_added),
                 fmt_times(fw),
                 fmt_times(end)
             ),
@@ -402,22 +424,17 @@ fn computed_note(
     released: &[ReleaseReport],
 ) -> String {
     let gas_figure = |formula: &str| {
-        let at = |s: &StateReport| {
-            s.gases
-                .iter()
-                .find(|g| g.formula == formula)
-                .map(|g| g.headspace_ppm)
-        };
+        let at = |s: &StateReport| s.gases.iter().find(|g| g.formula == formula).cloned();
         at(worst)
             .into_iter()
             .chain(at(end))
-            .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))))
+            .max_by(|a, b| a.headspace_ppm.total_cmp(&b.headspace_ppm))
     };
     match kind {
         Some(Computed::Chlorine) => match gas_figure("Cl2") {
-            Some(ppm) => format!(
+            Some(g) => format!(
                 " Computed: Cl2 reaches {} in the headspace at worst (see the gas findings).",
-                crate::assess::fmt_ppm(ppm)
+                crate::assess::gas_level(&g)
             ),
             None => {
                 " Chlorine could not be computed for this mixture; the severity rests on this rule."
@@ -440,6 +457,32 @@ fn computed_note(
             }
         ),
     }
+}
+
+/// Gases the rules in force say can form here that no state computed (nitrogen oxides
+/// from nitrite, chlorine dioxide, phosphine, ...): the gas table must not read as if
+/// nothing came off.
+fn uncomputed_gases(
+    cat: &Catalog,
+    rules: &RuleSet,
+    ctx: &RuleContext,
+    end: &StateReport,
+    worst: &StateReport,
+    released: &[ReleaseReport],
+) -> Vec<String> {
+    let computed = |g: &str| {
+        end.gases.iter().chain(&worst.gases).any(|x| x.formula == g)
+            || released.iter().any(|r| r.formula == g)
+    };
+    let mut out: Vec<String> = Vec::new();
+    for hit in rules.evaluate(cat, ctx) {
+        for g in &hit.rule.rule.forms {
+            if cat.gas_limits(g).is_some() && !computed(g) && !out.contains(g) {
+                out.push(g.clone());
+            }
+        }
+    }
+    out
 }
 
 fn origin_text(o: &Origin, id: &str) -> String {
@@ -615,7 +658,12 @@ fn boiling(
 
 /// Findings on boiling, judged by what the pour changes: a container whose liquid already
 /// boils or is close to it gets its own finding.
-fn boiling_findings(th: &Thresholds, states: [(&Boil, f64); 2], alone: &Boil) -> Vec<Finding> {
+fn boiling_findings(
+    th: &Thresholds,
+    states: [(&Boil, f64); 2],
+    alone: &Boil,
+    action: crate::assess::Action,
+) -> Vec<Finding> {
     let mut out = Vec::new();
     let (worst, f) = states
         .into_iter()
@@ -652,7 +700,7 @@ fn boiling_findings(th: &Thresholds, states: [(&Boil, f64); 2], alone: &Boil) ->
             code,
             format!(
                 "{}, {} ({}).",
-                crate::text::sentence_start(&where_in_pour(f)),
+                crate::text::sentence_start(&action.place(f)),
                 describe(worst),
                 th.heat.boiling_basis
             ),
@@ -669,7 +717,7 @@ fn boiling_findings(th: &Thresholds, states: [(&Boil, f64); 2], alone: &Boil) ->
                 } else {
                     "container-near-boiling"
                 },
-                format!("Before anything is added, {}.", describe(alone)),
+                format!("{}, {}.", action.before(), describe(alone)),
                 "Keep it cool and closed, open it only in a fume hood, and do not warm it.",
             )
         });

@@ -77,6 +77,15 @@ fn file(name: &str) -> Result<&'static str> {
 /// Runs every check of the scenario and prints each report. Exits 0 when every verdict is
 /// the one the scenario expects (the demo is a demonstration, not a check of real waste),
 /// and 1 when one is not, since that means the bundled data or engine changed.
+/// How many of the scenario's checks are expected to stop.
+fn expected_stops(scenario: &Scenario) -> usize {
+    scenario
+        .checks
+        .iter()
+        .filter(|c| c.expect == "stop")
+        .count()
+}
+
 pub fn run(format: Format) -> Result<u8> {
     let cat = crate::load_catalog()?;
     let th = crate::load_thresholds(None)?;
@@ -155,8 +164,37 @@ pub fn run(format: Format) -> Result<u8> {
                 sheet.name,
                 PROCEDURE.0
             ));
-            out.push_str(&offgas::sheet::procedure_table(&sheet));
+            out.push_str(&match format {
+                Format::Markdown => offgas::sheet::procedure_markdown(&sheet),
+                _ => offgas::sheet::procedure_table(&sheet),
+            });
         }
+    }
+    if !matches!(format, Format::Json) {
+        let stops = expected_stops(&scenario);
+        out.push_str(&format!(
+            "\n{}\n{} of {} demo checks came out as the scenario expects{}, and the procedure {}.{}\n",
+            "=".repeat(78),
+            scenario.checks.len() - surprises.iter().filter(|s| !s.starts_with("the demo procedure")).count(),
+            scenario.checks.len(),
+            if stops > 0 {
+                format!(
+                    " ({stops} of them stop: here stop is the expected answer, the scenario's dangerous pours)"
+                )
+            } else {
+                String::new()
+            },
+            if fixed && sheet.severity == offgas::report::Severity::Stop {
+                "stops at the step the scenario expects, with a computed fix that clears it"
+            } else {
+                "did not come out as expected"
+            },
+            if surprises.is_empty() {
+                " The demo exits 0."
+            } else {
+                ""
+            }
+        ));
     }
     crate::print(&out)?;
     if !surprises.is_empty() {

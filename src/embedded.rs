@@ -14,6 +14,7 @@ pub const HEAT: &str = include_str!("../data/heat.yaml");
 pub const DENSITY: &str = include_str!("../data/density.yaml");
 pub const DILUTION: &str = include_str!("../data/dilution-heat.yaml");
 pub const VOLATILITY: &str = include_str!("../data/volatility.yaml");
+pub const GHS: &str = include_str!("../data/ghs.yaml");
 pub const THRESHOLDS: &str = include_str!("../rules/thresholds.yaml");
 
 /// The built-in hazard rule files, by the name they carry in reports.
@@ -52,6 +53,11 @@ pub fn catalog() -> Result<Catalog, crate::catalog::CatalogError> {
         dilution: ("data/dilution-heat.yaml", DILUTION),
         volatility: ("data/volatility.yaml", VOLATILITY),
     })
+}
+
+/// The GHS hazard classes behind a waste tag's hazard words, checked against the catalog.
+pub fn ghs(cat: &Catalog) -> Result<crate::catalog::ghs::GhsTable, crate::catalog::CatalogError> {
+    crate::catalog::ghs::GhsTable::parse("data/ghs.yaml", GHS, cat)
 }
 
 pub fn thresholds() -> Result<Thresholds, String> {

@@ -3,14 +3,16 @@
 //! Every write goes to a temporary file in the same folder, is flushed to disk, and is
 //! renamed over the record, so the record on disk is always the old one or the new one.
 //! Writers take an exclusive lock on a `.lock` file beside the record; a second writer
-//! waits (OFFGAS_LOCK_WAIT_MS, default 10 s) and then gives up with a clear message.
+//! waits (OFFGAS_LOCK_WAIT_MS, default 10 s) and then gives up with a clear message. The
+//! lock file is removed when its writer is done (see `RecordLock`).
 
-use crate::{load_catalog, load_thresholds, print, render, rules_cmd, Format};
+use crate::{load_catalog, load_thresholds, print, rules_cmd, Format, OutputArgs};
 use anyhow::{anyhow, Context, Result};
 use offgas::batch::Batch;
 use offgas::check::{check, CheckOptions};
 use offgas::record::{EntryKind, Record};
 use offgas::report::Severity;
+use offgas::tag::{CarboyReport, WasteTag};
 use std::fs::{File, OpenOptions};
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -70,42 +72,85 @@ fn write_atomic(path: &Path, text: &str) -> Result<()> {
     Ok(())
 }
 
-/// An exclusive lock on the record, held until dropped.
+/// An exclusive lock on the record, held until dropped. Dropping it removes the lock file.
+///
+/// Removing a lock file is only safe in one order. If a writer unlocked first and removed
+/// the file after, a second writer could lock the old file in between, and a third could
+/// then create a new file at the path and lock that too: two writers at once. So the file
+/// is removed while the lock is still held (in `drop`, before the file is closed), and every
+/// writer, once it holds a lock, checks that the file it locked is still the one at the
+/// path. A writer that was waiting on a file its holder has since removed finds the path
+/// gone or holding another file, lets go, and queues on the file now at the path. At any
+/// moment at most one writer holds a lock on the file the path names, and no writer works
+/// under a lock on a file the path does not name.
 struct RecordLock {
-    _file: File,
+    file: File,
+    path: PathBuf,
+}
+
+impl Drop for RecordLock {
+    fn drop(&mut self) {
+        // Where the platform cannot tell one file from another at the same path (see
+        // `still_at_path`), the file stays: a queued writer could not notice its removal.
+        if cfg!(unix) {
+            let _ = std::fs::remove_file(&self.path);
+        }
+        // `self.file` closes after this body, releasing the lock after the unlink.
+        let _ = &self.file;
+    }
+}
+
+/// True when `file` is still the file at `path` (not removed, not replaced).
+#[cfg(unix)]
+fn still_at_path(file: &File, path: &Path) -> bool {
+    use std::os::unix::fs::MetadataExt;
+    match (file.metadata(), std::fs::metadata(path)) {
+        (Ok(a), Ok(b)) => a.dev() == b.dev() && a.ino() == b.ino(),
+        _ => false,
+    }
+}
+
+#[cfg(not(unix))]
+fn still_at_path(_file: &File, path: &Path) -> bool {
+    path.exists()
 }
 
 fn lock(path: &Path) -> Result<RecordLock> {
     let lock_path = PathBuf::from(format!("{}.lock", path.display()));
-    let file = OpenOptions::new()
-        .create(true)
-        .truncate(false)
-        .write(true)
-        .open(&lock_path)
-        .with_context(|| format!("cannot open the lock file {}", lock_path.display()))?;
     let wait_ms: u64 = std::env::var("OFFGAS_LOCK_WAIT_MS")
         .ok()
         .and_then(|v| v.parse().ok())
         .unwrap_or(10_000);
     let start = Instant::now();
-    loop {
-        match file.try_lock() {
-            Ok(()) => break,
-            Err(std::fs::TryLockError::WouldBlock) => {
-                if start.elapsed() > Duration::from_millis(wait_ms) {
-                    return Err(anyhow!(
-                        "{} is being written by someone else and stayed locked for {} s; nothing was recorded. Try again in a moment.",
-                        path.display(),
-                        wait_ms / 1000
-                    ));
+    let file = 'queue: loop {
+        let file = OpenOptions::new()
+            .create(true)
+            .truncate(false)
+            .write(true)
+            .open(&lock_path)
+            .with_context(|| format!("cannot open the lock file {}", lock_path.display()))?;
+        loop {
+            match file.try_lock() {
+                Ok(()) if still_at_path(&file, &lock_path) => break 'queue file,
+                // The writer before us removed this file as it finished: queue again on
+                // the file now at the path.
+                Ok(()) => continue 'queue,
+                Err(std::fs::TryLockError::WouldBlock) => {
+                    if start.elapsed() > Duration::from_millis(wait_ms) {
+                        return Err(anyhow!(
+                            "{} is being written by someone else and stayed locked for {} s; nothing was recorded. Try again in a moment.",
+                            path.display(),
+                            wait_ms / 1000
+                        ));
+                    }
+                    std::thread::sleep(Duration::from_millis(25));
                 }
-                std::thread::sleep(Duration::from_millis(25));
-            }
-            Err(std::fs::TryLockError::Error(e)) => {
-                return Err(anyhow!("cannot lock {}: {e}", lock_path.display()))
+                Err(std::fs::TryLockError::Error(e)) => {
+                    return Err(anyhow!("cannot lock {}: {e}", lock_path.display()))
+                }
             }
         }
-    }
+    };
     // Under the lock no other writer is running: temporary files left by a crash can go.
     let dir = folder(path);
     let prefix = temp_prefix(path);
@@ -116,7 +161,10 @@ fn lock(path: &Path) -> Result<RecordLock> {
             }
         }
     }
-    Ok(RecordLock { _file: file })
+    Ok(RecordLock {
+        file,
+        path: lock_path,
+    })
 }
 
 fn read_record(path: &Path) -> Result<Record> {
@@ -163,13 +211,15 @@ pub fn add(
     by: &str,
     accept: Option<&str>,
     format: Format,
+    site_rules: Option<&Path>,
+    thresholds: Option<&Path>,
 ) -> Result<u8> {
     if by.trim().is_empty() {
         return Err(anyhow!("--by needs the name of the person pouring"));
     }
     let cat = load_catalog()?;
-    let th = load_thresholds(None)?;
-    let rules = rules_cmd::load(&cat, None)?;
+    let th = load_thresholds(thresholds)?;
+    let rules = rules_cmd::load(&cat, site_rules)?;
     let stream_text = std::fs::read_to_string(stream_path)
         .with_context(|| format!("cannot read {}: check the path", stream_path.display()))?;
     let stream = Batch::parse(&cat, &stream_path.display().to_string(), &stream_text)
@@ -191,7 +241,7 @@ pub fn add(
         &CheckOptions::default(),
     )
     .map_err(|e| anyhow!("{e}"))?;
-    print(&render(&report, format, false)?)?;
+    print(&crate::render(&report, format, false)?)?;
     let decision = match (report.severity, accept) {
         (Severity::Stop, _) => Err(format!(
             "NOT RECORDED: the check says stop. Do not pour this into {}; find a container it can go into (`offgas check`) or ask your EHS office.",
@@ -227,132 +277,50 @@ pub fn add(
     Ok(crate::exit_status(report.severity))
 }
 
-/// `log show`: history, current composition, fill level and headspace estimate.
-pub fn show(path: &Path, as_json: bool) -> Result<u8> {
+fn load_ghs(cat: &offgas::catalog::Catalog) -> Result<offgas::catalog::ghs::GhsTable> {
+    offgas::embedded::ghs(cat)
+        .map_err(|e| anyhow!("the bundled labelling table is broken (a build defect): {e}"))
+}
+
+/// `log show`: history, current composition, fill level and headspace; the tag once closed.
+pub fn show(path: &Path, format: Format, out: &OutputArgs) -> Result<u8> {
+    out.check_free()?;
     let cat = load_catalog()?;
     let th = load_thresholds(None)?;
+    let ghs = load_ghs(&cat)?;
     let record = read_record(path)?;
-    let vessel = record
-        .current(&cat, &path.display().to_string())
+    let report = CarboyReport::from_record(&cat, &th, &ghs, &record, &path.display().to_string())
         .map_err(|e| anyhow!("{e}"))?;
-    let capacity = vessel.capacity_l.unwrap_or(vessel.volume_l);
-    let mixture = vessel.to_mixture(&cat, capacity);
-    let settings = offgas::chem::SolverSettings {
-        activity_limit: th.activity_model.max_ionic_strength,
-        ..Default::default()
+    let text = match format {
+        Format::Table => offgas::tag::carboy_table(&report),
+        Format::Markdown => offgas::tag::carboy_markdown(&report),
+        Format::Json => serde_json::to_string_pretty(&report)? + "\n",
+        Format::Html => offgas::tag::carboy_html(&report),
     };
-    let state = offgas::chem::solve(&cat, &mixture, &settings)
-        .map(|eq| {
-            let t = eq.temperature_k - cat.physical.kelvin_offset;
-            let heat = offgas::pour::HeatReport::at_rest(t);
-            offgas::assess::state_report(&cat, &th, &eq, &heat)
-        })
-        .map_err(|e| anyhow!("the current contents could not be assessed: {e}"))?;
-    let contents: Vec<serde_json::Value> = vessel
-        .components
-        .iter()
-        .map(|c| {
-            let s = cat.substance(c.substance);
-            serde_json::json!({"substance": s.name, "mol": c.moles, "mol_per_l": c.moles / vessel.volume_l})
-        })
-        .collect();
-    if as_json {
-        let doc = serde_json::json!({
-            "record": path.display().to_string(),
-            "container": vessel.name,
-            "closed": record.is_closed(),
-            "capacity_l": capacity,
-            "volume_l": vessel.volume_l,
-            "fill_percent": 100.0 * vessel.volume_l / capacity,
-            "history": record.entries.iter().map(|e| serde_json::json!({
-                "seq": e.seq, "kind": e.kind, "when": e.when, "by": e.by, "file": e.file,
-                "verdict": e.verdict, "accepted": e.accepted})).collect::<Vec<_>>(),
-            "contents": contents,
-            "headspace": state,
-        });
-        print(&(serde_json::to_string_pretty(&doc)? + "\n"))?;
-        return Ok(0);
-    }
-    let mut out = format!(
-        "{} ({}){}\nfilled to {:.2} of {} L ({:.0} %)\n\nHistory\n",
-        vessel.name,
-        path.display(),
-        if record.is_closed() {
-            ", CLOSED for pickup"
-        } else {
-            ""
-        },
-        vessel.volume_l,
-        capacity,
-        100.0 * vessel.volume_l / capacity
-    );
-    for e in &record.entries {
-        let what = match e.kind {
-            EntryKind::Start => format!("started from {}", e.file.as_deref().unwrap_or("?")),
-            EntryKind::Add => format!(
-                "added {} ({}){}",
-                e.file.as_deref().unwrap_or("?"),
-                e.verdict.as_deref().unwrap_or("?"),
-                e.accepted
-                    .as_ref()
-                    .map(|a| format!(", accepted: {a}"))
-                    .unwrap_or_default()
-            ),
-            EntryKind::Close => "closed for pickup".into(),
-        };
-        out.push_str(&format!(
-            "  {:>3}  {}  {:<16} {}\n",
-            e.seq,
-            e.when,
-            e.by.as_deref().unwrap_or("-"),
-            what
-        ));
-    }
-    out.push_str("\nWhat it holds now (derived from the history)\n");
-    for c in &vessel.components {
-        let s = cat.substance(c.substance);
-        out.push_str(&format!(
-            "  {:<40} {:>10.4} mol  {:>10.4} mol/L\n",
-            s.name,
-            c.moles,
-            c.moles / vessel.volume_l
-        ));
-    }
-    out.push_str(&format!(
-        "\nHeadspace now: pH {:.2}, {:.1} °C\n",
-        state.ph, state.temperature_c
-    ));
-    if state.gases.iter().all(|g| g.headspace_ppm < 0.01) {
-        out.push_str("  no volatile form above 0.01 ppm\n");
-    }
-    for g in state.gases.iter().filter(|g| g.headspace_ppm >= 0.01) {
-        out.push_str(&format!(
-            "  {:<6} {:>10.2} ppm  (review at {}, stop at {})\n",
-            g.formula,
-            g.headspace_ppm,
-            g.limit_ppm
-                .map(|v| format!("{v} ppm"))
-                .unwrap_or_else(|| "none".into()),
-            g.idlh_ppm
-                .map(|v| format!("{v} ppm"))
-                .unwrap_or_else(|| "none".into())
-        ));
-    }
-    print(&out)?;
+    out.deliver(&text, "the record")?;
     Ok(0)
 }
 
-/// `log close`: marks the carboy full and prints the contents for the waste tag.
-pub fn close(path: &Path, by: &str) -> Result<u8> {
+/// `log close`: marks the carboy full and prints its waste tag.
+pub fn close(path: &Path, by: &str, format: Format, out: &OutputArgs) -> Result<u8> {
+    if by.trim().is_empty() {
+        return Err(anyhow!(
+            "--by needs the name of the person closing the carboy"
+        ));
+    }
+    out.check_free()?;
     let cat = load_catalog()?;
+    let th = load_thresholds(None)?;
+    let ghs = load_ghs(&cat)?;
     let _lock = lock(path)?;
     let mut record = read_record(path)?;
     if record.is_closed() {
-        return Err(anyhow!("{} is already closed", path.display()));
+        return Err(anyhow!(
+            "{} is already closed; `offgas log show {}` prints its waste tag again",
+            path.display(),
+            path.display()
+        ));
     }
-    let vessel = record
-        .current(&cat, &path.display().to_string())
-        .map_err(|e| anyhow!("{e}"))?;
     record.push(
         EntryKind::Close,
         &now(),
@@ -362,35 +330,23 @@ pub fn close(path: &Path, by: &str) -> Result<u8> {
         None,
         None,
     );
+    // The tag is made before the record is written: a carboy whose contents cannot be
+    // assessed stays open rather than close without a tag.
+    let tag = WasteTag::from_record(&cat, &th, &ghs, &record, &path.display().to_string())
+        .map_err(|e| anyhow!("{e}; the record was not closed"))?;
+    let text = match format {
+        Format::Table => offgas::tag::tag_table(&tag),
+        Format::Markdown => offgas::tag::tag_markdown(&tag),
+        Format::Json => serde_json::to_string_pretty(&tag)? + "\n",
+        Format::Html => offgas::tag::tag_html(&tag),
+    };
     write_atomic(path, &record.to_text())?;
-    // The tag: masses by substance and their share of the whole (taken at 1 kg per litre).
-    let total_g = vessel.volume_l * 1e3;
-    let mut out = format!(
-        "WASTE TAG: {}\nclosed {} by {}; {:.2} L\n\nContents (by mass, taking the liquid at 1 kg/L; the rest is water)\n",
-        vessel.name,
-        record.entries.last().map(|e| e.when.clone()).unwrap_or_default(),
-        by,
-        vessel.volume_l
-    );
-    let mut classes: Vec<String> = Vec::new();
-    for c in &vessel.components {
-        let s = cat.substance(c.substance);
-        let g = c.moles * s.molar_mass.unwrap_or(0.0);
-        out.push_str(&format!(
-            "  {:<40} {:>10.1} g  {:>6.2} %\n",
-            s.name,
-            g,
-            100.0 * g / total_g
-        ));
-        for k in &s.classes {
-            if !classes.contains(k) {
-                classes.push(k.clone());
-            }
-        }
-    }
-    out.push_str(&format!("\nHazard classes: {}\n", classes.join(", ")));
-    out.push_str("Check the tag against your site's waste labelling rules before pickup.\n");
-    print(&out)?;
+    out.deliver(&text, "the waste tag").map_err(|e| {
+        anyhow!(
+            "{e:#}; the record is closed, and `offgas log show {}` prints the tag again",
+            path.display()
+        )
+    })?;
     Ok(0)
 }
 

@@ -2,6 +2,7 @@
 
 use anyhow::{anyhow, Result};
 use offgas::catalog::{Catalog, FamilyId, SubstanceId};
+use offgas::notation::pretty;
 use serde_json::json;
 use std::fmt::Write;
 
@@ -50,7 +51,7 @@ fn substance_text(cat: &Catalog, id: SubstanceId, out: &mut String) {
     let _ = writeln!(
         out,
         "  formula: {}",
-        s.formula.as_deref().unwrap_or("not given")
+        s.formula.as_deref().map_or("not given".into(), pretty)
     );
     if let Some(m) = s.molar_mass {
         let _ = writeln!(out, "  molar mass: {m:.3} g/mol");
@@ -82,7 +83,7 @@ fn substance_text(cat: &Catalog, id: SubstanceId, out: &mut String) {
         parts.extend(
             s.ions
                 .iter()
-                .map(|&(i, n)| format!("{n} × {}", cat.ion(i).formula)),
+                .map(|&(i, n)| format!("{n} × {}", pretty(&cat.ion(i).formula))),
         );
         let _ = writeln!(out, "  one mole in water gives: {}", parts.join(", "));
     }
@@ -114,9 +115,9 @@ fn family_text(cat: &Catalog, id: FamilyId, out: &mut String) {
     for (i, step) in f.steps.iter().enumerate() {
         let _ = writeln!(
             out,
-            "  {} = H+ + {}   pKa {} ({})   ΔH° {} kJ/mol ({})",
-            f.species[i].formula,
-            f.species[i + 1].formula,
+            "  {} = H⁺ + {}   pKa {} ({})   ΔH° {} kJ/mol ({})",
+            pretty(&f.species[i].formula),
+            pretty(&f.species[i + 1].formula),
             step.pka,
             step.pka_source,
             step.dh,

@@ -36,14 +36,11 @@ enum Command {
     Procedure {
         /// The procedure file (YAML): the vessel and its steps.
         file: PathBuf,
-        #[arg(long, value_enum, default_value_t = SheetFormat::Table)]
-        format: SheetFormat,
-        /// Write the sheet to this file instead of the terminal (never overwrites without --force).
-        #[arg(long, value_name = "FILE")]
-        output: Option<PathBuf>,
-        /// Allow --output to replace an existing file.
-        #[arg(long)]
-        force: bool,
+        /// How to lay out the approval sheet.
+        #[arg(long, value_enum, default_value_t = Format::Table)]
+        format: Format,
+        #[command(flatten)]
+        out: OutputArgs,
         /// A folder of the site's own rule files, layered over the built-in rules.
         #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
         site_rules: Option<PathBuf>,
@@ -65,14 +62,17 @@ enum Command {
     },
     /// Find a substance or acid–base family by name, synonym, formula or CAS number.
     Lookup {
+        /// A name, synonym, formula or CAS number, e.g. "sodium cyanide", NaCN or 143-33-9.
         query: String,
-        #[arg(long, value_enum, default_value_t = LookupFormat::Text)]
-        format: LookupFormat,
+        /// How to print what the data say.
+        #[arg(long, value_enum, default_value_t = ListFormat::Text)]
+        format: ListFormat,
     },
     /// Run the bundled demonstration: a fictional building's waste checks.
     Demo {
-        #[arg(long, value_enum, default_value_t = Format::Table)]
-        format: Format,
+        /// How to lay out the demonstration's reports.
+        #[arg(long, value_enum, default_value_t = DemoFormat::Table)]
+        format: DemoFormat,
     },
 }
 
@@ -80,13 +80,17 @@ enum Command {
 enum LogAction {
     /// Start a record from a container definition (empty, or with known contents).
     New {
+        /// The record to create (a new file; an existing one is never replaced).
         file: PathBuf,
+        /// The container file (YAML) the record starts from: name, capacity, volume, closure, contents.
         #[arg(long, value_name = "CONTAINER")]
         from: PathBuf,
     },
     /// Check a stream against what the record holds; record it if clear (or review with --accept).
     Add {
+        /// The carboy's record.
         file: PathBuf,
+        /// The stream file (YAML) to pour into the carboy.
         #[arg(long, value_name = "STREAM")]
         stream: PathBuf,
         /// Who is pouring.
@@ -95,23 +99,44 @@ enum LogAction {
         /// Record a review anyway, with the reason a competent person gave.
         #[arg(long, value_name = "REASON")]
         accept: Option<String>,
+        /// How to lay out the check's report.
         #[arg(long, value_enum, default_value_t = Format::Table)]
         format: Format,
+        /// A folder of the site's own rule files, layered over the built-in rules.
+        #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
+        site_rules: Option<PathBuf>,
+        /// A thresholds file to use instead of the bundled rules/thresholds.yaml.
+        #[arg(long, value_name = "FILE")]
+        thresholds: Option<PathBuf>,
     },
-    /// The history, what the carboy holds now, its fill level and headspace.
+    /// The history, what the carboy holds now, its fill level and headspace (and its waste tag once closed).
     Show {
+        /// The carboy's record.
         file: PathBuf,
-        #[arg(long, value_enum, default_value_t = LookupFormat::Text)]
-        format: LookupFormat,
+        /// How to lay out the record.
+        #[arg(long, value_enum, default_value_t = Format::Table)]
+        format: Format,
+        #[command(flatten)]
+        out: OutputArgs,
     },
-    /// Mark the carboy full and print its contents for the waste tag.
+    /// Mark the carboy full and print its waste tag.
     Close {
+        /// The carboy's record.
         file: PathBuf,
+        /// Who closes the carboy (printed on the tag).
         #[arg(long, value_name = "NAME")]
         by: String,
+        /// How to lay out the waste tag.
+        #[arg(long, value_enum, default_value_t = Format::Table)]
+        format: Format,
+        #[command(flatten)]
+        out: OutputArgs,
     },
     /// Check every entry's checksum and the seal; names the line where a record breaks.
-    Verify { file: PathBuf },
+    Verify {
+        /// The carboy's record.
+        file: PathBuf,
+    },
 }
 
 #[derive(Subcommand)]
@@ -121,32 +146,119 @@ enum RulesAction {
         /// A folder of site rule files to layer over the built-ins.
         #[arg(long = "rules", value_name = "DIR", env = "OFFGAS_RULES")]
         site_rules: Option<PathBuf>,
-        #[arg(long, value_enum, default_value_t = LookupFormat::Text)]
-        format: LookupFormat,
+        /// How to print the list.
+        #[arg(long, value_enum, default_value_t = ListFormat::Text)]
+        format: ListFormat,
     },
-    /// Validate a folder of rule files: unknown classes and keys, conditions that can never hold.
-    Check { dir: PathBuf },
+    /// Validate a folder of rule files: every problem of every file, each with its file and line.
+    Check {
+        /// The folder of site rule files (*.yaml) to validate as they would be layered.
+        dir: PathBuf,
+    },
 }
 
+/// How a report is laid out.
 #[derive(Clone, Copy, ValueEnum)]
-enum Format {
+pub(crate) enum Format {
+    /// A report for the terminal, laid out in tables.
+    #[value(alias = "text")]
     Table,
+    /// Markdown, for tickets and procedure files.
+    Markdown,
+    /// One JSON document.
     Json,
-    Markdown,
-}
-
-#[derive(Clone, Copy, ValueEnum)]
-enum SheetFormat {
-    Table,
-    Markdown,
+    /// One self-contained printable HTML page (A4 or Letter; no scripts or outside links).
     Html,
+}
+
+/// How the demonstration's reports are laid out (it prints several reports in a row, which
+/// one HTML page does not hold).
+#[derive(Clone, Copy, ValueEnum)]
+enum DemoFormat {
+    /// Reports for the terminal.
+    Table,
+    /// Markdown, for tickets and procedure files.
+    Markdown,
+    /// One JSON document holding every report.
     Json,
 }
 
+impl From<DemoFormat> for Format {
+    fn from(f: DemoFormat) -> Format {
+        match f {
+            DemoFormat::Table => Format::Table,
+            DemoFormat::Markdown => Format::Markdown,
+            DemoFormat::Json => Format::Json,
+        }
+    }
+}
+
+/// How a list is printed.
 #[derive(Clone, Copy, ValueEnum)]
-enum LookupFormat {
+enum ListFormat {
+    /// Plain text for the terminal.
     Text,
+    /// One JSON document.
     Json,
+}
+
+/// Where a report goes: the terminal, or a file that is never replaced without --force.
+#[derive(clap::Args)]
+pub(crate) struct OutputArgs {
+    /// Write the report to this file instead of the terminal (an existing file is kept unless --force is given).
+    #[arg(long, value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Let --output replace a file that already exists.
+    #[arg(long)]
+    pub force: bool,
+}
+
+impl OutputArgs {
+    /// Refuses at once, before any work, to replace an existing file without --force.
+    pub fn check_free(&self) -> Result<()> {
+        match &self.output {
+            Some(out) if out.exists() && !self.force => Err(anyhow!(
+                "{} already exists; offgas does not overwrite it unless you add --force",
+                out.display()
+            )),
+            _ => Ok(()),
+        }
+    }
+
+    /// True when the report goes to the terminal (colour is then allowed).
+    pub fn to_terminal(&self) -> bool {
+        self.output.is_none()
+    }
+
+    /// Prints `text`, or writes it to --output; `what` names it in the message.
+    pub fn deliver(&self, text: &str, what: &str) -> Result<()> {
+        let Some(out) = &self.output else {
+            return print(text);
+        };
+        let mut options = std::fs::OpenOptions::new();
+        options.write(true);
+        if self.force {
+            options.create(true).truncate(true);
+        } else {
+            // Created only if absent, so a file that appeared since `check_free` is kept too.
+            options.create_new(true);
+        }
+        let mut file = options.open(out).map_err(|e| {
+            if e.kind() == std::io::ErrorKind::AlreadyExists {
+                anyhow!(
+                    "{} already exists; offgas does not overwrite it unless you add --force",
+                    out.display()
+                )
+            } else {
+                anyhow!("cannot write {}: {e}", out.display())
+            }
+        })?;
+        file.write_all(text.as_bytes())
+            .and_then(|()| file.flush())
+            .with_context(|| format!("cannot write {}", out.display()))?;
+        eprintln!("offgas: wrote {what} to {}", out.display());
+        Ok(())
+    }
 }
 
 fn main() -> ExitCode {
@@ -156,15 +268,13 @@ fn main() -> ExitCode {
         Command::Procedure {
             file,
             format,
-            output,
-            force,
+            out,
             site_rules,
             thresholds,
         } => run_procedure(
             &file,
             format,
-            output.as_deref(),
-            force,
+            &out,
             site_rules.as_deref(),
             thresholds.as_deref(),
         ),
@@ -177,23 +287,36 @@ fn main() -> ExitCode {
                 by,
                 accept,
                 format,
-            } => log_cmd::add(&file, &stream, &by, accept.as_deref(), format),
-            LogAction::Show { file, format } => {
-                log_cmd::show(&file, matches!(format, LookupFormat::Json))
-            }
-            LogAction::Close { file, by } => log_cmd::close(&file, &by),
+                site_rules,
+                thresholds,
+            } => log_cmd::add(
+                &file,
+                &stream,
+                &by,
+                accept.as_deref(),
+                format,
+                site_rules.as_deref(),
+                thresholds.as_deref(),
+            ),
+            LogAction::Show { file, format, out } => log_cmd::show(&file, format, &out),
+            LogAction::Close {
+                file,
+                by,
+                format,
+                out,
+            } => log_cmd::close(&file, &by, format, &out),
             LogAction::Verify { file } => log_cmd::verify(&file),
         },
         Command::Rules { action } => match action {
             RulesAction::List { site_rules, format } => {
-                rules_cmd::list(site_rules.as_deref(), matches!(format, LookupFormat::Json))
+                rules_cmd::list(site_rules.as_deref(), matches!(format, ListFormat::Json))
             }
             RulesAction::Check { dir } => rules_cmd::check_dir(&dir),
         },
         Command::Lookup { query, format } => {
-            lookup::run(&query, matches!(format, LookupFormat::Json))
+            lookup::run(&query, matches!(format, ListFormat::Json))
         }
-        Command::Demo { format } => demo::run(format),
+        Command::Demo { format } => demo::run(format.into()),
     };
     match result {
         Ok(code) => ExitCode::from(code),
@@ -236,8 +359,10 @@ pub(crate) fn read_batch(cat: &Catalog, path: &Path) -> Result<Batch> {
     Batch::parse(cat, &path.display().to_string(), &text).map_err(|e| anyhow!("{e}"))
 }
 
-pub(crate) fn view(all_pairs: bool) -> View {
-    let color = std::env::var_os("NO_COLOR").is_none() && std::io::stdout().is_terminal();
+/// The terminal view; colour only on a terminal, never in a file or with NO_COLOR.
+pub(crate) fn view(all_pairs: bool, to_terminal: bool) -> View {
+    let color =
+        to_terminal && std::env::var_os("NO_COLOR").is_none() && std::io::stdout().is_terminal();
     View { color, all_pairs }
 }
 
@@ -249,15 +374,27 @@ pub(crate) fn print(text: &str) -> Result<()> {
     Ok(())
 }
 
+/// A check's report in `format`, for the terminal.
 pub(crate) fn render(
     report: &offgas::report::CheckReport,
     format: Format,
     all_pairs: bool,
 ) -> Result<String> {
+    render_to(report, format, all_pairs, true)
+}
+
+/// A check's report in `format`; `to_terminal` false when it goes to a file.
+pub(crate) fn render_to(
+    report: &offgas::report::CheckReport,
+    format: Format,
+    all_pairs: bool,
+    to_terminal: bool,
+) -> Result<String> {
     Ok(match format {
-        Format::Table => check_table(report, view(all_pairs)),
-        Format::Markdown => check_markdown(report, view(all_pairs)),
+        Format::Table => check_table(report, view(all_pairs, to_terminal)),
+        Format::Markdown => check_markdown(report, view(all_pairs, to_terminal)),
         Format::Json => serde_json::to_string_pretty(report)? + "\n",
+        Format::Html => offgas::html::check_html(report, all_pairs),
     })
 }
 
@@ -269,8 +406,11 @@ struct CheckArgs {
     /// The stream file (YAML) to pour in.
     #[arg(long = "add", value_name = "STREAM")]
     stream: PathBuf,
+    /// How to lay out the report.
     #[arg(long, value_enum, default_value_t = Format::Table)]
     format: Format,
+    #[command(flatten)]
+    out: OutputArgs,
     /// Temperature of both batches, e.g. "30 °C" (overrides the files).
     #[arg(long, value_name = "T")]
     temperature: Option<String>,
@@ -296,6 +436,7 @@ struct CheckArgs {
 
 /// `offgas check`: one pour, both orders, and the verdict as exit status.
 fn run_check(args: &CheckArgs) -> Result<u8> {
+    args.out.check_free()?;
     let cat = load_catalog()?;
     let th = load_thresholds(args.thresholds.as_deref())?;
     let rules = rules_cmd::load(&cat, args.site_rules.as_deref())?;
@@ -347,6 +488,7 @@ fn run_check(args: &CheckArgs) -> Result<u8> {
         air_changes_per_hour: args.air_changes,
         spill_area_m2,
         detail: offgas::path::Detail::Full,
+        action: offgas::assess::Action::Pour,
     };
     let a = read_batch(&cat, &args.container)?;
     let b = read_batch(&cat, &args.stream)?;
@@ -355,7 +497,8 @@ fn run_check(args: &CheckArgs) -> Result<u8> {
         Err(CheckError::Input(e)) => return Err(anyhow!("{e}")),
         Err(e @ CheckError::Solve { .. }) => return Err(anyhow!("{e}")),
     };
-    print(&render(&report, args.format, args.all_pairs)?)?;
+    let text = render_to(&report, args.format, args.all_pairs, args.out.to_terminal())?;
+    args.out.deliver(&text, "the check report")?;
     Ok(exit_status(report.severity))
 }
 
@@ -363,24 +506,16 @@ fn run_check(args: &CheckArgs) -> Result<u8> {
 /// the first step that is not clear, and the approval sheet.
 fn run_procedure(
     file: &Path,
-    format: SheetFormat,
-    output: Option<&Path>,
-    force: bool,
+    format: Format,
+    out: &OutputArgs,
     site_rules: Option<&Path>,
     thresholds: Option<&Path>,
 ) -> Result<u8> {
     use offgas::procedure::{fix::fixes, run::Engine, Procedure};
+    out.check_free()?;
     let cat = load_catalog()?;
     let th = load_thresholds(thresholds)?;
     let rules = rules_cmd::load(&cat, site_rules)?;
-    if let Some(out) = output {
-        if out.exists() && !force {
-            return Err(anyhow!(
-                "{} already exists; offgas does not overwrite it unless you add --force",
-                out.display()
-            ));
-        }
-    }
     let text = std::fs::read_to_string(file)
         .with_context(|| format!("cannot read {}: check the path", file.display()))?;
     let procedure =
@@ -393,22 +528,48 @@ fn run_procedure(
     let mut report = engine.run(&procedure).map_err(|e| anyhow!("{e}"))?;
     report.fixes = fixes(&engine, &procedure, &report);
     let sheet = match format {
-        SheetFormat::Table => offgas::sheet::procedure_table(&report),
-        SheetFormat::Markdown => offgas::sheet::procedure_markdown(&report),
-        SheetFormat::Html => offgas::sheet::procedure_html(&report),
-        SheetFormat::Json => serde_json::to_string_pretty(&report)? + "\n",
+        Format::Table => offgas::sheet::procedure_table(&report),
+        Format::Markdown => offgas::sheet::procedure_markdown(&report),
+        Format::Html => offgas::sheet::procedure_html(&report),
+        Format::Json => serde_json::to_string_pretty(&report)? + "\n",
     };
-    match output {
-        Some(out) => {
-            std::fs::write(out, sheet)
-                .with_context(|| format!("cannot write {}", out.display()))?;
-            eprintln!("offgas: wrote the approval sheet to {}", out.display());
-        }
-        None => print(&sheet)?,
-    }
+    out.deliver(&sheet, "the approval sheet")?;
     Ok(exit_status(report.severity))
 }
 
 pub(crate) fn exit_status(s: Severity) -> u8 {
     s.exit_code() as u8
+}
+
+#[cfg(test)]
+mod tests {
+    use super::Cli;
+    use clap::CommandFactory;
+
+    /// Every argument and option of every command says what it is for.
+    #[test]
+    fn every_argument_has_help() {
+        fn walk(cmd: &clap::Command, path: &str, missing: &mut Vec<String>) {
+            for arg in cmd.get_arguments() {
+                let id = arg.get_id().as_str();
+                if id == "help" || id == "version" {
+                    continue;
+                }
+                if arg.get_help().is_none() && arg.get_long_help().is_none() {
+                    missing.push(format!("{path} {id}"));
+                }
+            }
+            for sub in cmd.get_subcommands() {
+                if sub.get_about().is_none() {
+                    missing.push(format!("{path} {} (no description)", sub.get_name()));
+                }
+                walk(sub, &format!("{path} {}", sub.get_name()), missing);
+            }
+        }
+        let mut missing = Vec::new();
+        let cmd = Cli::command();
+        cmd.clone().debug_assert();
+        walk(&cmd, "offgas", &mut missing);
+        assert!(missing.is_empty(), "without help: {missing:?}");
+    }
 }

@@ -47,6 +47,9 @@ pub struct PathScan {
     pub ph_range: (f64, f64),
     /// Highest temperature along the pour, K.
     pub temperature_max_k: f64,
+    /// Each gas at its own highest partial pressure among the states solved:
+    /// (gas, fraction added there, Pa).
+    pub gas_peaks: Vec<(String, f64, f64)>,
 }
 
 /// Follows a pour through `state_at(fraction added)` and finds the worst state by `score`.
@@ -125,11 +128,25 @@ pub fn scan(
         .iter()
         .map(|s| s.state.temperature_k)
         .fold(f64::NEG_INFINITY, f64::max);
+    let mut gas_peaks: Vec<(String, f64, f64)> = Vec::new();
+    for s in &states {
+        for g in &s.state.gases {
+            match gas_peaks.iter_mut().find(|p| p.0 == g.gas) {
+                Some(p) if g.partial_pressure_pa > p.2 => {
+                    p.1 = s.fraction_added;
+                    p.2 = g.partial_pressure_pa;
+                }
+                Some(_) => {}
+                None => gas_peaks.push((g.gas.clone(), s.fraction_added, g.partial_pressure_pa)),
+            }
+        }
+    }
     Ok(PathScan {
         worst,
         end,
         profile,
         ph_range,
         temperature_max_k,
+        gas_peaks,
     })
 }

@@ -113,10 +113,17 @@ pub fn parse_area_m2(text: &str) -> Result<f64, QuantityError> {
 /// Parses a room volume ("50 m3", "2000 L") into m3.
 pub fn parse_room_volume_m3(text: &str) -> Result<f64, QuantityError> {
     let t = text.trim();
-    let (v, unit) = split_number(t, "50 m3")?;
+    const EXAMPLE: &str = "50 m3";
+    let (v, unit) = measured(t, EXAMPLE, true)?;
     match unit.as_str() {
         "m3" | "m³" | "m^3" => Ok(v),
-        _ => parse_volume(t).map(|l| l.0 / 1e3),
+        _ => parse_volume(t)
+            .map(|l| l.0 / 1e3)
+            .map_err(|_| QuantityError::UnknownUnit {
+                text: text.to_string(),
+                unit,
+                known: "m3, L",
+            }),
     }
 }
 
@@ -264,7 +271,7 @@ mod tests {
     use super::*;
 
     #[test]
-    fn parses_the_units_the_brief_names() {
+    fn parses_the_units_a_batch_file_accepts() {
         assert_eq!(parse_amount("0.1 mol/L").unwrap(), Amount::MolPerLitre(0.1));
         assert_eq!(parse_amount("5 mM").unwrap(), Amount::MolPerLitre(0.005));
         assert_eq!(parse_amount("2 M").unwrap(), Amount::MolPerLitre(2.0));

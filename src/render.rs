@@ -1,6 +1,7 @@
 //! Laying out a report as a terminal table or markdown. No chemistry here.
 
 use crate::catalog::GasKind;
+use crate::notation::pretty;
 use crate::pairs::{pairs_that_matter, Extent, Pair};
 use crate::report::{CheckReport, Finding, GasReport, Severity, StateReport};
 use comfy_table::{presets, Cell, CellAlignment, ContentArrangement, Table};
@@ -56,13 +57,19 @@ fn ppm_cell(g: &GasReport) -> String {
     }
 }
 
-/// The ratio that judges a gas in the headspace; an asphyxiant is judged by pressure and
-/// the room instead.
-fn judged_ratio(g: Option<&GasReport>) -> String {
-    match g {
-        Some(g) if !g.kinds.contains(&GasKind::Toxic) => "by pressure and room".into(),
-        g => fmt_ratio(g.and_then(|g| g.limit_ratio)),
+/// The ratio that judges a gas in the headspace, at its own worst point along the pour
+/// as written; an asphyxiant is judged by pressure and the room instead.
+fn judged_ratio(r: &CheckReport, g: &GasReport) -> String {
+    if !g.kinds.contains(&GasKind::Toxic) {
+        return "by pressure and room".into();
     }
+    let peak = r
+        .poured_as_written
+        .gas_peaks
+        .iter()
+        .find(|p| p.formula == g.formula)
+        .and_then(|p| p.limit_ratio);
+    fmt_ratio(peak.or(g.limit_ratio))
 }
 
 fn fmt_opt(v: Option<f64>) -> String {
@@ -151,6 +158,138 @@ fn gas_rows(report: &CheckReport) -> Vec<GasRow<'_>> {
         .collect()
 }
 
+/// Column heads of the gas table, the same in every format.
+pub const GAS_HEADS: [&str; 7] = [
+    "gas",
+    "at the end",
+    "worst while pouring",
+    "other order, worst",
+    "review at",
+    "stop at",
+    "its own worst / review",
+];
+
+/// The gas table's cells (formulas typeset), the same in every format.
+pub fn gas_cells(r: &CheckReport) -> Vec<Vec<String>> {
+    gas_rows(r)
+        .into_iter()
+        .map(|row| {
+            let any = row.any();
+            vec![
+                pretty(&row.formula),
+                row.end.map(ppm_cell).unwrap_or("-".into()),
+                row.worst.map(ppm_cell).unwrap_or("-".into()),
+                row.other.map(ppm_cell).unwrap_or("-".into()),
+                fmt_opt(any.limit_ppm),
+                fmt_opt(any.idlh_ppm),
+                judged_ratio(r, any),
+            ]
+        })
+        .collect()
+}
+
+/// What stands above the gas table: gases the findings name but nothing computed, and the
+/// line for an empty table.
+pub fn gas_table_notes(r: &CheckReport) -> Vec<String> {
+    let mut out = Vec::new();
+    if !r.uncomputed_gases.is_empty() {
+        out.push(format!(
+            "Named by the findings but not computed: {} (their amounts are not in this table).",
+            r.uncomputed_gases
+                .iter()
+                .map(|g| pretty(g))
+                .collect::<Vec<_>>()
+                .join(", ")
+        ));
+    }
+    if gas_rows(r).is_empty() {
+        out.push("No computed gas reaches 1e-6 ppm.".into());
+    }
+    out
+}
+
+/// Column heads of the pair table, the same in every format.
+pub const PAIR_HEADS: [&str; 8] = [
+    "donor",
+    "from",
+    "acceptor",
+    "from",
+    "gives",
+    "log K",
+    "extent",
+    "gas formed",
+];
+
+/// The pairs a report shows (all of them, or those that matter most).
+pub fn shown_pairs(r: &CheckReport, all: bool) -> Vec<&Pair> {
+    if all {
+        r.pairs.iter().collect()
+    } else {
+        pairs_that_matter(&r.pairs, DEFAULT_PAIRS)
+    }
+}
+
+/// The pair table's cells (formulas typeset), the same in every format.
+pub fn pair_cells(pairs: &[&Pair]) -> Vec<Vec<String>> {
+    pairs
+        .iter()
+        .map(|p| {
+            vec![
+                pretty(&p.donor),
+                format!("{:?}", p.donor_side).to_lowercase(),
+                pretty(&p.acceptor),
+                format!("{:?}", p.acceptor_side).to_lowercase(),
+                format!(
+                    "{} + {}",
+                    pretty(&p.produced_base),
+                    pretty(&p.produced_acid)
+                ),
+                format!("{:.1}", p.log_k),
+                extent_word(p.extent).to_string(),
+                p.volatile_products
+                    .iter()
+                    .map(|g| pretty(g))
+                    .collect::<Vec<_>>()
+                    .join(", "),
+            ]
+        })
+        .collect()
+}
+
+/// Column heads of the room table, the same in every format.
+pub const ROOM_HEADS: [&str; 7] = [
+    "gas",
+    "worst case, ppm",
+    "vs stop level",
+    "evaporation mg/min",
+    "steady state, ppm",
+    "short-term level after",
+    "stop level after",
+];
+
+/// The room table's cells, the same in every format.
+pub fn room_cells(r: &CheckReport) -> Vec<Vec<String>> {
+    let minutes = |m: Option<f64>| {
+        m.map(|m| format!("{m:.0} min"))
+            .unwrap_or_else(|| "never".into())
+    };
+    r.room
+        .gases
+        .iter()
+        .map(|g| {
+            vec![
+                pretty(&g.formula),
+                fmt_ppm(g.worst_case_room_ppm),
+                fmt_ratio(g.worst_case_idlh_ratio),
+                format!("{:.3}", g.emission_mg_per_min),
+                fmt_ppm(g.steady_state_ppm),
+                minutes(g.minutes_to_short_term),
+                minutes(g.minutes_to_idlh),
+            ]
+        })
+        .collect()
+}
+
 /// The terminal view: verdict and reasons first, then gases, states, pairs, cautions.
 pub fn check_table(r: &CheckReport, v: View) -> String {
     let mut out = String::new();
@@ -171,36 +310,23 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
         let _ = writeln!(out, "{}", finding_line(f, v.color));
     }
 
-    let rows = gas_rows(r);
     let _ = writeln!(out, "\nGas in the headspace (ppm by volume at 1 atm)");
-    if rows.is_empty() {
-        let _ = writeln!(out, "  No volatile form reaches 1e-6 ppm.");
-    } else {
+    for note in gas_table_notes(r) {
+        let _ = writeln!(out, "  {note}");
+    }
+    let cells = gas_cells(r);
+    if !cells.is_empty() {
         let mut t = table();
-        t.set_header(vec![
-            "gas",
-            "at the end",
-            "worst while pouring",
-            "other order, worst",
-            "review at",
-            "stop at",
-            "worst / review",
-        ]);
-        for row in rows {
-            let (e, w, o) = (row.end, row.worst, row.other);
-            let any = row.any();
-            t.add_row(vec![
-                Cell::new(&row.formula),
-                Cell::new(e.map(ppm_cell).unwrap_or("-".into()))
-                    .set_alignment(CellAlignment::Right),
-                Cell::new(w.map(ppm_cell).unwrap_or("-".into()))
-                    .set_alignment(CellAlignment::Right),
-                Cell::new(o.map(ppm_cell).unwrap_or("-".into()))
-                    .set_alignment(CellAlignment::Right),
-                Cell::new(fmt_opt(any.limit_ppm)).set_alignment(CellAlignment::Right),
-                Cell::new(fmt_opt(any.idlh_ppm)).set_alignment(CellAlignment::Right),
-                Cell::new(judged_ratio(w.or(e))).set_alignment(CellAlignment::Right),
-            ]);
+        t.set_header(GAS_HEADS.to_vec());
+        for row in cells {
+            t.add_row(row.into_iter().enumerate().map(|(i, c)| {
+                let cell = Cell::new(c);
+                if i == 0 {
+                    cell
+                } else {
+                    cell.set_alignment(CellAlignment::Right)
+                }
+            }));
         }
         let _ = writeln!(out, "{t}");
     }
@@ -237,8 +363,8 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
             format!("{:.3}", s.overpressure_kpa),
         ]);
     };
-    state_row("container before", "0 %".into(), &r.container_alone);
-    state_row("end", "100 %".into(), &r.end_state);
+    state_row("container before", "0.0 %".into(), &r.container_alone);
+    state_row("end", "100.0 %".into(), &r.end_state);
     state_row(
         "worst while pouring",
         format!("{:.1} %", r.worst_state.fraction_added * 100.0),
@@ -253,13 +379,9 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     }
     let _ = writeln!(out, "{t}");
 
-    out.push_str(&heat_and_room_text(r));
+    out.push_str(&heat_and_room_text(r, ListStyle::Terminal));
 
-    let pairs: Vec<&Pair> = if v.all_pairs {
-        r.pairs.iter().collect()
-    } else {
-        pairs_that_matter(&r.pairs, DEFAULT_PAIRS)
-    };
+    let pairs = shown_pairs(r, v.all_pairs);
     let _ = writeln!(
         out,
         "\nWhy: proton transfers between the two batches ({} of {} shown{})",
@@ -272,30 +394,7 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
         }
     );
     if !pairs.is_empty() {
-        let mut t = table();
-        t.set_header(vec![
-            "donor",
-            "from",
-            "acceptor",
-            "from",
-            "gives",
-            "log K",
-            "extent",
-            "gas formed",
-        ]);
-        for p in pairs {
-            t.add_row(vec![
-                p.donor.clone(),
-                format!("{:?}", p.donor_side).to_lowercase(),
-                p.acceptor.clone(),
-                format!("{:?}", p.acceptor_side).to_lowercase(),
-                format!("{} + {}", p.produced_base, p.produced_acid),
-                format!("{:.1}", p.log_k),
-                extent_word(p.extent).to_string(),
-                p.volatile_products.join(", "),
-            ]);
-        }
-        let _ = writeln!(out, "{t}");
+        out.push_str(&grid(ListStyle::Terminal, &PAIR_HEADS, &pair_cells(&pairs)));
     }
     out.push_str(&closing_lists(
         &r.assumptions,
@@ -306,14 +405,22 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
 }
 
 /// Heat, pressure, hydrogen and the room, as plain lines and one table.
-fn heat_and_room_text(r: &CheckReport) -> String {
+fn heat_and_room_text(r: &CheckReport, style: ListStyle) -> String {
     let mut out = String::new();
+    // A line of text: indented under a heading in the terminal, a paragraph in markdown.
+    let indent = if matches!(style, ListStyle::Terminal) {
+        "  "
+    } else {
+        "- "
+    };
     let h = &r.end_state.heat;
-    let _ = writeln!(out, "\nHeat and pressure");
+    if matches!(style, ListStyle::Terminal) {
+        let _ = writeln!(out, "\nHeat and pressure");
+    }
     let fixed = crate::text::fixed;
     let _ = writeln!(
         out,
-        "  The pour {}: {} °C → {} °C{}.",
+        "{indent}The pour {}: {} °C → {} °C{}.",
         h.released_words(1),
         fixed(h.start_temperature_c, 1),
         fixed(h.would_reach_c, 1),
@@ -323,14 +430,14 @@ fn heat_and_room_text(r: &CheckReport) -> String {
     if e.vented_gas_l > 0.0 || e.overpressure_kpa == 0.0 {
         let _ = writeln!(
             out,
-            "  No pressure builds (vented or open): {} L of gas leaves at 1 atm, {} % of it toxic.",
+            "{indent}No pressure builds (vented or open): {} L of gas leaves at 1 atm, {} % of it toxic.",
             fixed(e.vented_gas_l, 2),
             fixed(e.vented_toxic_percent, 0)
         );
     } else {
         let _ = writeln!(
             out,
-            "  Sealed: {} kPa above atmospheric at the end ({} kPa of it from the gases the liquid gives off).",
+            "{indent}Sealed: {} kPa above atmospheric at the end ({} kPa of it from the gases the liquid gives off).",
             fixed(e.overpressure_kpa, 1),
             fixed(e.gas_pressure_kpa, 1)
         );
@@ -338,7 +445,7 @@ fn heat_and_room_text(r: &CheckReport) -> String {
     for g in &r.stoichiometric_gases {
         let _ = writeln!(
             out,
-            "  {}: {:.3} mol ({:.2} L at 1 atm), {:.1} % of the headspace{}.",
+            "{indent}{}: {:.3} mol ({:.2} L at 1 atm), {:.1} % of the headspace{}.",
             g.formula,
             g.moles,
             g.litres_at_1_atm,
@@ -351,7 +458,12 @@ fn heat_and_room_text(r: &CheckReport) -> String {
     let room = &r.room;
     let _ = writeln!(
         out,
-        "\nRoom ({} m3, {} air changes per hour; open surface: {}{})",
+        "\n{}Room ({} m3, {} air changes per hour; open surface: {}{})",
+        if matches!(style, ListStyle::Markdown) {
+            "### "
+        } else {
+            ""
+        },
         room.settings.volume_m3,
         room.settings.air_changes_per_hour,
         room.settings.surface_basis,
@@ -362,37 +474,37 @@ fn heat_and_room_text(r: &CheckReport) -> String {
         }
     );
     if room.gases.is_empty() {
-        let _ = writeln!(out, "  Nothing volatile to release.");
+        let _ = writeln!(out, "{indent}Nothing volatile to release.");
         return out;
     }
-    let _ = writeln!(out, "  Worst case: {}.", room.settings.worst_case);
-    let mut t = table();
-    t.set_header(vec![
-        "gas",
-        "worst case, ppm",
-        "vs stop level",
-        "evaporation mg/min",
-        "steady state, ppm",
-        "short-term level after",
-        "stop level after",
-    ]);
-    let minutes = |m: Option<f64>| {
-        m.map(|m| format!("{m:.0} min"))
-            .unwrap_or_else(|| "never".into())
-    };
-    for g in &room.gases {
-        t.add_row(vec![
-            g.formula.clone(),
-            fmt_ppm(g.worst_case_room_ppm),
-            fmt_ratio(g.worst_case_idlh_ratio),
-            format!("{:.3}", g.emission_mg_per_min),
-            fmt_ppm(g.steady_state_ppm),
-            minutes(g.minutes_to_short_term),
-            minutes(g.minutes_to_idlh),
-        ]);
-    }
-    let _ = writeln!(out, "{t}");
+    let _ = writeln!(out, "{indent}Worst case: {}.", room.settings.worst_case);
+    out.push_str(&grid(style, &ROOM_HEADS, &room_cells(r)));
     out
+}
+
+/// A table: box-drawn for the terminal, pipes for markdown.
+fn grid(style: ListStyle, headers: &[&str], rows: &[Vec<String>]) -> String {
+    match style {
+        ListStyle::Markdown => {
+            let mut out = format!(
+                "\n| {} |\n|{}\n",
+                headers.join(" | "),
+                "---|".repeat(headers.len())
+            );
+            for r in rows {
+                let _ = writeln!(out, "| {} |", r.join(" | "));
+            }
+            out
+        }
+        _ => {
+            let mut t = table();
+            t.set_header(headers.to_vec());
+            for r in rows {
+                t.add_row(r.clone());
+            }
+            format!("{t}\n")
+        }
+    }
 }
 
 fn extent_word(e: Extent) -> &'static str {
@@ -423,30 +535,15 @@ pub fn check_markdown(r: &CheckReport, v: View) -> String {
         } else {
             format!(" _From {}._", f.origin)
         };
-        let _ = writeln!(
-            out,
-            "- **{tag}** ({}) {} {}{from}",
-            f.code, f.message, f.caution
-        );
+        let _ = writeln!(out, "- **{tag}** {} {}{from}", f.message, f.caution);
     }
     let _ = writeln!(out, "\n## Gas in the headspace\n");
-    let _ = writeln!(
-        out,
-        "| gas | end ppm | worst ppm | review at | stop at | worst / review |"
-    );
-    let _ = writeln!(out, "|---|---:|---:|---:|---:|---:|");
-    for row in gas_rows(r) {
-        let (e, w, any) = (row.end, row.worst, row.any());
-        let _ = writeln!(
-            out,
-            "| {} | {} | {} | {} | {} | {} |",
-            row.formula,
-            e.map(ppm_cell).unwrap_or("-".into()),
-            w.map(ppm_cell).unwrap_or("-".into()),
-            fmt_opt(any.limit_ppm),
-            fmt_opt(any.idlh_ppm),
-            judged_ratio(w.or(e))
-        );
+    for note in gas_table_notes(r) {
+        let _ = writeln!(out, "{note}\n");
+    }
+    let cells = gas_cells(r);
+    if !cells.is_empty() {
+        out.push_str(&grid(ListStyle::Markdown, &GAS_HEADS, &cells));
     }
     let _ = writeln!(out, "\n## States\n");
     let _ = writeln!(
@@ -481,35 +578,12 @@ pub fn check_markdown(r: &CheckReport, v: View) -> String {
     }
     let _ = writeln!(
         out,
-        "\n## Heat, pressure and the room\n\n```{}```",
-        heat_and_room_text(r)
+        "\n## Heat, pressure and the room\n{}",
+        heat_and_room_text(r, ListStyle::Markdown)
     );
-    let pairs: Vec<&Pair> = if v.all_pairs {
-        r.pairs.iter().collect()
-    } else {
-        pairs_that_matter(&r.pairs, DEFAULT_PAIRS)
-    };
+    let pairs = shown_pairs(r, v.all_pairs);
     let _ = writeln!(out, "\n## Why: proton transfers\n");
-    let _ = writeln!(
-        out,
-        "| donor | acceptor | gives | log K | extent | gas formed |"
-    );
-    let _ = writeln!(out, "|---|---|---|---:|---|---|");
-    for p in pairs {
-        let _ = writeln!(
-            out,
-            "| {} ({:?}) | {} ({:?}) | {} + {} | {:.1} | {} | {} |",
-            p.donor,
-            p.donor_side,
-            p.acceptor,
-            p.acceptor_side,
-            p.produced_base,
-            p.produced_acid,
-            p.log_k,
-            extent_word(p.extent),
-            p.volatile_products.join(", ")
-        );
-    }
+    out.push_str(&grid(ListStyle::Markdown, &PAIR_HEADS, &pair_cells(&pairs)));
     out.push_str(&closing_lists(
         &r.assumptions,
         &r.cautions,
@@ -546,7 +620,7 @@ pub fn closing_lists(assumptions: &[String], cautions: &[String], style: ListSty
             ListStyle::Html => {
                 let _ = writeln!(out, "<h2>{title}</h2><ul>");
                 for i in items {
-                    let _ = writeln!(out, "<li>{}</li>", crate::sheet::esc(i));
+                    let _ = writeln!(out, "<li>{}</li>", crate::html::prose(i));
                 }
                 let _ = writeln!(out, "</ul>");
             }

@@ -171,6 +171,18 @@ pub struct OrderReport {
     pub worst_state: WorstStateReport,
     /// Highest ratio of any gas to its review level along this order.
     pub worst_limit_ratio: f64,
+    /// Each gas at its own worst point along this order (among the states solved).
+    pub gas_peaks: Vec<GasPeak>,
+}
+
+/// One gas at its own worst point along a pour.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GasPeak {
+    pub formula: String,
+    pub fraction_added: f64,
+    pub headspace_ppm: f64,
+    pub limit_ratio: Option<f64>,
+    pub idlh_ratio: Option<f64>,
 }
 
 /// What a person in the room would breathe.
@@ -200,6 +212,8 @@ pub struct CheckReport {
     pub stoichiometric_gases: Vec<crate::release::ReleaseReport>,
     pub room: RoomSection,
     pub findings: Vec<Finding>,
+    /// Gases the findings name that offgas does not compute (ASCII formulas).
+    pub uncomputed_gases: Vec<String>,
     pub inert_components: Vec<String>,
     pub assumptions: Vec<String>,
     pub cautions: Vec<String>,

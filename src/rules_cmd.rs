@@ -13,6 +13,10 @@ fn errors_text(errors: &[RuleError]) -> String {
         .join("\n")
 }
 
+fn counted(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
+}
+
 /// Reads every `*.yaml` file of a site rule folder, in name order.
 fn site_files(dir: &Path) -> Result<Vec<(String, String)>> {
     let entries = std::fs::read_dir(dir)
@@ -38,7 +42,8 @@ fn site_files(dir: &Path) -> Result<Vec<(String, String)>> {
         .collect()
 }
 
-/// Layers the site's rule files, if any, over the built-in rules.
+/// Layers the site's rule files, if any, over the built-in rules. Every problem of every
+/// file is collected, sorted by file and line, so that a rule author fixes them in one go.
 fn layered(cat: &Catalog, site: Option<&Path>) -> std::result::Result<RuleSet, Vec<RuleError>> {
     let mut set = offgas::embedded::rules(cat)?;
     if let Some(dir) = site {
@@ -52,16 +57,16 @@ fn layered(cat: &Catalog, site: Option<&Path>) -> std::result::Result<RuleSet, V
         let mut errors = Vec::new();
         for (file, text) in files {
             let origin = Origin::Site { file: file.clone() };
-            match RuleSet::parse_file(cat, &file, &text, origin) {
-                Ok(rules) => {
-                    if let Err(e) = set.extend(rules) {
-                        errors.extend(e);
-                    }
-                }
-                Err(e) => errors.extend(e),
+            let (rules, problems) = RuleSet::parse_file_all(cat, &file, &text, origin);
+            errors.extend(problems);
+            // The sound rules of a file with problems are layered too, so that their ids
+            // and `raises` are checked in the same run.
+            if let Err(e) = set.extend(rules) {
+                errors.extend(e);
             }
         }
         if !errors.is_empty() {
+            errors.sort_by(|a, b| a.file.cmp(&b.file).then(a.line.cmp(&b.line)));
             return Err(errors);
         }
     }
@@ -151,11 +156,19 @@ pub fn check_dir(dir: &Path) -> Result<u8> {
             ))?;
             Ok(0)
         }
-        Err(errors) => Err(anyhow!(
-            "{} problem(s) in {}:\n{}",
-            errors.len(),
-            dir.display(),
-            errors_text(&errors)
-        )),
+        Err(errors) => {
+            let files = {
+                let mut f: Vec<&str> = errors.iter().map(|e| e.file.as_str()).collect();
+                f.dedup();
+                f.len()
+            };
+            Err(anyhow!(
+                "{} in {} in {}; nothing there can be used until every one is fixed:\n{}",
+                counted(errors.len(), "problem", "problems"),
+                counted(files, "file", "files"),
+                dir.display(),
+                errors_text(&errors)
+            ))
+        }
     }
 }

@@ -1,6 +1,7 @@
 //! The approval sheet of a procedure: a terminal table, markdown, or one self-contained
 //! HTML page that prints on A4 and Letter. Layout only; the numbers come from the report.
 
+use crate::html::{esc, prose};
 use crate::procedure::run::{ProcedureReport, StepReport};
 use crate::report::{Severity, StateReport};
 use comfy_table::{presets, ContentArrangement, Table};
@@ -200,8 +201,8 @@ pub fn procedure_markdown(r: &ProcedureReport) -> String {
         for f in s.findings.iter().filter(|f| f.severity >= Severity::Review) {
             let _ = writeln!(
                 out,
-                "- Step {} — **{}** ({}): {} {}",
-                s.number, f.severity, f.code, f.message, f.caution
+                "- Step {} — **{}**: {} {}",
+                s.number, f.severity, f.message, f.caution
             );
         }
     }
@@ -217,32 +218,11 @@ pub fn procedure_markdown(r: &ProcedureReport) -> String {
     out
 }
 
-/// Escapes text for HTML.
-pub fn esc(s: &str) -> String {
-    s.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
-        .replace('"', "&quot;")
-}
-
-const STYLE: &str = r#"
-@page { margin: 14mm; }
-* { box-sizing: border-box; }
-body { font-family: "Helvetica Neue", Arial, sans-serif; font-size: 10.5pt; color: #111; margin: 0 auto; max-width: 180mm; padding: 8mm 0; }
-h1 { font-size: 15pt; margin: 0 0 4pt; }
-h2 { font-size: 12pt; margin: 14pt 0 4pt; border-bottom: 1px solid #888; }
-p, li { line-height: 1.35; }
-table { border-collapse: collapse; width: 100%; margin: 4pt 0; }
-th, td { border: 1px solid #999; padding: 3pt 4pt; vertical-align: top; text-align: left; font-size: 9pt; }
-th { background: #eee; }
-tr { page-break-inside: avoid; }
-.verdict { font-weight: bold; font-size: 13pt; padding: 4pt 8pt; display: inline-block; border: 2px solid #111; }
-.stop { background: #f6d5d5; } .review { background: #f8ecc8; } .clear { background: #dcefd9; }
+/// What the approval sheet adds to the shared page style: the sign-off lines.
+const SHEET_STYLE: &str = r#"
 .sign { margin-top: 16pt; page-break-inside: avoid; }
 .sign div { display: flex; gap: 8pt; margin: 14pt 0; }
 .sign span.line { flex: 1; border-bottom: 1px solid #111; }
-.small { font-size: 8.5pt; color: #333; }
-@media print { body { padding: 0; max-width: none; } h2 { page-break-after: avoid; } }
 "#;
 
 /// The sheet as one self-contained HTML page (no external assets).
@@ -253,11 +233,6 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         Severity::Review => "review",
         _ => "clear",
     };
-    let _ = write!(
-        out,
-        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>Procedure check: {}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n",
-        esc(&r.name)
-    );
     let _ = writeln!(out, "<h1>Procedure check: {}</h1>", esc(&r.name));
     let _ = writeln!(
         out,
@@ -304,8 +279,8 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
             "<tr class=\"{}\"><td>{}. {}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{:.1}</td><td>{}</td></tr>",
             cls(s.severity),
             s.number,
-            esc(&s.description),
-            esc(&s.action),
+            prose(&s.description),
+            prose(&s.action),
             esc(&end),
             esc(&worst),
             esc(&worst_gases(s)),
@@ -319,12 +294,11 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         for f in s.findings.iter().filter(|f| f.severity >= Severity::Review) {
             let _ = writeln!(
                 out,
-                "<li>Step {} — <strong>{}</strong> ({}): {} <span class=\"small\">{}</span></li>",
+                "<li>Step {} — <strong>{}</strong>: {} <span class=\"small\">{}</span></li>",
                 s.number,
                 f.severity,
-                esc(&f.code),
-                esc(&f.message),
-                esc(&f.caution)
+                prose(&f.message),
+                prose(&f.caution)
             );
         }
     }
@@ -342,6 +316,6 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
             esc(s)
         );
     }
-    let _ = writeln!(out, "</div>\n</body>\n</html>");
-    out
+    let _ = writeln!(out, "</div>");
+    crate::html::page(&format!("Procedure check: {}", r.name), SHEET_STYLE, &out)
 }

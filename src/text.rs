@@ -10,6 +10,13 @@ pub fn fixed(v: f64, decimals: usize) -> String {
     }
 }
 
+/// A volume in litres as people write it: "146 L", "4 L", "0.5 L", "0.025 L".
+pub fn litres(l: f64) -> String {
+    let s = format!("{l:.3}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    format!("{} L", if s.is_empty() || s == "-" { "0" } else { s })
+}
+
 /// `s` with its first letter in capitals, to open a sentence.
 pub fn sentence_start(s: &str) -> String {
     let mut c = s.chars();
@@ -21,7 +28,15 @@ pub fn sentence_start(s: &str) -> String {
 
 #[cfg(test)]
 mod tests {
-    use super::fixed;
+    use super::{fixed, litres};
+
+    #[test]
+    fn litres_without_trailing_zeros() {
+        assert_eq!(litres(146.0), "146 L");
+        assert_eq!(litres(0.5), "0.5 L");
+        assert_eq!(litres(0.025), "0.025 L");
+        assert_eq!(litres(4.0004), "4 L");
+    }
 
     #[test]
     fn no_negative_zero() {

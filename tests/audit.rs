@@ -170,8 +170,12 @@ fn bad_inventories_are_refused_with_the_line() {
             .expect_err("refused")
             .to_string()
     };
-    let e = err("containers:\n  - { id: X, location: B / R / C, size: 1 L, substance: acetone, amount: 0.5 L }\n");
-    assert!(e.contains("inv.yaml:2") && e.contains("has 3 parts"), "{e}");
+    // A location has one to six levels.
+    let e = err("containers:\n  - { id: X, location: B / W / R / C / S / T / X, size: 1 L, substance: acetone, amount: 0.5 L }\n");
+    assert!(
+        e.contains("inv.yaml:2") && e.contains("has 7 levels"),
+        "{e}"
+    );
     let e = err("containers:\n  - { id: X, location: B / R / C / T, size: 1 L, substance: unobtainium, amount: 5 g }\n");
     assert!(e.contains("unknown substance"), "{e}");
     let e = err("containers:\n  - { id: X, location: B / R / C / T, size: 0.1 L, substance: acetone, amount: 0.5 L }\n");

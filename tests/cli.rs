@@ -1,4 +1,4 @@
-//! The command line as a user meets it: exit statuses, the JSON contract of brief section 6,
+//! The command line as a user meets it: exit statuses, the JSON contract the README documents,
 //! and a clear message for every kind of bad input.
 
 use assert_cmd::Command;

@@ -1,5 +1,7 @@
 //! CSV import of storeroom inventories (src/store/csv_import.rs): the fixtures in
-//! tests/fixtures/csv/, custom column mappings, and rows that cannot be read.
+//! tests/fixtures/csv/, custom column mappings, rows that cannot be read, locations of one
+//! to six levels (one column or several joined), and the demo inventory
+//! data/demo/storeroom-c.csv audited end to end.
 
 use offgas::catalog::Catalog;
 use offgas::store::csv_import::*;
@@ -161,11 +163,8 @@ fn bad_rows_are_refused_with_their_row_numbers() {
     let e = errors(BAD, &ColumnMapping::default());
     let rows: Vec<Option<usize>> = e.iter().map(|e| e.line).collect();
     // Row 7 is a good row of the solution W-001, whose row 8 is bad: not an error itself.
-    assert_eq!(
-        rows,
-        [Some(3), Some(4), Some(5), Some(6), Some(8)],
-        "{e:#?}"
-    );
+    // Row 5 (`Main / Room 101 / Cabinet A`, three levels) reads: Cabinet A is its spill zone.
+    assert_eq!(rows, [Some(3), Some(4), Some(6), Some(8)], "{e:#?}");
     for err in &e {
         assert_eq!(err.file, "store.csv");
         let row = err.line.unwrap();
@@ -189,7 +188,6 @@ fn bad_rows_are_refused_with_their_row_numbers() {
         text(3)
     );
     assert!(text(4).message.contains("furlongs"), "{}", text(4));
-    assert!(text(5).message.contains("3 parts"), "{}", text(5));
     assert!(text(6).message.contains("no container id"), "{}", text(6));
     assert!(
         text(8).message.contains("W-001") && text(8).message.contains("unobtainium"),
@@ -198,12 +196,19 @@ fn bad_rows_are_refused_with_their_row_numbers() {
     );
     // Display names the file and the row.
     assert!(
-        text(5)
+        text(4)
             .to_string()
-            .starts_with("store.csv:5: row 5: container `S-004`"),
+            .starts_with("store.csv:4: row 4: container `S-003`"),
         "{}",
-        text(5)
+        text(4)
     );
+    // The refusal counts rows, singular or plural.
+    let m = refusal_message("store.csv", &e);
+    assert!(m.starts_with("4 rows of store.csv cannot be read"), "{m}");
+    assert!(m.contains("lists them"), "{m}");
+    let m = refusal_message("store.csv", &e[..1]);
+    assert!(m.starts_with("1 row of store.csv cannot be read"), "{m}");
+    assert!(m.contains("lists it"), "{m}");
 }
 
 #[test]
@@ -211,7 +216,7 @@ fn bad_rows_are_skipped_only_when_asked() {
     let (inv, skipped) =
         import(&cat(), "store.csv", BAD, &ColumnMapping::default(), true).expect("skipping");
     let ids: Vec<&str> = inv.containers.iter().map(|c| c.id.as_str()).collect();
-    assert_eq!(ids, ["S-001", "L-001"]);
+    assert_eq!(ids, ["S-001", "S-004", "L-001"]);
     let listed: Vec<(usize, Option<&str>)> =
         skipped.iter().map(|s| (s.row, s.id.as_deref())).collect();
     assert_eq!(
@@ -219,7 +224,6 @@ fn bad_rows_are_skipped_only_when_asked() {
         [
             (3, Some("S-002")),
             (4, Some("S-003")),
-            (5, Some("S-004")),
             (6, None),
             (7, Some("W-001")),
             (8, Some("W-001")),
@@ -231,11 +235,11 @@ fn bad_rows_are_skipped_only_when_asked() {
         skipped[0].message
     );
     assert!(
-        skipped[4].message.contains("row 8"),
+        skipped[3].message.contains("row 8"),
         "{}",
-        skipped[4].message
+        skipped[3].message
     );
-    let json = serde_json::to_value(&skipped[3]).unwrap();
+    let json = serde_json::to_value(&skipped[2]).unwrap();
     assert_eq!(json["row"], 6);
     assert!(json["id"].is_null());
     assert!(json["message"]
@@ -286,9 +290,10 @@ fn mapping_mistakes_are_named() {
     assert!(e.contains("amount, size, location"), "{e}");
     assert!(mapping_from_yaml("colums: { id: A }").is_err());
     let d = ColumnMapping::default();
+    assert_eq!(d.location, ["location"]);
     assert_eq!(
-        [d.id, d.substance, d.amount, d.size, d.location],
-        ["id", "substance", "amount", "size", "location"]
+        [d.id, d.substance, d.amount, d.size],
+        ["id", "substance", "amount", "size"]
     );
     assert_eq!(
         (d.unit.as_deref(), d.volume.as_deref()),
@@ -373,4 +378,423 @@ fn spreadsheet_exports_read_as_they_are() {
     assert_eq!(inv.containers[0].line, Some(2));
     assert_eq!(skipped.len(), 1);
     assert_eq!(skipped[0].row, 5);
+}
+
+// ---------------------------------------------------------------------------------------
+// Locations of one to six levels.
+
+/// Neat sodium chloride at each location, one per row, ids A, B, C, ...
+fn salt_rows(locations: &[&str]) -> String {
+    let mut t = String::from("id,substance,amount,size,location\n");
+    for (k, l) in locations.iter().enumerate() {
+        let id = (b'A' + k as u8) as char;
+        t.push_str(&format!("{id},sodium chloride,5 g,1 L,\"{l}\"\n"));
+    }
+    t
+}
+
+/// (spill zone, cabinet, room part) of a container, each joined with " / ".
+fn levels_of(inv: &Inventory, id: &str) -> (String, String, String) {
+    let c = get(inv, id);
+    (
+        inv.spill_zone_path(&c.path).join(" / "),
+        inv.cabinet_path(&c.path).join(" / "),
+        inv.room_path(&c.path).join(" / "),
+    )
+}
+
+fn strings(t: (&str, &str, &str)) -> (String, String, String) {
+    (t.0.into(), t.1.into(), t.2.into())
+}
+
+#[test]
+fn a_one_level_location_is_its_own_spill_zone_and_cabinet() {
+    let inv = read(
+        &salt_rows(&["Cab 1", " Cab 1 ", "Cab 2"]),
+        &ColumnMapping::default(),
+    );
+    assert_eq!(get(&inv, "A").path, ["Cab 1"]);
+    assert_eq!(get(&inv, "B").path, ["Cab 1"], "spaces are trimmed");
+    assert_eq!((inv.meet_depth, inv.cabinet_depth), (1, 1));
+    assert_eq!(levels_of(&inv, "A"), strings(("Cab 1", "Cab 1", "")));
+    assert_eq!(
+        inv.spill_zone(get(&inv, "A")),
+        inv.spill_zone(get(&inv, "B"))
+    );
+    assert_ne!(inv.cabinet(get(&inv, "A")), inv.cabinet(get(&inv, "C")));
+}
+
+#[test]
+fn a_two_level_location_is_cabinet_then_spill_zone() {
+    let inv = read(
+        &salt_rows(&["Cab 1 / Tray 2", "Cab 1/Tray 3"]),
+        &ColumnMapping::default(),
+    );
+    assert_eq!(get(&inv, "B").path, ["Cab 1", "Tray 3"]);
+    assert_eq!((inv.meet_depth, inv.cabinet_depth), (2, 1));
+    assert_eq!(
+        levels_of(&inv, "A"),
+        strings(("Cab 1 / Tray 2", "Cab 1", ""))
+    );
+    assert_eq!(inv.cabinet(get(&inv, "A")), inv.cabinet(get(&inv, "B")));
+    assert_ne!(
+        inv.spill_zone(get(&inv, "A")),
+        inv.spill_zone(get(&inv, "B"))
+    );
+}
+
+#[test]
+fn a_four_level_location_reads_as_before() {
+    let inv = read(
+        &salt_rows(&["Annex / Store C / Cabinet 4 / Tray 1"]),
+        &ColumnMapping::default(),
+    );
+    assert_eq!((inv.meet_depth, inv.cabinet_depth), (4, 3));
+    assert_eq!(
+        levels_of(&inv, "A"),
+        strings((
+            "Annex / Store C / Cabinet 4 / Tray 1",
+            "Annex / Store C / Cabinet 4",
+            "Annex / Store C"
+        ))
+    );
+}
+
+#[test]
+fn a_six_level_location_reads_and_a_seven_level_one_is_refused_with_its_row() {
+    let six = "Site / Annex / Store C / Cabinet 4 / Shelf 2 / Bin 1";
+    let inv = read(&salt_rows(&[six]), &ColumnMapping::default());
+    assert_eq!(get(&inv, "A").path.len(), 6);
+    assert_eq!((inv.meet_depth, inv.cabinet_depth), (6, 5));
+    assert_eq!(
+        levels_of(&inv, "A"),
+        strings((
+            six,
+            "Site / Annex / Store C / Cabinet 4 / Shelf 2",
+            "Site / Annex / Store C / Cabinet 4"
+        ))
+    );
+
+    let seven = "Site / Annex / Store C / Cabinet 4 / Shelf 2 / Bin 1 / Box 3";
+    let e = errors(
+        &salt_rows(&["Cab 1", seven, "Cab 2"]),
+        &ColumnMapping::default(),
+    );
+    assert_eq!(e.len(), 1, "{e:#?}");
+    assert_eq!(e[0].line, Some(3));
+    assert!(
+        e[0].message.starts_with("row 3: container `B`: location `")
+            && e[0].message.contains("has 7 levels")
+            && e[0].message.contains("1 to 6"),
+        "{}",
+        e[0]
+    );
+    assert!(
+        e[0].fix
+            .as_deref()
+            .unwrap_or("")
+            .contains("spill zone last"),
+        "{}",
+        e[0]
+    );
+    // Skipped on request, with its row; the others are audited.
+    let (inv, skipped) = import(
+        &cat(),
+        "store.csv",
+        &salt_rows(&["Cab 1", seven, "Cab 2"]),
+        &ColumnMapping::default(),
+        true,
+    )
+    .unwrap();
+    assert_eq!(inv.containers.len(), 2);
+    assert_eq!((skipped[0].row, skipped[0].id.as_deref()), (3, Some("B")));
+}
+
+#[test]
+fn an_empty_location_is_refused() {
+    let e = errors(&salt_rows(&[" / / "]), &ColumnMapping::default());
+    assert!(e[0].message.contains("the location is empty"), "{e:#?}");
+}
+
+const THREE_COLUMNS: &str = "Bottle,Chemical,Qty,Container,Room,Cabinet,Shelf\n\
+    A,sodium chloride,5 g,1 L,Store C,Cabinet 4,Tray 1\n\
+    B,sodium chloride,5 g,1 L,Store C,Cabinet 4,\n\
+    C,sodium chloride,5 g,1 L,Store C,,Tray 9\n\
+    D,sodium chloride,5 g,1 L,,,Floor\n\
+    E,sodium chloride,5 g,1 L, , ,\n\
+    F,sodium chloride,5 g,1 L,Store C / Bay 2,Cabinet 7 / Shelf 1 / Rack 3,Bin 1 / Box 2\n";
+
+fn three_column_mapping() -> ColumnMapping {
+    parse_mapping(
+        "id=Bottle,substance=Chemical,amount=Qty,size=Container,location=Room+Cabinet+Shelf",
+    )
+    .expect("mapping parses")
+}
+
+#[test]
+fn a_location_from_three_columns_joins_them_outermost_first() {
+    let m = three_column_mapping();
+    assert_eq!(m.location, ["Room", "Cabinet", "Shelf"]);
+    assert_eq!(m.location_spec(), "Room+Cabinet+Shelf");
+    let (inv, skipped) = import(&cat(), "store.csv", THREE_COLUMNS, &m, true).unwrap();
+    assert_eq!(get(&inv, "A").path, ["Store C", "Cabinet 4", "Tray 1"]);
+    assert_eq!(
+        levels_of(&inv, "A"),
+        strings((
+            "Store C / Cabinet 4 / Tray 1",
+            "Store C / Cabinet 4",
+            "Store C"
+        ))
+    );
+    // Row E has no location at all; row F holds seven levels across its cells.
+    let listed: Vec<usize> = skipped.iter().map(|s| s.row).collect();
+    assert_eq!(listed, [6, 7], "{skipped:#?}");
+    assert!(
+        skipped[0]
+            .message
+            .contains("no location in the `Room`, `Cabinet` and `Shelf` columns"),
+        "{}",
+        skipped[0].message
+    );
+    assert!(
+        skipped[1].message.contains("has 7 levels"),
+        "{}",
+        skipped[1].message
+    );
+}
+
+#[test]
+fn empty_cells_of_a_location_are_skipped() {
+    let (inv, _) = import(
+        &cat(),
+        "store.csv",
+        THREE_COLUMNS,
+        &three_column_mapping(),
+        true,
+    )
+    .unwrap();
+    // No shelf: the cabinet is the spill zone, the room above it the cabinet level.
+    assert_eq!(get(&inv, "B").path, ["Store C", "Cabinet 4"]);
+    // No cabinet: the tray follows the room directly.
+    assert_eq!(get(&inv, "C").path, ["Store C", "Tray 9"]);
+    // Only the last cell: a one-level location.
+    assert_eq!(get(&inv, "D").path, ["Floor"]);
+    assert_eq!(levels_of(&inv, "D"), strings(("Floor", "Floor", "")));
+    assert_eq!((inv.meet_depth, inv.cabinet_depth), (3, 2));
+    assert_eq!(
+        levels_of(&inv, "B"),
+        strings(("Store C / Cabinet 4", "Store C", ""))
+    );
+}
+
+#[test]
+fn later_rows_of_a_solution_may_leave_a_several_column_location_empty() {
+    let text = "id,substance,amount,size,volume,Room,Cabinet\n\
+                W,sodium hydroxide,20 g/L,10 L,8 L,Wash bay,Drum rack\n\
+                W,sodium chloride,5 g/L,,,,\n\
+                X,sodium hydroxide,20 g/L,10 L,8 L,Wash bay,Drum rack\n\
+                X,sodium chloride,5 g/L,,,Wash bay,\n";
+    let m = parse_mapping(
+        "id=id,substance=substance,amount=amount,size=size,volume=volume,location=Room+Cabinet",
+    )
+    .unwrap();
+    let e = errors(text, &m);
+    // W reads; X's second row names another place.
+    assert_eq!(e.len(), 1, "{e:#?}");
+    assert_eq!(e[0].line, Some(5));
+    assert!(
+        e[0].message
+            .contains("`Wash bay` differs from `Wash bay / Drum rack` on row 4"),
+        "{}",
+        e[0]
+    );
+}
+
+#[test]
+fn a_several_column_location_by_spec_and_by_mapping_file() {
+    let spec = parse_mapping(
+        "id=Bottle, substance=Chemical, amount=Qty, size=Container, location = Room + Cabinet + Shelf",
+    )
+    .unwrap();
+    let joined = mapping_from_yaml(
+        "columns:\n  id: Bottle\n  substance: Chemical\n  amount: Qty\n  size: Container\n  location: Room + Cabinet + Shelf\n",
+    )
+    .unwrap();
+    let listed = mapping_from_yaml(
+        "columns: { id: Bottle, substance: Chemical, amount: Qty, size: Container, location: [Room, Cabinet, Shelf] }\n",
+    )
+    .unwrap();
+    assert_eq!(spec, three_column_mapping());
+    assert_eq!(joined, spec);
+    assert_eq!(listed, spec);
+    // A list keeps a `+` inside a header name.
+    let plus = mapping_from_yaml(
+        "columns: { id: A, substance: B, amount: C, size: D, location: [\"Room+Bay\", Shelf] }\n",
+    )
+    .unwrap();
+    assert_eq!(plus.location, ["Room+Bay", "Shelf"]);
+    // A header that is missing is named among the location's columns.
+    let m = parse_mapping(
+        "id=Bottle,substance=Chemical,amount=Qty,size=Container,location=Room+Rack+Shelf",
+    )
+    .unwrap();
+    let e = errors(THREE_COLUMNS, &m);
+    assert!(e[0].message.contains("no column `Rack`"), "{}", e[0]);
+}
+
+#[test]
+fn several_column_mistakes_are_named() {
+    let base = "id=A,substance=B,amount=C,size=D";
+    let e = parse_mapping(&format!("{base},location=Room++Shelf")).unwrap_err();
+    assert!(e.contains("empty header name"), "{e}");
+    let e = parse_mapping(&format!("{base},location=Room+room")).unwrap_err();
+    assert!(e.contains("names the column `room` twice"), "{e}");
+    let e = parse_mapping(&format!("{base},location=L1+L2+L3+L4+L5+L6+L7")).unwrap_err();
+    assert!(
+        e.contains("joins 7 columns") && e.contains("at most 6"),
+        "{e}"
+    );
+    let e = mapping_from_yaml(
+        "columns: { id: [A, B], substance: B, amount: C, size: D, location: E }\n",
+    )
+    .unwrap_err();
+    assert!(
+        e.contains("only `location` can be built from several"),
+        "{e}"
+    );
+    // Anywhere but the location, a `+` is part of the header name.
+    let m = parse_mapping("id=A+B,substance=B,amount=C,size=D,location=E").unwrap();
+    assert_eq!(m.id, "A+B");
+}
+
+#[test]
+fn locations_of_different_depths_pair_where_they_can_meet() {
+    use offgas::store::audit::{AuditSettings, Auditor};
+    // A: loose in Cab 1 (one level: its own cabinet); B, C on tray 1 and D on tray 2 of
+    // Cab 1; E loose in Cab 2. Within Cab 1: B-C share a spill zone, the other four pairs
+    // meet at the cabinet level; E meets no one. Sodium chloride throughout: all clear.
+    let inv = read(
+        &salt_rows(&[
+            "Cab 1",
+            "Cab 1 / Tray 1",
+            "Cab 1 / Tray 1",
+            "Cab 1 / Tray 2",
+            "Cab 2",
+        ]),
+        &ColumnMapping::default(),
+    );
+    let cat = cat();
+    let th = offgas::embedded::thresholds().unwrap();
+    let rules = offgas::embedded::rules(&cat).unwrap();
+    let count = |cabinet_level: bool| {
+        let a = Auditor {
+            cat: &cat,
+            th: &th,
+            rules: &rules,
+            settings: AuditSettings {
+                spill_area_m2: 0.25,
+                cabinet_level,
+            },
+        };
+        a.audit(&inv, &|_, _| {}).counts
+    };
+    let c = count(true);
+    assert_eq!((c.containers, c.spill_zones, c.cabinets), (5, 4, 2));
+    assert_eq!(c.pairs_that_can_meet, 6);
+    assert_eq!(count(false).pairs_that_can_meet, 1);
+}
+
+// ---------------------------------------------------------------------------------------
+// The demo inventory: data/demo/storeroom-c.csv, Store C and the wash bay of the fictional
+// Quarry Lane Annex, its location in four columns (Building, Room, Cabinet, Shelf) with
+// rows of four, three and two levels.
+
+const DEMO_COLUMNS: &str = "id=Bottle,substance=Chemical,amount=Qty,unit=Unit,size=Container,\
+                            volume=Liquid volume,location=Building+Room+Cabinet+Shelf";
+
+fn demo_path(name: &str) -> std::path::PathBuf {
+    std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("data/demo")
+        .join(name)
+}
+
+#[test]
+fn the_demo_csv_reads_with_its_mixed_depths() {
+    let text = std::fs::read_to_string(demo_path("storeroom-c.csv")).unwrap();
+    let by_spec = parse_mapping(DEMO_COLUMNS).unwrap();
+    let by_file =
+        mapping_from_yaml(&std::fs::read_to_string(demo_path("storeroom-c.mapping.yaml")).unwrap())
+            .unwrap();
+    assert_eq!(by_spec, by_file);
+    let inv = read(&text, &by_spec);
+    assert_eq!(inv.containers.len(), 9);
+    let depth = |id: &str| get(&inv, id).path.len();
+    assert_eq!(
+        ["QC-01", "QC-05", "QC-06", "QC-08"].map(depth),
+        [4, 3, 3, 2]
+    );
+    assert!(inv
+        .containers
+        .iter()
+        .all(|c| c.path[0] == "Quarry Lane Annex"));
+    assert!(matches!(get(&inv, "QC-08").contents, Contents::Liquid(_)));
+}
+
+#[test]
+fn the_demo_csv_audits_to_stop_on_the_cyanide_beside_the_acid() {
+    let bin = env!("CARGO_BIN_EXE_offgas");
+    let csv = demo_path("storeroom-c.csv");
+    let by_columns = std::process::Command::new(bin)
+        .arg("audit")
+        .arg(&csv)
+        .args(["--columns", DEMO_COLUMNS])
+        .output()
+        .unwrap();
+    assert_eq!(by_columns.status.code(), Some(4), "{by_columns:?}");
+    let by_mapping = std::process::Command::new(bin)
+        .arg("audit")
+        .arg(&csv)
+        .arg("--mapping")
+        .arg(demo_path("storeroom-c.mapping.yaml"))
+        .output()
+        .unwrap();
+    assert_eq!(by_mapping.status.code(), Some(4), "{by_mapping:?}");
+    assert_eq!(by_columns.stdout, by_mapping.stdout);
+    let out = String::from_utf8(by_columns.stdout).unwrap();
+    assert!(
+        out.contains("9 containers in 5 spill zones and 3 cabinets; 14 pairs can meet"),
+        "{out}"
+    );
+    assert!(out.contains("Verdict: STOP"), "{out}");
+    assert!(out.contains("1 pair to stop, 0 to review:"), "{out}");
+    assert!(
+        out.contains("[stop] QC-01") && out.contains("with QC-02"),
+        "{out}"
+    );
+    assert!(out.contains("same spill zone, HCN"), "{out}");
+
+    // The JSON report: the one finding, and every other pair harmless.
+    let json = std::process::Command::new(bin)
+        .arg("audit")
+        .arg(&csv)
+        .args(["--columns", DEMO_COLUMNS, "--format", "json"])
+        .output()
+        .unwrap();
+    assert_eq!(json.status.code(), Some(4));
+    let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    let findings = v["findings"].as_array().unwrap();
+    assert_eq!(findings.len(), 1, "{findings:#?}");
+    assert_eq!(findings[0]["level"], "tray");
+    assert_eq!(findings[0]["gas"], "HCN");
+    assert_eq!(v["counts"]["pairs_that_can_meet"], 14);
+
+    // Only the spill zones: four pairs, the same stop.
+    let trays = std::process::Command::new(bin)
+        .arg("audit")
+        .arg(&csv)
+        .args(["--columns", DEMO_COLUMNS, "--no-cabinet-level"])
+        .output()
+        .unwrap();
+    assert_eq!(trays.status.code(), Some(4));
+    assert!(String::from_utf8_lossy(&trays.stdout).contains("4 pairs can meet"));
 }

@@ -37,6 +37,8 @@ fn yaml_num(v: &Yaml) -> Option<f64> {
 }
 
 /// (family id, step index) -> (acid formula, base formula, pka, note) from data/species.yaml.
+const DATABASE_NOTES: &str = include_str!("reference/DATABASE-NOTES.md");
+
 fn species_steps() -> BTreeMap<(String, usize), (String, String, f64, String)> {
     let doc: Yaml = serde_yaml::from_str(SPECIES_YAML).expect("data/species.yaml must parse");
     let mut out = BTreeMap::new();
@@ -51,7 +53,14 @@ fn species_steps() -> BTreeMap<(String, usize), (String, String, f64, String)> {
         {
             let formula = |k: usize| species[k]["formula"].as_str().unwrap_or("").to_string();
             let pka = yaml_num(&st["pka"]).unwrap_or_else(|| panic!("{id} step {i}: pka"));
-            let note = st["note"].as_str().unwrap_or("").to_string();
+            // A step's comparison with the outside databases is noted in
+            // tests/reference/DATABASE-NOTES.md (outside what a user reads) or in the data.
+            let mut note = st["note"].as_str().unwrap_or("").to_string();
+            let key = format!("* `{id}` step {i} (");
+            for line in DATABASE_NOTES.lines().filter(|l| l.starts_with(&key)) {
+                note.push(' ');
+                note.push_str(line);
+            }
             out.insert((id.clone(), i), (formula(i), formula(i + 1), pka, note));
         }
     }

@@ -240,7 +240,9 @@ proptest! {
             let h = run(&container, stream, &CheckOptions::default()).end_state.heat;
             h.reaction_heat_kj + h.dilution_heat_kj
         };
-        prop_assert!(q(&plus) >= q(&less) - 1e-9);
+        // A litre holding more acid holds a little less water (its density rises), so the
+        // base is diluted a hair less: a few millionths of a kJ, well inside this margin.
+        prop_assert!(q(&plus) >= q(&less) - 1e-4);
     }
 
     #[test]

@@ -784,7 +784,7 @@ fn concentrated_hydrochloric_acid_matches_parker() {
 
 #[test]
 fn sulfuric_acid_neat_point_matches_nbs_tables() {
-    // NBS tables (Wagman et al. 1982) (memory): ΔfH H2SO4(l) -813.989, SO4-2(aq) -909.27
+    // NBS tables (Wagman et al. 1982) (memory): ΔfH H2SO4(l) -813.989, SO4^2-(aq) -909.27
     // -> -95.28 kJ/mol. The file writes -95.3; 0.1 allows for that rounding only.
     assert_close(
         "H2SO4(l) -> infinite dilution, kJ/mol",

@@ -69,28 +69,29 @@ fn assert_within(what: &str, got: f64, lo: f64, hi: f64) {
 }
 
 /// Charge encoded at the end of a formula written in the charge-after convention:
-/// `NH4+` -> 1, `CO3-2` -> -2, `Fe(CN)6-4` -> -4, `H2O` -> 0.
+/// `NH4+` -> 1, `CO3^2-` -> -2, `Fe(CN)6^4-` -> -4, `H2O` -> 0.
+/// The charge a formula writes: the sign last, its size after `^` when more than one
+/// (`Na+`, `CO3^2-`, `Fe^3+`); a formula that ends in a signed number (the charge-last
+/// notation of other programs' databases) is refused.
 fn charge_suffix(formula: &str) -> i64 {
-    let digits: String = formula
-        .chars()
-        .rev()
-        .take_while(|c| c.is_ascii_digit())
-        .collect();
-    let rest = &formula[..formula.len() - digits.len()];
-    let sign = match rest.chars().last() {
+    let sign = match formula.chars().last() {
         Some('+') => 1,
         Some('-') => -1,
-        _ => return 0,
+        Some(c) => {
+            assert!(
+                !(c.is_ascii_digit() && formula[..formula.len() - 1].ends_with(['+', '-'])),
+                "`{formula}` writes its charge as a signed number; write it like `CO3^2-`"
+            );
+            return 0;
+        }
+        None => return 0,
     };
-    if rest.len() <= 1 {
-        return 0;
+    let body = &formula[..formula.len() - 1];
+    match body.rfind('^') {
+        Some(i) => sign * body[i + 1..].parse::<i64>().expect("a number after ^"),
+        None if body.is_empty() => 0,
+        None => sign,
     }
-    let n: i64 = if digits.is_empty() {
-        1
-    } else {
-        digits.chars().rev().collect::<String>().parse().unwrap()
-    };
-    sign * n
 }
 
 // ---------------------------------------------------------------------------------------
@@ -349,22 +350,22 @@ fn every_fixed_volatile_gas_is_present() {
 fn fixed_species_lists_of_key_families() {
     let expect: &[(&str, &[&str])] = &[
         ("water", &["H2O", "OH-"]),
-        ("sulfate", &["HSO4-", "SO4-2"]),
-        ("sulfide", &["H2S", "HS-", "S-2"]),
-        ("carbonate", &["CO2", "HCO3-", "CO3-2"]),
-        ("sulfite", &["SO2", "HSO3-", "SO3-2"]),
-        ("phosphate", &["H3PO4", "H2PO4-", "HPO4-2", "PO4-3"]),
-        ("citrate", &["H3Cit", "H2Cit-", "HCit-2", "Cit-3"]),
+        ("sulfate", &["HSO4-", "SO4^2-"]),
+        ("sulfide", &["H2S", "HS-", "S^2-"]),
+        ("carbonate", &["CO2", "HCO3-", "CO3^2-"]),
+        ("sulfite", &["SO2", "HSO3-", "SO3^2-"]),
+        ("phosphate", &["H3PO4", "H2PO4-", "HPO4^2-", "PO4^3-"]),
+        ("citrate", &["H3Cit", "H2Cit-", "HCit^2-", "Cit^3-"]),
         ("glycine", &["H2Gly+", "HGly", "Gly-"]),
         (
             "edta",
-            &["H6Y+2", "H5Y+", "H4Y", "H3Y-", "H2Y-2", "HY-3", "Y-4"],
+            &["H6Y^2+", "H5Y+", "H4Y", "H3Y-", "H2Y^2-", "HY^3-", "Y^4-"],
         ),
-        ("ethylenediamine", &["H2en+2", "Hen+", "en"]),
+        ("ethylenediamine", &["H2en^2+", "Hen+", "en"]),
         ("tris", &["TrisH+", "Tris"]),
         ("hydroxylamine", &["NH3OH+", "NH2OH"]),
-        ("iron3", &["Fe+3", "FeOH+2"]),
-        ("mercury2", &["Hg+2", "HgOH+"]),
+        ("iron3", &["Fe^3+", "FeOH^2+"]),
+        ("mercury2", &["Hg^2+", "HgOH+"]),
     ];
     for (id, formulas) in expect {
         let got: Vec<String> = family(id)["species"]
@@ -391,13 +392,13 @@ fn strong_ions_have_formula_charge_and_mass() {
         "Na+",
         "K+",
         "Li+",
-        "Ca+2",
-        "Mg+2",
-        "Ba+2",
-        "Sr+2",
+        "Ca^2+",
+        "Mg^2+",
+        "Ba^2+",
+        "Sr^2+",
         "Ag+",
-        "Co+2",
-        "Mn+2",
+        "Co^2+",
+        "Mn^2+",
         "Cs+",
         "Br-",
         "I-",
@@ -407,15 +408,15 @@ fn strong_ions_have_formula_charge_and_mass() {
         "IO3-",
         "SCN-",
         "MnO4-",
-        "S2O8-2",
+        "S2O8^2-",
         "CH3SO3-",
         "BF4-",
         "PF6-",
-        "SiF6-2",
-        "Fe(CN)6-3",
-        "Fe(CN)6-4",
-        "MoO4-2",
-        "WO4-2",
+        "SiF6^2-",
+        "Fe(CN)6^3-",
+        "Fe(CN)6^4-",
+        "MoO4^2-",
+        "WO4^2-",
     ] {
         assert!(formulas.contains(f), "strong ion `{f}` missing");
     }
@@ -522,7 +523,7 @@ fn published_pkas() {
 
 #[test]
 fn sulfide_second_step_is_the_modern_high_value() {
-    // CRC Handbook (2005) lists 19; modern work 17-19. S-2 must be negligible below pH 14.
+    // CRC Handbook (2005) lists 19; modern work 17-19. S^2- must be negligible below pH 14.
     assert_within("HS- pKa2", pka("sulfide", 1), 17.0, 19.5);
 }
 

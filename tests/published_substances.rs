@@ -103,13 +103,13 @@ const STRONG_IONS: &[(&str, i32)] = &[
     ("Na+", 1),
     ("K+", 1),
     ("Li+", 1),
-    ("Ca+2", 2),
-    ("Mg+2", 2),
-    ("Ba+2", 2),
-    ("Sr+2", 2),
+    ("Ca^2+", 2),
+    ("Mg^2+", 2),
+    ("Ba^2+", 2),
+    ("Sr^2+", 2),
     ("Ag+", 1),
-    ("Co+2", 2),
-    ("Mn+2", 2),
+    ("Co^2+", 2),
+    ("Mn^2+", 2),
     ("Cs+", 1),
     ("Br-", -1),
     ("I-", -1),
@@ -119,15 +119,15 @@ const STRONG_IONS: &[(&str, i32)] = &[
     ("IO3-", -1),
     ("SCN-", -1),
     ("MnO4-", -1),
-    ("S2O8-2", -2),
+    ("S2O8^2-", -2),
     ("CH3SO3-", -1),
     ("BF4-", -1),
     ("PF6-", -1),
-    ("SiF6-2", -2),
-    ("Fe(CN)6-3", -3),
-    ("Fe(CN)6-4", -4),
-    ("MoO4-2", -2),
-    ("WO4-2", -2),
+    ("SiF6^2-", -2),
+    ("Fe(CN)6^3-", -3),
+    ("Fe(CN)6^4-", -4),
+    ("MoO4^2-", -2),
+    ("WO4^2-", -2),
 ];
 
 /// Standard atomic weights (IUPAC, abridged to what the substance formulas use), g/mol.
@@ -639,7 +639,7 @@ fn key_substances_are_present() {
     ] {
         assert!(index.contains_key(n), "missing {n}");
     }
-    // Metabisulfite gives two sulfite per mole (S2O5-2 + H2O -> 2 HSO3-).
+    // Metabisulfite gives two sulfite per mole (S2O5^2- + H2O -> 2 HSO3-).
     let mbs = index["sodium metabisulfite"];
     let n = mbs["gives"]["families"]["sulfite"].as_f64().unwrap();
     assert_eq!(n, 2.0);

@@ -6,7 +6,7 @@ use common::*;
 use offgas::chem::{solve, Closure, Equilibrium, Mixture, SolverSettings};
 use proptest::prelude::*;
 
-/// Families and ions the generator draws from: every volatile family the brief names,
+/// Families and ions the generator draws from: every volatile family offgas reports a gas for,
 /// polyprotic ones, amines, metal ions, and the strong ions that set the balance.
 const FAMILIES: [&str; 16] = [
     "cyanide",
@@ -26,7 +26,7 @@ const FAMILIES: [&str; 16] = [
     "iron3",
     "borate",
 ];
-const IONS: [&str; 4] = ["Na+", "K+", "Ca+2", "Br-"];
+const IONS: [&str; 4] = ["Na+", "K+", "Ca^2+", "Br-"];
 
 fn settings() -> SolverSettings {
     SolverSettings::default()

@@ -5,7 +5,7 @@
 
 mod common;
 use common::{catalog, R};
-use offgas::assess::{state_findings, PourStates};
+use offgas::assess::{state_findings, Action, PourStates};
 use offgas::catalog::GasKind;
 use offgas::check::CheckOptions;
 use offgas::report::{CheckReport, GasReport, Scope, Severity, StateReport};
@@ -234,6 +234,7 @@ fn a_flammable_gas_is_judged_against_its_lower_flammable_limit() {
                 alone: None,
                 sealed: false,
                 rated_pressure_kpa: None,
+                action: Action::Pour,
             },
         );
         let got = f
@@ -255,6 +256,7 @@ fn a_flammable_gas_is_judged_against_its_lower_flammable_limit() {
             alone: None,
             sealed: false,
             rated_pressure_kpa: None,
+            action: Action::Pour,
         },
     );
     assert!(f.iter().all(|f| !f.code.starts_with("gas-")), "{f:?}");
@@ -368,6 +370,7 @@ fn past_the_range_a_gas_within_the_uncertainty_of_its_level_is_reviewed() {
             alone: None,
             sealed: false,
             rated_pressure_kpa: None,
+            action: Action::Pour,
         },
     );
     let note = f

@@ -7,6 +7,7 @@
 pub mod combined;
 pub mod density;
 pub mod dilution;
+pub mod ghs;
 pub mod heat;
 pub mod limits;
 pub mod physical;
@@ -161,6 +162,14 @@ pub struct Catalog {
     gas_index: HashMap<String, usize>,
 }
 
+/// Adds `n` of `id` to a list of (id, count).
+fn add_count<T: PartialEq + Copy>(list: &mut Vec<(T, f64)>, id: T, n: f64) {
+    match list.iter_mut().find(|(x, _)| *x == id) {
+        Some((_, have)) => *have += n,
+        None => list.push((id, n)),
+    }
+}
+
 /// g/mol of water, for crystal water and mole fractions.
 pub const WATER_MOLAR_MASS: f64 = 18.015;
 
@@ -223,6 +232,8 @@ impl Catalog {
         }
         let mut ion_index = HashMap::new();
         for (i, ion) in species.strong_ions.iter().enumerate() {
+            check_formula_charge(&ion.formula, ion.charge)
+                .map_err(|m| bad(species_file, format!("strong ion: {m}")))?;
             if ion.charge == 0 {
                 return Err(bad(
                     species_file,
@@ -350,9 +361,40 @@ impl Catalog {
                     ),
                 ));
             }
+            let mut families = solute.families.clone();
+            let mut ions = solute.ions.clone();
+            for co in &e.also_contains {
+                let cid = *substance_index
+                    .get(&normalize_name(&co.substance))
+                    .ok_or_else(|| {
+                        bad(
+                            substances_file,
+                            format!(
+                                "substance `{}`: `also_contains` names unknown `{}`",
+                                e.name, co.substance
+                            ),
+                        )
+                    })?;
+                if !(co.per_mole > 0.0 && co.per_mole.is_finite()) || co.source.trim().is_empty() {
+                    return Err(bad(
+                        substances_file,
+                        format!(
+                            "substance `{}`: `also_contains` needs a positive per_mole and a source",
+                            e.name
+                        ),
+                    ));
+                }
+                let co_s = &resolved[cid.0];
+                for &(f, n) in &co_s.families {
+                    add_count(&mut families, f, n * co.per_mole);
+                }
+                for &(ion, n) in &co_s.ions {
+                    add_count(&mut ions, ion, n * co.per_mole);
+                }
+            }
             let s = &mut resolved[i];
-            s.families = solute.families.clone();
-            s.ions = solute.ions.clone();
+            s.families = families;
+            s.ions = ions;
             s.molar_mass = Some(molar_mass);
             if s.formula.is_none() {
                 s.formula = solute.formula.clone();
@@ -732,6 +774,21 @@ impl Catalog {
     }
 }
 
+/// A formula's written charge must be its charge, in the one ASCII form (`CO3^2-`).
+fn check_formula_charge(formula: &str, charge: i32) -> Result<(), String> {
+    let (body, written) = crate::notation::split_charge(formula);
+    if written != charge || crate::notation::with_charge(body, charge) != formula {
+        return Err(format!(
+            "`{formula}` should be written `{}` (charge {charge}: the sign last, its size after `^` when more than one)",
+            crate::notation::with_charge(
+                body.rfind(['+', '-']).map_or(body, |i| &body[..i]),
+                charge
+            )
+        ));
+    }
+    Ok(())
+}
+
 fn validate_family(f: &Family) -> Result<(), String> {
     if f.species.len() < 2 {
         return Err("needs at least two species".into());
@@ -746,6 +803,9 @@ fn validate_family(f: &Family) -> Result<(), String> {
     }
     if f.species.iter().any(|s| s.charge.abs() > 7) {
         return Err("charges beyond ±7 are not supported".into());
+    }
+    for s in &f.species {
+        check_formula_charge(&s.formula, s.charge)?;
     }
     for w in f.species.windows(2) {
         if w[1].charge != w[0].charge - 1 {

@@ -66,10 +66,24 @@ pub struct SubstanceEntry {
     pub mass_percent: Option<Sourced>,
     #[serde(default)]
     pub classes: Vec<String>,
+    /// Other substances a commercial solution always carries with its solute (the sodium
+    /// chloride made with bleach), per mole of solute.
+    #[serde(default)]
+    pub also_contains: Vec<CoSolute>,
     #[serde(default)]
     pub source: Option<String>,
     #[serde(default)]
     pub note: Option<String>,
+}
+
+/// A substance that comes with a commercial solution's solute.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct CoSolute {
+    pub substance: String,
+    /// Mol of it per mol of the solution's solute.
+    pub per_mole: f64,
+    pub source: String,
 }
 
 #[derive(Debug, Clone, Deserialize)]

@@ -2,7 +2,7 @@
 //! checked in full against what is in the vessel at that moment.
 
 use super::{Leave, Procedure, Step, StepKind};
-use crate::assess::{state_findings, state_report, PourStates};
+use crate::assess::{state_findings, state_report, Action, PourStates};
 use crate::batch::{Batch, InputError};
 use crate::catalog::Catalog;
 use crate::check::{check, CheckError, CheckOptions};
@@ -173,14 +173,22 @@ fn reasons(findings: &[Finding]) -> Vec<String> {
 }
 
 impl Engine<'_> {
-    fn check(&self, vessel: &Batch, stream: &Batch) -> Result<CheckReport, CheckError> {
+    fn check(
+        &self,
+        vessel: &Batch,
+        stream: &Batch,
+        action: Action,
+    ) -> Result<CheckReport, CheckError> {
         check(
             self.cat,
             self.th,
             self.rules,
             vessel,
             stream,
-            &CheckOptions::default(),
+            &CheckOptions {
+                action,
+                ..CheckOptions::default()
+            },
         )
     }
 
@@ -190,9 +198,10 @@ impl Engine<'_> {
         step: &Step,
         vessel: &Batch,
         stream: &Batch,
+        action: Action,
     ) -> Result<(StepReport, Batch), ProcedureError> {
         let r = self
-            .check(vessel, stream)
+            .check(vessel, stream, action)
             .map_err(|e| check_error(p, step, e))?;
         let after = merged(
             vessel,
@@ -251,6 +260,7 @@ impl Engine<'_> {
                 alone: None,
                 sealed,
                 rated_pressure_kpa: after.rated_pressure_kpa,
+                action: Action::Hold,
             },
         );
         let severity = Severity::verdict(&findings);
@@ -282,7 +292,7 @@ impl Engine<'_> {
         for step in &p.steps {
             match &step.kind {
                 StepKind::Add(stream) => {
-                    let (report, after) = self.add_step(p, step, &vessel, stream)?;
+                    let (report, after) = self.add_step(p, step, &vessel, stream, Action::Pour)?;
                     steps.push(report);
                     vessel = after;
                 }
@@ -304,7 +314,11 @@ impl Engine<'_> {
                         number: step.number,
                         description: step.description.clone(),
                         kind: "drain",
-                        action: format!("drain {:.3} L, leaving {:.3} L", before - l, l),
+                        action: format!(
+                            "drain {}, leaving {}",
+                            crate::text::litres(before - l),
+                            crate::text::litres(l)
+                        ),
                         severity: Severity::Clear,
                         end_state: None,
                         worst_state: None,
@@ -316,22 +330,28 @@ impl Engine<'_> {
                 }
                 StepKind::Rinse { with, times, leave } => {
                     let mut worst: Option<StepReport> = None;
+                    let mut last_end = None;
                     for _ in 0..*times {
-                        let (report, after) = self.add_step(p, step, &vessel, with)?;
+                        let (report, after) =
+                            self.add_step(p, step, &vessel, with, Action::Rinse)?;
                         let l = leave_litres(&after, *leave)
                             .map_err(|m| step_error(p, step, m, None))?;
                         vessel = drained(&after, l.min(after.volume_l));
+                        last_end = report.end_state.clone();
                         if worst.as_ref().is_none_or(|w| report.severity > w.severity) {
                             worst = Some(report);
                         }
                     }
                     let mut report = worst.expect("at least one rinse");
+                    // The worst rinse decides the verdict; the vessel ends as the last one
+                    // leaves it.
+                    report.end_state = last_end;
                     report.kind = "rinse";
                     report.action = format!(
-                        "rinse {} × with {}, draining to {:.3} L each time",
+                        "rinse {} × with {}, draining to {} each time",
                         times,
                         describe_batch(self.cat, with),
-                        vessel.volume_l
+                        crate::text::litres(vessel.volume_l)
                     );
                     report.volume_after_l = vessel.volume_l;
                     report.contents_after = contents(self.cat, &vessel);
@@ -403,7 +423,7 @@ pub fn describe_batch(cat: &Catalog, b: &Batch) -> String {
         .map(|c| cat.substance(c.substance).name.clone())
         .collect();
     if parts.is_empty() {
-        format!("{:.3} L", b.volume_l)
+        crate::text::litres(b.volume_l)
     } else {
         format!("{} L of {}", trim(b.volume_l), parts.join(", "))
     }

@@ -95,14 +95,6 @@ impl From<RuleSeverity> for Severity {
     }
 }
 
-#[derive(Debug, Clone, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RuleFile {
-    #[allow(dead_code)]
-    description: String,
-    rules: Vec<Rule>,
-}
-
 /// Where a rule came from.
 #[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
 #[serde(tag = "kind", rename_all = "lowercase")]
@@ -124,6 +116,8 @@ impl fmt::Display for Origin {
 pub struct LoadedRule {
     pub rule: Rule,
     pub origin: Origin,
+    /// The line of the rule's `id` in its file, where it is known.
+    pub line: Option<usize>,
 }
 
 /// The rules in force: built-ins first, then site rules.
@@ -155,6 +149,189 @@ fn line_of_id(text: &str, id: &str) -> Option<usize> {
         .map(|i| i + 1)
 }
 
+/// The keys a rule may have, in the order the format describes them.
+const RULE_KEYS: &[&str] = &[
+    "id", "meet", "meeting", "when", "severity", "forms", "computed", "message", "caution",
+    "basis", "raises", "presence",
+];
+const REQUIRED_KEYS: &[&str] = &["id", "meet", "severity", "message", "caution", "basis"];
+const CONDITION_KEYS: &[&str] = &[
+    "ph_below",
+    "ph_above",
+    "temperature_above_c",
+    "min_mol_per_l",
+];
+
+/// The lines (1-based, first and last) of each item of the top-level `rules:` list, when
+/// it is written in block style (`- id: ...` items); `None` otherwise. Used to name the
+/// line of each problem; the items themselves come from the YAML parser.
+fn rule_spans(text: &str) -> Option<Vec<(usize, usize)>> {
+    let lines: Vec<&str> = text.lines().collect();
+    let start = lines.iter().position(|l| l.starts_with("rules:"))?;
+    let rest = lines[start]["rules:".len()..].trim_start();
+    if !(rest.is_empty() || rest.starts_with('#')) {
+        return None;
+    }
+    let mut spans: Vec<(usize, usize)> = Vec::new();
+    let mut indent: Option<usize> = None;
+    for (i, l) in lines.iter().enumerate().skip(start + 1) {
+        let t = l.trim_start();
+        if t.is_empty() || t.starts_with('#') {
+            continue;
+        }
+        let here = l.len() - t.len();
+        let item = t == "-" || t.starts_with("- ");
+        match indent {
+            None if item => {
+                indent = Some(here);
+                spans.push((i + 1, i + 1));
+            }
+            None => return None,
+            Some(d) if here == d && item => spans.push((i + 1, i + 1)),
+            Some(d) if here <= d => break,
+            Some(_) => {
+                if let Some(last) = spans.last_mut() {
+                    last.1 = i + 1;
+                }
+            }
+        }
+    }
+    Some(spans)
+}
+
+/// The line within `span` where `key` is written as a key of the item itself.
+fn key_line(text: &str, span: Option<(usize, usize)>, key: &str) -> Option<usize> {
+    let (first, last) = span?;
+    let needle = format!("{key}:");
+    text.lines()
+        .enumerate()
+        .skip(first - 1)
+        .take(last + 1 - first)
+        .find(|(_, l)| {
+            let t = l.trim_start();
+            t.strip_prefix("- ")
+                .unwrap_or(t)
+                .trim_start()
+                .starts_with(&needle)
+        })
+        .map(|(i, _)| i + 1)
+}
+
+/// The line within `span` where `key` appears anywhere (nested or flow-style keys).
+fn nested_key_line(text: &str, span: Option<(usize, usize)>, key: &str) -> Option<usize> {
+    let (first, last) = span?;
+    let needle = format!("{key}:");
+    text.lines()
+        .enumerate()
+        .skip(first - 1)
+        .take(last + 1 - first)
+        .find(|(_, l)| l.contains(&needle))
+        .map(|(i, _)| i + 1)
+}
+
+/// "unknown field `colour`, expected one of ...", with the closest known key.
+fn unknown_key(key: &str, known: &[&str]) -> String {
+    let closest = known
+        .iter()
+        .map(|k| (strsim::jaro_winkler(key, k), *k))
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+        .filter(|(score, _)| *score > 0.8)
+        .map(|(_, k)| format!(" (did you mean `{k}`?)"))
+        .unwrap_or_default();
+    format!(
+        "unknown field `{key}`{closest}, expected one of {}",
+        known
+            .iter()
+            .map(|k| format!("`{k}`"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    )
+}
+
+fn type_problem<T: serde::de::DeserializeOwned>(v: &serde_yaml::Value) -> Option<String> {
+    serde_yaml::from_value::<T>(v.clone())
+        .err()
+        .map(|e| e.to_string())
+}
+
+/// Every problem with the keys and values of one rule item, each with its line; the rule
+/// when there are none.
+fn read_rule(
+    text: &str,
+    item: &serde_yaml::Value,
+    number: usize,
+    span: Option<(usize, usize)>,
+) -> Result<Rule, Vec<(Option<usize>, String)>> {
+    use serde_yaml::Value;
+    let first_line = span.map(|s| s.0);
+    let Value::Mapping(map) = item else {
+        return Err(vec![(
+            first_line,
+            format!("rule {number} is not a set of keys (`id: ...`, `meet: ...`, ...)"),
+        )]);
+    };
+    let id = map.get("id").and_then(Value::as_str).map(str::to_string);
+    let name = id
+        .as_ref()
+        .map(|i| format!("rule `{i}`"))
+        .unwrap_or_else(|| format!("rule {number}"));
+    let mut problems = Vec::new();
+    for (k, v) in map {
+        let Some(key) = k.as_str() else {
+            problems.push((first_line, format!("{name}: a key must be a word")));
+            continue;
+        };
+        let line = key_line(text, span, key).or(first_line);
+        let problem = match key {
+            "id" | "message" | "caution" | "basis" | "raises" => type_problem::<String>(v),
+            "meet" => type_problem::<Vec<Vec<String>>>(v),
+            "meeting" => type_problem::<Meeting>(v),
+            "severity" => type_problem::<RuleSeverity>(v),
+            "forms" => type_problem::<Vec<String>>(v),
+            "computed" => type_problem::<Computed>(v),
+            "presence" => type_problem::<bool>(v),
+            "when" => match v {
+                Value::Mapping(when) => {
+                    for (ck, cv) in when {
+                        let ckey = ck.as_str().unwrap_or("?");
+                        let cline = nested_key_line(text, span, ckey).or(line);
+                        if !CONDITION_KEYS.contains(&ckey) {
+                            problems.push((
+                                cline,
+                                format!("{name}: `when`: {}", unknown_key(ckey, CONDITION_KEYS)),
+                            ));
+                        } else if let Some(p) = type_problem::<f64>(cv) {
+                            problems.push((cline, format!("{name}: `when.{ckey}`: {p}")));
+                        }
+                    }
+                    None
+                }
+                Value::Null => None,
+                _ => Some("`when` holds conditions, e.g. `{ ph_below: 7 }`".into()),
+            },
+            other => Some(unknown_key(other, RULE_KEYS)),
+        };
+        if let Some(p) = problem {
+            let p = if RULE_KEYS.contains(&key) {
+                format!("`{key}`: {p}")
+            } else {
+                p
+            };
+            problems.push((line, format!("{name}: {p}")));
+        }
+    }
+    for key in REQUIRED_KEYS {
+        if !map.contains_key(*key) {
+            problems.push((first_line, format!("{name}: missing field `{key}`")));
+        }
+    }
+    if !problems.is_empty() {
+        return Err(problems);
+    }
+    serde_yaml::from_value::<Rule>(item.clone())
+        .map_err(|e| vec![(first_line, format!("{name}: {e}"))])
+}
+
 impl RuleSet {
     /// Parses one rule file into `origin`-tagged rules; every problem is collected.
     pub fn parse_file(
@@ -163,43 +340,122 @@ impl RuleSet {
         text: &str,
         origin: Origin,
     ) -> Result<Vec<LoadedRule>, Vec<RuleError>> {
+        let (rules, errors) = Self::parse_file_all(cat, file, text, origin);
+        if errors.is_empty() {
+            Ok(rules)
+        } else {
+            Err(errors)
+        }
+    }
+
+    /// Every problem of one rule file, each with its line, and the rules that are sound.
+    /// Only a file that is not readable YAML at all stops at its first problem.
+    pub fn parse_file_all(
+        cat: &Catalog,
+        file: &str,
+        text: &str,
+        origin: Origin,
+    ) -> (Vec<LoadedRule>, Vec<RuleError>) {
+        use serde_yaml::Value;
+        let error = |line: Option<usize>, message: String| RuleError {
+            file: file.to_string(),
+            line,
+            message,
+        };
         if let Err(e) =
             crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)
         {
-            return Err(vec![RuleError {
-                file: file.to_string(),
-                line: e.line,
-                message: e.message,
-            }]);
+            return (Vec::new(), vec![error(e.line, e.message)]);
         }
-        let parsed: RuleFile = serde_yaml::from_str(text).map_err(|e| {
-            vec![RuleError {
-                file: file.to_string(),
-                line: e.location().map(|l| l.line()),
-                message: format!("not a readable rule file: {e}"),
-            }]
-        })?;
+        let doc: Value = match serde_yaml::from_str(text) {
+            Ok(v) => v,
+            Err(e) => {
+                return (
+                    Vec::new(),
+                    vec![error(
+                        e.location().map(|l| l.line()),
+                        format!("not a readable rule file: {e}"),
+                    )],
+                )
+            }
+        };
+        let top_line = |key: &str| {
+            text.lines()
+                .position(|l| l.starts_with(&format!("{key}:")))
+                .map(|i| i + 1)
+        };
+        let Value::Mapping(top) = &doc else {
+            return (
+                Vec::new(),
+                vec![error(
+                    Some(1),
+                    "not a readable rule file: it must hold `description:` and `rules:`".into(),
+                )],
+            );
+        };
         let mut errors = Vec::new();
-        for r in &parsed.rules {
-            for problem in validate(cat, r) {
-                errors.push(RuleError {
-                    file: file.to_string(),
-                    line: line_of_id(text, &r.id),
-                    message: format!("rule `{}`: {problem}", r.id),
-                });
+        for k in top.keys() {
+            let key = k.as_str().unwrap_or("?");
+            if key != "description" && key != "rules" {
+                errors.push(error(
+                    top_line(key),
+                    unknown_key(key, &["description", "rules"]),
+                ));
             }
         }
-        if !errors.is_empty() {
-            return Err(errors);
+        match top.get("description") {
+            Some(Value::String(_)) => {}
+            Some(_) => errors.push(error(
+                top_line("description"),
+                "`description` must be text saying what these rules are about".into(),
+            )),
+            None => errors.push(error(
+                Some(1),
+                "missing field `description`: say what these rules are about".into(),
+            )),
         }
-        Ok(parsed
-            .rules
-            .into_iter()
-            .map(|rule| LoadedRule {
-                rule,
-                origin: origin.clone(),
-            })
-            .collect())
+        let items: &[Value] = match top.get("rules") {
+            Some(Value::Sequence(items)) => items,
+            Some(_) => {
+                errors.push(error(
+                    top_line("rules"),
+                    "`rules` must be a list of rules (`- id: ...`)".into(),
+                ));
+                &[]
+            }
+            None => {
+                errors.push(error(Some(1), "missing field `rules`".into()));
+                &[]
+            }
+        };
+        let spans = rule_spans(text).filter(|s| s.len() == items.len());
+        let mut rules = Vec::new();
+        for (i, item) in items.iter().enumerate() {
+            let span = spans.as_ref().map(|s| s[i]);
+            match read_rule(text, item, i + 1, span) {
+                Err(problems) => {
+                    errors.extend(problems.into_iter().map(|(line, m)| error(line, m)));
+                }
+                Ok(rule) => {
+                    let line = key_line(text, span, "id").or_else(|| line_of_id(text, &rule.id));
+                    let problems = validate(cat, &rule);
+                    if problems.is_empty() {
+                        rules.push(LoadedRule {
+                            rule,
+                            origin: origin.clone(),
+                            line,
+                        });
+                    } else {
+                        errors.extend(
+                            problems
+                                .into_iter()
+                                .map(|p| error(line, format!("rule `{}`: {p}", rule.id))),
+                        );
+                    }
+                }
+            }
+        }
+        (rules, errors)
     }
 
     /// Adds rules, checking ids are unique and that raises name an existing rule and
@@ -212,7 +468,7 @@ impl RuleSet {
             };
             let err = |m: String| RuleError {
                 file: file.clone(),
-                line: None,
+                line: r.line,
                 message: format!("rule `{}`: {m}", r.rule.id),
             };
             if self.rules.iter().any(|x| x.rule.id == r.rule.id)
@@ -226,8 +482,8 @@ impl RuleSet {
                 match self.rules.iter().find(|x| &x.rule.id == target) {
                     None => errors.push(err(format!("raises `{target}`, which is not a rule in force"))),
                     Some(t) if t.rule.severity > r.rule.severity => errors.push(err(format!(
-                        "would lower `{target}` from {:?} to {:?}; a site rule may only raise a severity",
-                        t.rule.severity, r.rule.severity
+                        "would lower `{target}` from {} to {}; a site rule may only raise a severity",
+                        Severity::from(t.rule.severity), Severity::from(r.rule.severity)
                     ))),
                     _ => {}
                 }

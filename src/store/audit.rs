@@ -460,33 +460,103 @@ fn evaluate(
     }
 }
 
-/// Every pair of containers that shares a cabinet, with the level at which they meet.
-fn meeting_pairs(inv: &Inventory, cabinet_level: bool) -> Vec<(usize, usize, Level)> {
+/// A pair of containers that can meet: (i, j, level, index of the place in
+/// [`Meetings::places`] whose matrix shows it), with i < j.
+type Meeting = (usize, usize, Level, usize);
+
+/// Every pair of containers that can meet, the cabinets (sorted) and the other places the
+/// pairs are shown under.
+struct Meetings {
+    pairs: Vec<Meeting>,
+    /// Cabinet keys first (sorted; `cabinets` of them), then the places where a container
+    /// stands loose around another's tray, in the order met.
+    places: Vec<String>,
+    cabinets: usize,
+}
+
+/// Every pair of containers that can meet, with the level at which they meet.
+///
+/// Containers meet in their spill zone when the zones are the same; at the second level
+/// (`Level::Cabinet`) when their cabinets are the same, or when one's spill zone encloses
+/// the other's (locations of different depths: a bottle standing loose in `Cabinet 4`
+/// and one on `Cabinet 4 / Tray 1`). The second kind is shown under the enclosing place.
+fn meeting_pairs(inv: &Inventory, cabinet_level: bool) -> Meetings {
+    let zone: Vec<&[String]> = inv
+        .containers
+        .iter()
+        .map(|c| inv.spill_zone_path(&c.path))
+        .collect();
+    let cab: Vec<&[String]> = inv
+        .containers
+        .iter()
+        .map(|c| inv.cabinet_path(&c.path))
+        .collect();
     let mut cabinets: HashMap<String, Vec<usize>> = HashMap::new();
-    for (i, c) in inv.containers.iter().enumerate() {
-        cabinets
-            .entry(c.zone(inv.cabinet_depth))
-            .or_default()
-            .push(i);
+    for (i, c) in cab.iter().enumerate() {
+        cabinets.entry(c.join("/")).or_default().push(i);
     }
-    let mut keys: Vec<&String> = cabinets.keys().collect();
-    keys.sort();
+    let mut places: Vec<String> = cabinets.keys().cloned().collect();
+    places.sort();
+    let n_cabinets = places.len();
     let mut out = Vec::new();
-    for k in keys {
-        let members = &cabinets[k];
+    for (k, name) in places.iter().enumerate() {
+        let members = &cabinets[name];
         for (x, &i) in members.iter().enumerate() {
             for &j in &members[x + 1..] {
-                let same_zone = inv.containers[i].zone(inv.meet_depth)
-                    == inv.containers[j].zone(inv.meet_depth);
-                if same_zone {
-                    out.push((i, j, Level::Tray));
+                if zone[i] == zone[j] {
+                    out.push((i, j, Level::Tray, k));
                 } else if cabinet_level {
-                    out.push((i, j, Level::Cabinet));
+                    out.push((i, j, Level::Cabinet, k));
                 }
             }
         }
     }
-    out
+    if !cabinet_level {
+        return Meetings {
+            pairs: out,
+            places,
+            cabinets: n_cabinets,
+        };
+    }
+    // A spill zone that encloses another's: only where locations differ in depth.
+    let depths: std::collections::HashSet<usize> = zone.iter().map(|z| z.len()).collect();
+    if depths.len() > 1 {
+        let mut by_zone: HashMap<&[String], Vec<usize>> = HashMap::new();
+        for (i, z) in zone.iter().enumerate() {
+            by_zone.entry(*z).or_default().push(i);
+        }
+        let mut place_of: HashMap<String, usize> = HashMap::new();
+        let mut nested = Vec::new();
+        for (j, z) in zone.iter().enumerate() {
+            for l in 1..z.len() {
+                let Some(loose) = by_zone.get(&z[..l]) else {
+                    continue;
+                };
+                for &i in loose {
+                    if cab[i] == cab[j] {
+                        continue; // already paired as the same cabinet
+                    }
+                    let name = z[..l].join("/");
+                    let next = places.len() + place_of.len();
+                    let k = match cabinets.get(&name) {
+                        Some(_) => places.binary_search(&name).unwrap_or(next),
+                        None => *place_of.entry(name).or_insert(next),
+                    };
+                    nested.push((i.min(j), i.max(j), Level::Cabinet, k));
+                }
+            }
+        }
+        let mut extra: Vec<(String, usize)> = place_of.into_iter().collect();
+        extra.sort_by_key(|(_, k)| *k);
+        places.extend(extra.into_iter().map(|(name, _)| name));
+        nested.sort();
+        out.extend(nested);
+    }
+    Meetings {
+        pairs: out,
+        places,
+        cabinets: n_cabinets,
+    }
 }
 
 /// The engine's inputs for an audit.
@@ -585,6 +655,7 @@ impl<'a> PairJudge<'a> {
             air_changes_per_hour: r.map(|r| r.air_changes_per_hour),
             spill_area_m2: Some(self.auditor.settings.spill_area_m2),
             detail: crate::path::Detail::Coarse,
+            action: crate::assess::Action::Leak,
         }
     }
 
@@ -639,11 +710,15 @@ impl Auditor<'_> {
     /// Audits every pair that can meet; findings ranked by severity, level and ratio.
     pub fn audit(&self, inv: &Inventory, progress: &(dyn Fn(usize, usize) + Sync)) -> AuditReport {
         let judge = PairJudge::new(self, inv);
-        let pairs = meeting_pairs(inv, self.settings.cabinet_level);
+        let Meetings {
+            pairs,
+            places,
+            cabinets: n_cabinets,
+        } = meeting_pairs(inv, self.settings.cabinet_level);
         let to_check: Vec<(usize, usize)> = pairs
             .iter()
-            .filter(|(i, j, _)| judge.screen(*i, *j))
-            .map(|(i, j, _)| (*i, *j))
+            .filter(|(i, j, _, _)| judge.screen(*i, *j))
+            .map(|(i, j, _, _)| (*i, *j))
             .collect();
         judge.judge_all(&to_check, progress);
         let cat = self.cat;
@@ -664,7 +739,7 @@ impl Auditor<'_> {
         let mut findings = Vec::new();
         let mut by_cabinet: HashMap<String, Vec<CabinetHit>> = HashMap::new();
         let checked: std::collections::HashSet<(usize, usize)> = to_check.iter().copied().collect();
-        for &(i, j, level) in &pairs {
+        for &(i, j, level, cabinet) in &pairs {
             if !checked.contains(&(i, j)) {
                 continue;
             }
@@ -677,7 +752,7 @@ impl Auditor<'_> {
                 .or_insert_with(|| (Arc::from(o.headline.as_str()), Arc::from(o.codes.clone())))
                 .clone();
             by_cabinet
-                .entry(inv.containers[i].zone(inv.cabinet_depth))
+                .entry(places[cabinet].clone())
                 .or_default()
                 .push((i, j, level, o.severity, o.worst_ratio));
             findings.push(AuditFinding {
@@ -727,15 +802,10 @@ impl Auditor<'_> {
             })
             .collect();
         cabinets.sort_by(|a, b| a.cabinet.cmp(&b.cabinet));
-        let zones: std::collections::HashSet<String> = inv
+        let zones: std::collections::HashSet<&[String]> = inv
             .containers
             .iter()
-            .map(|c| c.zone(inv.meet_depth))
-            .collect();
-        let cabs: std::collections::HashSet<String> = inv
-            .containers
-            .iter()
-            .map(|c| c.zone(inv.cabinet_depth))
+            .map(|c| inv.spill_zone_path(&c.path))
             .collect();
         AuditReport {
             tool: "offgas",
@@ -750,7 +820,7 @@ impl Auditor<'_> {
             counts: AuditCounts {
                 containers: inv.containers.len(),
                 spill_zones: zones.len(),
-                cabinets: cabs.len(),
+                cabinets: n_cabinets,
                 pairs_that_can_meet: pairs.len(),
                 pairs_cleared_by_screening: pairs.len() - to_check.len(),
                 pairs_checked: to_check.len(),
@@ -760,26 +830,127 @@ impl Auditor<'_> {
             cabinets,
             suggestion: None,
             skipped_rows: Vec::new(),
-            assumptions: audit_assumptions(self),
+            assumptions: audit_assumptions(self, inv),
             cautions: self.th.cautions.clone(),
         }
     }
 }
 
-fn audit_assumptions(a: &Auditor) -> Vec<String> {
-    vec![
+fn audit_assumptions(a: &Auditor, inv: &Inventory) -> Vec<String> {
+    let from_the_end = inv.meet_depth.saturating_sub(inv.cabinet_depth) <= 1
+        && inv
+            .containers
+            .iter()
+            .all(|c| c.path.len() <= inv.meet_depth);
+    let levels = if from_the_end {
+        "A location's last level is its spill zone (tray or secondary containment) and the level above it its cabinet; a one-level location is both.".to_string()
+    } else {
         format!(
-            "Containers in the same spill zone (tray or secondary containment) can meet; {}.",
-            if a.settings.cabinet_level {
-                "so can containers in the same cabinet on different trays (the second level)"
-            } else {
-                "containers in the same cabinet on different trays are not paired (--no-cabinet-level)"
-            }
-        ),
-        "A leak-together case pours each container's whole contents into the other's, in every ratio between, in an open puddle; both orders are scanned as in `offgas check`, at 14 points each with 8 refinement steps around the worst.".into(),
+            "A location's first {} levels are its spill zone (tray or secondary containment) and its first {} its cabinet (the inventory's `levels`).",
+            inv.meet_depth, inv.cabinet_depth
+        )
+    };
+    let second = if a.settings.cabinet_level {
+        "so can containers in the same cabinet in different spill zones, and a container standing loose in a place that holds another's spill zone (the second level)"
+    } else {
+        "containers in the same cabinet in different spill zones are not paired (--no-cabinet-level)"
+    };
+    let mut out = vec![format!(
+        "{levels} Containers in the same spill zone can meet; {second}."
+    )];
+    out.extend([
+        "A leak-together case pours each container's whole contents into the other's, in every ratio between, in an open puddle; both orders are scanned as in `offgas check`, at 14 points each with 8 refinement steps around the worst.".to_string(),
         format!("The puddle spreads over {} m2 for the release into the room; the room is the inventory's, or the thresholds file's default.", a.settings.spill_area_m2),
-        "A dry solid dissolves whole into a liquid partner; two dry containers are judged by the rules alone, with any pH condition taken as possible.".into(),
+    ]);
+    if !inv.rooms.is_empty() {
+        let roomless = inv
+            .containers
+            .iter()
+            .filter(|c| inv.room_of(c).is_none())
+            .count();
+        if roomless > 0 {
+            out.push(format!(
+                "{} in no declared room (a room is matched by the leading levels of a location, down to its cabinet level; a one- or two-level location names none, and takes a room declared as `/`): the thresholds file's default room is used.",
+                if roomless == 1 {
+                    "1 container stands".to_string()
+                } else {
+                    format!("{roomless} containers stand")
+                }
+            ));
+        }
+    }
+    out.extend([
+        "A dry solid dissolves whole into a liquid partner; two dry containers are judged by the rules alone, with any pH condition taken as possible.".to_string(),
         "Screening: a pair is checked in full only if a gas could form (a family whose volatile form appears on the partner's side of the pH), the pH gap of concentrated contents could release heat, a rule applies, or a container could not be screened; the rest are cleared without solving.".into(),
         "Containers with the same substances in amounts within a factor of about 2.2 share one result, computed for the fullest of them.".into(),
-    ]
+    ]);
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn inventory(locations: &[(&str, &str)]) -> Inventory {
+        let cat = crate::embedded::catalog().expect("catalog");
+        let mut text = String::from("containers:\n");
+        for (id, l) in locations {
+            text.push_str(&format!("  - {{ id: {id}, location: \"{l}\", size: 1 L, substance: sodium chloride, amount: 5 g }}\n"));
+        }
+        Inventory::parse(&cat, "store.yaml", &text).expect("inventory")
+    }
+
+    #[test]
+    fn pairs_meet_by_spill_zone_cabinet_and_enclosing_place() {
+        let inv = inventory(&[
+            ("A", "Annex / Store C / Cabinet 4 / Tray 1"),
+            ("B", "Annex / Store C / Cabinet 4 / Tray 1"),
+            ("C", "Annex / Store C / Cabinet 4 / Tray 2"),
+            ("D", "Annex / Store C / Cabinet 4"),
+            ("E", "Annex / Store C / Cabinet 5"),
+            ("F", "Annex / Store C / Cabinet 5 / Tray 1"),
+            ("G", "Annex / Wash bay"),
+            ("H", "Annex / Wash bay / Rack 1 / Tray 1"),
+        ]);
+        let m = meeting_pairs(&inv, true);
+        let id = |i: usize| inv.containers[i].id.as_str();
+        let mut got: Vec<(String, Level, String)> = m
+            .pairs
+            .iter()
+            .map(|&(i, j, level, k)| (format!("{}{}", id(i), id(j)), level, m.places[k].clone()))
+            .collect();
+        got.sort();
+        let want = [
+            ("AB", Level::Tray, "Annex/Store C/Cabinet 4"),
+            ("AC", Level::Cabinet, "Annex/Store C/Cabinet 4"),
+            ("AD", Level::Cabinet, "Annex/Store C/Cabinet 4"),
+            ("BC", Level::Cabinet, "Annex/Store C/Cabinet 4"),
+            ("BD", Level::Cabinet, "Annex/Store C/Cabinet 4"),
+            ("CD", Level::Cabinet, "Annex/Store C/Cabinet 4"),
+            // D and E stand loose in two cabinets: each cabinet is a spill zone, and the
+            // level above (the room) their cabinet.
+            ("DE", Level::Cabinet, "Annex/Store C"),
+            ("EF", Level::Cabinet, "Annex/Store C/Cabinet 5"),
+            ("GH", Level::Cabinet, "Annex/Wash bay"),
+        ]
+        .map(|(p, l, k)| (p.to_string(), l, k.to_string()));
+        assert_eq!(got, want);
+        assert_eq!(m.cabinets, 5);
+        let only_zones = meeting_pairs(&inv, false);
+        assert_eq!(only_zones.pairs.len(), 1);
+    }
+
+    #[test]
+    fn uniform_depths_pair_within_cabinets_only() {
+        let inv = inventory(&[
+            ("A", "Cab 1 / Tray 1"),
+            ("B", "Cab 1 / Tray 2"),
+            ("C", "Cab 2 / Tray 1"),
+            ("D", "Cab 2 / Tray 1"),
+        ]);
+        let m = meeting_pairs(&inv, true);
+        let pairs: Vec<(usize, usize, Level)> = m.pairs.iter().map(|p| (p.0, p.1, p.2)).collect();
+        assert_eq!(pairs, [(0, 1, Level::Cabinet), (2, 3, Level::Tray)]);
+        assert_eq!(m.places, ["Cab 1", "Cab 2"]);
+    }
 }

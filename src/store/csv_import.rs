@@ -6,21 +6,25 @@
 //! (or its total amount in the solution). In the later rows of a solution, an empty
 //! location, size or volume cell means "as above".
 //!
+//! A location is a path of one to six levels (see the `store` module): one column holding
+//! `Store B / Cabinet 2 / Tray 1`, or several columns joined in the order the mapping names
+//! them (`location=Building+Room+Cabinet+Shelf`), empty cells skipped, so that a row can
+//! stop at the level it knows (`Cab 1` with no shelf).
+//!
 //! Every row that cannot be read is reported with its row number as a spreadsheet shows it
 //! (the header is row 1). The caller decides whether bad rows stop the import, with all of
 //! them listed at once, or are skipped and listed; a solution with one bad row is skipped
 //! whole, since what is left of it would not be what the container holds.
 
-use super::{neat_contents, split_path, Contents, Inventory, StoredContainer};
+use super::{
+    counted, depths_from_the_end, neat_contents, parse_location, Contents, Inventory,
+    StoredContainer,
+};
 use crate::batch::{Batch, InputError};
 use crate::catalog::{Catalog, PhysicalState};
 use crate::quantity::{parse_amount, parse_volume, Amount};
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, HashMap};
-
-/// Path components of a spill zone (building / room / cabinet / tray) and of a cabinet.
-const MEET_DEPTH: usize = 4;
-const CABINET_DEPTH: usize = 3;
 
 /// The header (first row) name of each field's column. Headers are matched without regard
 /// to case or surrounding spaces.
@@ -34,8 +38,10 @@ pub struct ColumnMapping {
     pub unit: Option<String>,
     /// Container size with its unit ("2.5 L").
     pub size: String,
-    /// Location path, "building / room / cabinet / tray".
-    pub location: String,
+    /// The column(s) of the location path, outermost first. One column holds the whole
+    /// path ("Store B / Cabinet 2 / Tray 1"); several are joined in this order, empty
+    /// cells skipped. Each cell may hold several levels of its own, separated by `/`.
+    pub location: Vec<String>,
     /// Liquid volume of a solution; a row without one is a neat reagent.
     pub volume: Option<String>,
 }
@@ -51,7 +57,7 @@ impl Default for ColumnMapping {
             amount: "amount".into(),
             unit: Some("unit".into()),
             size: "size".into(),
-            location: "location".into(),
+            location: vec!["location".into()],
             volume: Some("volume".into()),
         }
     }
@@ -68,27 +74,75 @@ const KEYS: [&str; 7] = [
 ];
 const REQUIRED: [&str; 5] = ["id", "substance", "amount", "size", "location"];
 
+/// The one field that may be built from several columns.
+const MULTI: &str = "location";
+
+/// A field's header name(s) as a mapping gives them.
+enum Headers {
+    /// One name; for `location`, `+` joins several (`Building+Room+Cabinet`).
+    Joined(String),
+    /// A list of names, taken as written (a mapping file's `[Building, Room, Cabinet]`).
+    List(Vec<String>),
+}
+
 impl ColumnMapping {
     /// Builds a mapping from (field, header) pairs, naming every mistake at once.
-    fn from_pairs(pairs: Vec<(String, String)>) -> Result<ColumnMapping, String> {
-        let mut given: BTreeMap<&str, String> = BTreeMap::new();
+    fn from_pairs(pairs: Vec<(String, Headers)>) -> Result<ColumnMapping, String> {
+        let mut given: BTreeMap<&str, Vec<String>> = BTreeMap::new();
         let mut problems = Vec::new();
-        for (key, header) in &pairs {
+        for (key, headers) in &pairs {
             let key = key.trim();
-            let header = header.trim();
-            match KEYS.iter().find(|k| **k == key) {
-                None => problems.push(format!(
+            let Some(k) = KEYS.iter().find(|k| **k == key) else {
+                problems.push(format!(
                     "`{key}` is not a field (the fields are: {})",
                     KEYS.join(", ")
-                )),
-                Some(_) if header.is_empty() => {
-                    problems.push(format!("`{key}` has no header name"))
+                ));
+                continue;
+            };
+            let names: Vec<String> = match headers {
+                Headers::Joined(h) if *k == MULTI => {
+                    h.split('+').map(|p| p.trim().to_string()).collect()
                 }
-                Some(k) => {
-                    if given.insert(k, header.to_string()).is_some() {
-                        problems.push(format!("`{key}` is given twice"));
-                    }
-                }
+                Headers::Joined(h) => vec![h.trim().to_string()],
+                Headers::List(l) => l.iter().map(|p| p.trim().to_string()).collect(),
+            };
+            if names.len() > 1 && *k != MULTI {
+                problems.push(format!(
+                    "`{key}` names {} columns; only `{MULTI}` can be built from several",
+                    names.len()
+                ));
+                continue;
+            }
+            if names.iter().all(|n| n.is_empty()) {
+                problems.push(format!("`{key}` has no header name"));
+                continue;
+            }
+            if names.iter().any(|n| n.is_empty()) {
+                problems.push(format!(
+                    "`{key}` has an empty header name among its columns (`{}`)",
+                    names.join("+")
+                ));
+                continue;
+            }
+            if let Some(dup) = names
+                .iter()
+                .enumerate()
+                .find(|(i, n)| names[..*i].iter().any(|m| m.eq_ignore_ascii_case(n)))
+                .map(|(_, n)| n)
+            {
+                problems.push(format!("`{key}` names the column `{dup}` twice"));
+                continue;
+            }
+            if names.len() > super::MAX_LOCATION_LEVELS {
+                problems.push(format!(
+                    "`{key}` joins {} columns; a location has at most {} levels",
+                    names.len(),
+                    super::MAX_LOCATION_LEVELS
+                ));
+                continue;
+            }
+            if given.insert(k, names).is_some() {
+                problems.push(format!("`{key}` is given twice"));
             }
         }
         let missing: Vec<&str> = REQUIRED
@@ -106,21 +160,45 @@ impl ColumnMapping {
         if !problems.is_empty() {
             return Err(format!("column mapping: {}", problems.join("; ")));
         }
-        let mut take = |k: &str| given.remove(k);
+        let mut one = |k: &str| given.remove(k).and_then(|v| v.into_iter().next());
+        let id = one("id").unwrap_or_default();
+        let substance = one("substance").unwrap_or_default();
+        let amount = one("amount").unwrap_or_default();
+        let unit = one("unit");
+        let size = one("size").unwrap_or_default();
+        let volume = one("volume");
         Ok(ColumnMapping {
-            id: take("id").unwrap_or_default(),
-            substance: take("substance").unwrap_or_default(),
-            amount: take("amount").unwrap_or_default(),
-            unit: take("unit"),
-            size: take("size").unwrap_or_default(),
-            location: take("location").unwrap_or_default(),
-            volume: take("volume"),
+            id,
+            substance,
+            amount,
+            unit,
+            size,
+            location: given.remove(MULTI).unwrap_or_default(),
+            volume,
         })
+    }
+
+    /// The location's column names as a mapping writes them (`Building+Room+Cabinet`).
+    pub fn location_spec(&self) -> String {
+        self.location.join("+")
+    }
+
+    /// The location's columns for a message: "the `Location` column" or "the `Building`,
+    /// `Room` and `Cabinet` columns".
+    fn location_columns(&self) -> String {
+        let names: Vec<String> = self.location.iter().map(|n| format!("`{n}`")).collect();
+        match names.as_slice() {
+            [one] => format!("the {one} column"),
+            [rest @ .., last] => format!("the {} and {last} columns", rest.join(", ")),
+            [] => "the location column".into(),
+        }
     }
 }
 
 /// Reads a command-line mapping such as
 /// `id=Bottle ID,substance=Chemical,amount=Qty,unit=Unit,size=Container,location=Location`.
+/// The location may join several columns with `+`, outermost first:
+/// `location=Building+Room+Cabinet+Shelf`.
 pub fn parse_mapping(spec: &str) -> Result<ColumnMapping, String> {
     let mut pairs = Vec::new();
     for part in spec.split(',').filter(|p| !p.trim().is_empty()) {
@@ -130,7 +208,7 @@ pub fn parse_mapping(spec: &str) -> Result<ColumnMapping, String> {
                 part.trim()
             )
         })?;
-        pairs.push((k.to_string(), v.to_string()));
+        pairs.push((k.to_string(), Headers::Joined(v.to_string())));
     }
     ColumnMapping::from_pairs(pairs)
 }
@@ -138,20 +216,54 @@ pub fn parse_mapping(spec: &str) -> Result<ColumnMapping, String> {
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct MappingFile {
-    columns: BTreeMap<String, String>,
+    columns: BTreeMap<String, FileHeaders>,
     #[serde(default)]
     #[allow(dead_code)]
     note: Option<String>,
 }
 
-/// Reads a mapping file: `columns: { id: "Bottle ID", substance: Chemical, ... }`.
+#[derive(Deserialize)]
+#[serde(untagged)]
+enum FileHeaders {
+    One(String),
+    List(Vec<String>),
+}
+
+/// Reads a mapping file: `columns: { id: "Bottle ID", substance: Chemical, ... }`. The
+/// location may join several columns, as `location: Building+Room+Cabinet+Shelf` (as on
+/// the command line) or as a list, `location: [Building, Room, Cabinet, Shelf]`, whose
+/// names are taken as written (a `+` in a list item is part of the header).
 pub fn mapping_from_yaml(text: &str) -> Result<ColumnMapping, String> {
     let f: MappingFile = serde_yaml::from_str(text).map_err(|e| {
         format!(
-            "not a readable column mapping: {e} (write it as `columns: {{ id: \"Bottle ID\", substance: Chemical, ... }}`)"
+            "not a readable column mapping: {e} (write it as `columns: {{ id: \"Bottle ID\", substance: Chemical, ..., location: Building+Room+Cabinet }}`)"
         )
     })?;
-    ColumnMapping::from_pairs(f.columns.into_iter().collect())
+    ColumnMapping::from_pairs(
+        f.columns
+            .into_iter()
+            .map(|(k, v)| {
+                let h = match v {
+                    FileHeaders::One(s) => Headers::Joined(s),
+                    FileHeaders::List(l) => Headers::List(l),
+                };
+                (k, h)
+            })
+            .collect(),
+    )
+}
+
+/// The message that refuses an import, with every bad row: "1 row of store.csv cannot be
+/// read; nothing was audited:" and the rows, one a line.
+pub fn refusal_message(file: &str, errors: &[InputError]) -> String {
+    let list: Vec<String> = errors.iter().map(|e| format!("  {e}")).collect();
+    let rows: std::collections::BTreeSet<Option<usize>> = errors.iter().map(|e| e.line).collect();
+    format!(
+        "{} of {file} cannot be read; nothing was audited:\n{}\n  (--skip-bad-rows audits the rest and lists {})",
+        counted(rows.len(), "row", "rows"),
+        list.join("\n"),
+        if rows.len() == 1 { "it" } else { "them" }
+    )
 }
 
 /// A row left out of the import, for the report.
@@ -261,6 +373,14 @@ pub fn import(
                 .trim()
                 .to_string()
         };
+        // The location's columns joined outermost first, empty cells skipped.
+        let location = cols
+            .location
+            .iter()
+            .map(|&i| cell(Some(i)))
+            .filter(|c| !c.is_empty())
+            .collect::<Vec<_>>()
+            .join(" / ");
         let r = Row {
             row,
             id: cell(Some(cols.id)),
@@ -268,7 +388,7 @@ pub fn import(
             amount: cell(Some(cols.amount)),
             unit: cell(cols.unit),
             size: cell(Some(cols.size)),
-            location: cell(Some(cols.location)),
+            location,
             volume: cell(cols.volume),
         };
         if r.id.is_empty() {
@@ -338,11 +458,13 @@ pub fn import(
         id: Some(id),
     }));
     skipped.sort_by_key(|s| s.row);
+    let (meet_depth, cabinet_depth) =
+        depths_from_the_end(containers.iter().map(|c| c.path.as_slice()));
     let inventory = Inventory {
         file: file.to_string(),
         name: file.to_string(),
-        meet_depth: MEET_DEPTH,
-        cabinet_depth: CABINET_DEPTH,
+        meet_depth,
+        cabinet_depth,
         rooms: Vec::new(),
         locations: Vec::new(),
         containers,
@@ -366,7 +488,7 @@ struct Columns {
     amount: usize,
     unit: Option<usize>,
     size: usize,
-    location: usize,
+    location: Vec<usize>,
     volume: Option<usize>,
 }
 
@@ -392,7 +514,7 @@ fn find_columns(headers: &[String], m: &ColumnMapping) -> Result<Columns, (Strin
     let amount = find(&m.amount, true);
     let unit = m.unit.as_deref().and_then(|u| find(u, !lenient));
     let size = find(&m.size, true);
-    let location = find(&m.location, true);
+    let location: Vec<Option<usize>> = m.location.iter().map(|l| find(l, true)).collect();
     let volume = m.volume.as_deref().and_then(|v| find(v, !lenient));
     let present = headers
         .iter()
@@ -415,17 +537,41 @@ fn find_columns(headers: &[String], m: &ColumnMapping) -> Result<Columns, (Strin
             "give each column its own header name".into(),
         ));
     }
+    let location: Option<Vec<usize>> = location.into_iter().collect();
     match (id, substance, amount, size, location) {
-        (Some(id), Some(substance), Some(amount), Some(size), Some(location)) => Ok(Columns {
-            id,
-            substance,
-            amount,
-            unit,
-            size,
-            location,
-            volume,
-        }),
-        _ => unreachable!("every required column was found"),
+        (Some(id), Some(substance), Some(amount), Some(size), Some(location))
+            if !location.is_empty() =>
+        {
+            Ok(Columns {
+                id,
+                substance,
+                amount,
+                unit,
+                size,
+                location,
+                volume,
+            })
+        }
+        _ => Err((
+            "the column mapping names no location column".into(),
+            "map the location, e.g. `location=Location` or `location=Building+Room+Cabinet`".into(),
+        )),
+    }
+}
+
+/// How to write a location, for a row whose location is missing or too deep.
+fn location_fix(m: &ColumnMapping) -> String {
+    if m.location.len() > 1 {
+        format!(
+            "fill {} from the outermost, leaving empty the levels a place does not have; a location has 1 to {} levels, the spill zone last",
+            m.location_columns(),
+            super::MAX_LOCATION_LEVELS
+        )
+    } else {
+        format!(
+            "write 1 to {} levels from the outermost, separated by `/`, the spill zone last, e.g. `Store B / Cabinet 2 / Tray 1`",
+            super::MAX_LOCATION_LEVELS
+        )
     }
 }
 
@@ -492,24 +638,15 @@ fn container(
     let mut volume: Option<(usize, f64)> = None;
     for r in rows {
         if !r.location.is_empty() {
-            let path = split_path(&r.location);
-            match &location {
-                None if path.len() < MEET_DEPTH => add(
-                    r.row,
-                    format!(
-                        "location `{}` has {} parts; a spill zone needs {MEET_DEPTH} (building / room / cabinet / tray)",
-                        r.location,
-                        path.len()
-                    ),
-                    Some("write the whole path, e.g. `Main / Room 101 / Cabinet A / Tray 2`".into()),
-                ),
-                None => location = Some((r.row, path)),
-                Some((first, p)) if *p != path => add(
+            match (parse_location(&r.location), &location) {
+                (Err(msg), _) => add(r.row, msg, Some(location_fix(m))),
+                (Ok(path), None) => location = Some((r.row, path)),
+                (Ok(path), Some((first, p))) if *p != path => add(
                     r.row,
                     format!("location `{}` differs from `{}` on row {first}", r.location, p.join(" / ")),
                     Some("a container stands in one place: give each container its own id, or correct the location".into()),
                 ),
-                Some(_) => {}
+                (Ok(_), Some(_)) => {}
             }
         }
         for (cell, what, slot) in [
@@ -537,8 +674,8 @@ fn container(
     if location.is_none() && rows.iter().all(|r| r.location.is_empty()) {
         add(
             first,
-            format!("no location in the `{}` column", m.location),
-            None,
+            format!("no location in {}", m.location_columns()),
+            Some(location_fix(m)),
         );
     }
     if size.is_none() && rows.iter().all(|r| r.size.is_empty()) {

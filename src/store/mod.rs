@@ -1,9 +1,34 @@
 //! `audit`: a storeroom's containers, which of them can meet if they leak, and what then.
 //!
-//! An inventory lists containers with a location path (building / room / cabinet / tray)
-//! and contents. Containers that share a spill zone (the tray, or secondary containment)
-//! can meet; so can containers in the same cabinet, at a second level. Each pair that can
-//! meet is screened cheaply and, where it could matter, checked in full.
+//! # Locations
+//!
+//! A container's location is a path of one to six levels, outermost first, separated by
+//! `/`: `Quarry Lane Annex / Store B / Cabinet 2 / Tray 1`, `Cabinet 2 / Tray 1`, or just
+//! `Cab 1`. Unless the inventory states its own `levels`, they are read from the end:
+//!
+//! * the **last level is the spill zone** (a tray, a bin, secondary containment):
+//!   containers in the same spill zone can meet directly;
+//! * the **level above it is the cabinet**: containers in the same cabinet but different
+//!   spill zones meet at a second level (unless the audit is run without it). A container
+//!   whose spill zone encloses another's cabinet (a bottle standing loose in `Cab 1`, a
+//!   tray at `Cab 1 / Tray 2`) meets that cabinet's containers at the second level too;
+//! * with **one level**, that level is both the spill zone and the cabinet;
+//! * the **levels above the cabinet** name the room (and the building): in
+//!   `Annex / Store C / Cabinet 4 / Tray 1` the room is `Annex / Store C`. A declared room
+//!   applies to a container whose location begins with the room's path, down to the
+//!   container's cabinet level (so `Annex / Store C / Cabinet 5`, a cabinet with no trays,
+//!   whose cabinet level is `Store C`, is in that room too); the longest such room wins.
+//!   A one- or two-level location has nothing above its cabinet and names no room: it
+//!   takes a room declared with the path `/` (the whole store), or else the default room
+//!   of the thresholds file. So does any container no declared room matches.
+//!
+//! Locations are compared level by level as written (surrounding spaces trimmed), so the
+//! same place must be written the same way on every row. An inventory that states
+//! `levels: { spill_zone: N, cabinet: M }` reads the first N levels as the spill zone and
+//! the first M as the cabinet instead; its locations need at least N levels, and any below
+//! the spill zone are labels only.
+//!
+//! Each pair that can meet is screened cheaply and, where it could matter, checked in full.
 
 pub mod audit;
 pub mod csv_import;
@@ -29,7 +54,8 @@ pub enum Contents {
 #[derive(Debug, Clone, PartialEq)]
 pub struct StoredContainer {
     pub id: String,
-    /// Location path, outermost first: building, room, cabinet, tray.
+    /// Location path, outermost first (one to six levels; the last is the spill zone
+    /// unless the inventory states its `levels`).
     pub path: Vec<String>,
     pub size_l: f64,
     pub contents: Contents,
@@ -44,6 +70,39 @@ impl StoredContainer {
     pub fn zone(&self, depth: usize) -> String {
         self.path[..depth.min(self.path.len())].join("/")
     }
+}
+
+/// Most levels a location may have (e.g. building / wing / room / cabinet / shelf / tray).
+pub const MAX_LOCATION_LEVELS: usize = 6;
+
+/// Reads a location: levels separated by `/`, outermost first, empty levels dropped. The
+/// error says what is wrong, for the caller to put after the container's name.
+pub fn parse_location(text: &str) -> Result<Vec<String>, String> {
+    let path = split_path(text);
+    if path.is_empty() {
+        return Err("the location is empty".into());
+    }
+    if path.len() > MAX_LOCATION_LEVELS {
+        return Err(format!(
+            "location `{}` has {} levels; a location has 1 to {MAX_LOCATION_LEVELS}",
+            path.join(" / "),
+            path.len()
+        ));
+    }
+    Ok(path)
+}
+
+/// The spill-zone and cabinet depths of an inventory that reads its locations from the end:
+/// the deepest location's levels, and one less (one for one-level locations). With these,
+/// every location's spill zone is all of it and its cabinet the level above.
+pub fn depths_from_the_end<'a>(paths: impl Iterator<Item = &'a [String]>) -> (usize, usize) {
+    let deepest = paths.map(<[String]>::len).max().unwrap_or(1).max(1);
+    (deepest, deepest.saturating_sub(1).max(1))
+}
+
+/// `n` and the noun, singular or plural as `n` asks ("1 row", "2 rows").
+pub fn counted(n: usize, singular: &str, plural: &str) -> String {
+    format!("{n} {}", if n == 1 { singular } else { plural })
 }
 
 /// A declared location with the number of containers it holds at most.
@@ -66,7 +125,11 @@ pub struct RoomSpec {
 pub struct Inventory {
     pub file: String,
     pub name: String,
-    /// Path depth of a spill zone (tray) and of a cabinet.
+    /// Path depth of a spill zone and of a cabinet. A location shorter than `meet_depth`
+    /// is a spill zone whole; the cabinet is `meet_depth - cabinet_depth` levels above the
+    /// spill zone, and never less than the first level (see the module's documentation and
+    /// [`Inventory::spill_zone_path`]). An inventory that reads its locations from the end
+    /// has `cabinet_depth = meet_depth - 1` (both 1 when every location has one level).
     pub meet_depth: usize,
     pub cabinet_depth: usize,
     pub rooms: Vec<RoomSpec>,
@@ -93,9 +156,10 @@ struct RawInventory {
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawLevels {
-    /// Path components that make a spill zone (default 4: building/room/cabinet/tray).
+    /// Leading path components that make a spill zone. Without `levels`, a location is
+    /// read from the end (the last level is the spill zone).
     spill_zone: usize,
-    /// Path components that make a cabinet (default 3).
+    /// Leading path components that make a cabinet.
     cabinet: usize,
 }
 
@@ -231,12 +295,15 @@ impl Inventory {
                 Some("an inventory knows: name, levels, rooms, locations, containers (each with id, location, size, and substance + amount or volume + contents)".into()),
             )
         })?;
-        let (meet_depth, cabinet_depth) = match raw.levels {
-            Some(l) => (l.spill_zone, l.cabinet),
-            None => (4, 3),
-        };
-        if cabinet_depth == 0 || meet_depth < cabinet_depth {
-            return Err(err(None, "`levels`: the cabinet must be at least one path component, and the spill zone at least as deep".into(), None));
+        let fixed_levels = raw.levels.map(|l| (l.spill_zone, l.cabinet));
+        if let Some((meet, cabinet)) = fixed_levels {
+            if cabinet == 0 || meet < cabinet || meet > MAX_LOCATION_LEVELS {
+                return Err(err(
+                    None,
+                    format!("`levels`: the cabinet must be at least one path component, the spill zone at least as deep, and neither deeper than {MAX_LOCATION_LEVELS}"),
+                    Some("leave `levels` out to read every location from the end: the last level is the spill zone, the one above it the cabinet".into()),
+                ));
+            }
         }
         let id_lines: Vec<usize> = text
             .lines()
@@ -261,8 +328,20 @@ impl Inventory {
                     None,
                 ));
             }
+            let room_path = split_path(&r.path);
+            if room_path.len() > MAX_LOCATION_LEVELS {
+                return Err(err(
+                    None,
+                    format!(
+                        "room `{}` has {} levels; a location has at most {MAX_LOCATION_LEVELS}",
+                        r.path,
+                        room_path.len()
+                    ),
+                    None,
+                ));
+            }
             rooms.push(RoomSpec {
-                path: split_path(&r.path),
+                path: room_path,
                 volume_m3: v,
                 air_changes_per_hour: r.air_changes,
             });
@@ -280,12 +359,23 @@ impl Inventory {
                     Some("give every container its own id".into()),
                 ));
             }
-            let path = split_path(&c.location);
-            if path.len() < meet_depth {
-                return Err(cerr(
-                    format!("location `{}` has {} parts; this inventory's spill zone needs {meet_depth} (building / room / cabinet / tray)", c.location, path.len()),
-                    None,
-                ));
+            let path = parse_location(&c.location).map_err(|m| {
+                cerr(
+                    m,
+                    Some("write the levels from the outermost, the spill zone last, e.g. `Store B / Cabinet 2 / Tray 1`".into()),
+                )
+            })?;
+            if let Some((meet, _)) = fixed_levels {
+                if path.len() < meet {
+                    return Err(cerr(
+                        format!(
+                            "location `{}` has {}; this inventory's `levels` put the spill zone at level {meet}",
+                            c.location,
+                            counted(path.len(), "level", "levels")
+                        ),
+                        Some("write the whole path, or leave `levels` out to read every location from the end".into()),
+                    ));
+                }
             }
             let size_l = parse_volume(&c.size)
                 .map_err(|e| cerr(format!("size: {e}"), None))?
@@ -327,6 +417,11 @@ impl Inventory {
                 line,
             });
         }
+        for l in &raw.locations {
+            parse_location(&l.path).map_err(|m| err(None, format!("`locations`: {m}"), None))?;
+        }
+        let (meet_depth, cabinet_depth) = fixed_levels
+            .unwrap_or_else(|| depths_from_the_end(containers.iter().map(|c| c.path.as_slice())));
         Ok(Inventory {
             file: file.to_string(),
             name: raw.name.unwrap_or_else(|| file.to_string()),
@@ -338,11 +433,162 @@ impl Inventory {
         })
     }
 
-    /// The room a container stands in, if the inventory describes it.
+    /// The leading levels of `path` that make its spill zone: all of it, or the first
+    /// `meet_depth` where the inventory states its `levels`.
+    pub fn spill_zone_path<'p>(&self, path: &'p [String]) -> &'p [String] {
+        &path[..self.meet_depth.min(path.len())]
+    }
+
+    /// The leading levels of `path` that make its cabinet: the spill zone without its last
+    /// `meet_depth - cabinet_depth` levels (the level above the spill zone), but at least
+    /// the first level, so that a one-level location is its own cabinet.
+    pub fn cabinet_path<'p>(&self, path: &'p [String]) -> &'p [String] {
+        let zone = self.spill_zone_path(path).len();
+        let above = self.meet_depth.saturating_sub(self.cabinet_depth);
+        &path[..zone.saturating_sub(above).max(1).min(path.len())]
+    }
+
+    /// The levels above the cabinet (the building, the room, ...); empty for a location of
+    /// one or two levels.
+    pub fn room_path<'p>(&self, path: &'p [String]) -> &'p [String] {
+        let cabinet = self.cabinet_path(path).len();
+        &path[..cabinet.saturating_sub(1)]
+    }
+
+    /// The spill zone a container stands in, as a key (levels joined by `/`).
+    pub fn spill_zone(&self, c: &StoredContainer) -> String {
+        self.spill_zone_path(&c.path).join("/")
+    }
+
+    /// The cabinet a container stands in, as a key (levels joined by `/`).
+    pub fn cabinet(&self, c: &StoredContainer) -> String {
+        self.cabinet_path(&c.path).join("/")
+    }
+
+    /// The room a container stands in, if the inventory describes it: the declared room
+    /// with the longest path that leads the container's location, down to its cabinet
+    /// level (where a location leaves out its tray, that level is the room it stands in).
+    /// A room declared with the path `/` matches every container, one- and two-level
+    /// locations included, where no longer room does.
     pub fn room_of(&self, c: &StoredContainer) -> Option<&RoomSpec> {
+        let cabinet = self.cabinet_path(&c.path);
         self.rooms
             .iter()
-            .filter(|r| c.path.starts_with(&r.path))
+            .filter(|r| cabinet.starts_with(&r.path))
             .max_by_key(|r| r.path.len())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn inventory(text: &str) -> Result<Inventory, InputError> {
+        let cat = crate::embedded::catalog().expect("catalog");
+        Inventory::parse(&cat, "store.yaml", text)
+    }
+
+    fn salt(id: &str, location: &str) -> String {
+        format!("  - {{ id: {id}, location: \"{location}\", size: 1 L, substance: sodium chloride, amount: 5 g }}\n")
+    }
+
+    #[test]
+    fn locations_are_read_from_the_end_without_levels() {
+        let text = format!(
+            "containers:\n{}{}{}",
+            salt("A", "Cab 1"),
+            salt("B", "Cab 1 / Tray 2"),
+            salt("C", "Annex / Store C / Cabinet 4 / Tray 1"),
+        );
+        let inv = inventory(&text).unwrap();
+        assert_eq!((inv.meet_depth, inv.cabinet_depth), (4, 3));
+        let c = |id: &str| inv.containers.iter().find(|c| c.id == id).unwrap();
+        assert_eq!(inv.spill_zone(c("A")), "Cab 1");
+        assert_eq!(inv.cabinet(c("A")), "Cab 1");
+        assert_eq!(inv.spill_zone(c("B")), "Cab 1/Tray 2");
+        assert_eq!(inv.cabinet(c("B")), "Cab 1");
+        assert_eq!(inv.cabinet(c("C")), "Annex/Store C/Cabinet 4");
+        assert_eq!(inv.room_path(&c("C").path), ["Annex", "Store C"]);
+        assert!(inv.room_path(&c("A").path).is_empty());
+        assert!(inv.room_path(&c("B").path).is_empty());
+    }
+
+    #[test]
+    fn stated_levels_read_from_the_front() {
+        let text = format!(
+            "levels: {{ spill_zone: 4, cabinet: 3 }}\ncontainers:\n{}",
+            salt("A", "Annex / Store C / Cabinet 4 / Tray 1 / Slot 3")
+        );
+        let inv = inventory(&text).unwrap();
+        let a = &inv.containers[0];
+        assert_eq!(inv.spill_zone(a), "Annex/Store C/Cabinet 4/Tray 1");
+        assert_eq!(inv.cabinet(a), "Annex/Store C/Cabinet 4");
+        // Stated levels need that many.
+        let text = format!(
+            "levels: {{ spill_zone: 4, cabinet: 3 }}\ncontainers:\n{}",
+            salt("A", "Cab 1 / Tray 2")
+        );
+        let e = inventory(&text).unwrap_err();
+        assert!(e.message.contains("has 2 levels"), "{e}");
+        assert_eq!(e.line, Some(3));
+        let e = inventory("levels: { spill_zone: 7, cabinet: 3 }\ncontainers: []\n").unwrap_err();
+        assert!(e.message.contains("neither deeper than 6"), "{e}");
+    }
+
+    #[test]
+    fn seven_levels_and_empty_locations_are_refused_with_their_line() {
+        let text = format!(
+            "containers:\n{}{}",
+            salt("A", "Cab 1"),
+            salt("B", "S / A / R / C / Sh / B / X")
+        );
+        let e = inventory(&text).unwrap_err();
+        assert_eq!(e.line, Some(3));
+        assert!(
+            e.message.contains("container `B`") && e.message.contains("has 7 levels"),
+            "{e}"
+        );
+        let e = inventory(&format!("containers:\n{}", salt("A", " / "))).unwrap_err();
+        assert!(e.message.contains("the location is empty"), "{e}");
+        let e = inventory(&format!(
+            "locations:\n  - {{ path: A/B/C/D/E/F/G, capacity: 2 }}\ncontainers:\n{}",
+            salt("A", "Cab 1")
+        ))
+        .unwrap_err();
+        assert!(e.message.contains("`locations`"), "{e}");
+    }
+
+    #[test]
+    fn rooms_are_matched_by_the_levels_above_the_cabinet() {
+        let text = format!(
+            "rooms:\n  - {{ path: Annex / Store C, volume: 40 m3, air_changes: 6 }}\n  - {{ path: /, volume: 90 m3, air_changes: 4 }}\ncontainers:\n{}{}{}{}",
+            salt("A", "Annex / Store C / Cabinet 4 / Tray 1"),
+            salt("B", "Annex / Store C / Cabinet 4"),
+            salt("C", "Cabinet 4 / Tray 1"),
+            salt("D", "Cab 9"),
+        );
+        let inv = inventory(&text).unwrap();
+        let room = |id: &str| {
+            let c = inv.containers.iter().find(|c| c.id == id).unwrap();
+            inv.room_of(c).map(|r| r.volume_m3)
+        };
+        assert_eq!(room("A"), Some(40.0));
+        // Three levels: Store C is the cabinet level, and the room it stands in.
+        assert_eq!(room("B"), Some(40.0));
+        // One and two levels name no room: the whole-store room.
+        assert_eq!(room("C"), Some(90.0));
+        assert_eq!(room("D"), Some(90.0));
+        // Without a `/` room they have none (the thresholds file's default applies).
+        let text = text.replace("  - { path: /, volume: 90 m3, air_changes: 4 }\n", "");
+        let inv = inventory(&text).unwrap();
+        let c = inv.containers.iter().find(|c| c.id == "C").unwrap();
+        assert!(inv.room_of(c).is_none());
+    }
+
+    #[test]
+    fn counted_is_singular_for_one() {
+        assert_eq!(counted(1, "row", "rows"), "1 row");
+        assert_eq!(counted(0, "row", "rows"), "0 rows");
+        assert_eq!(counted(2, "cabinet", "cabinets"), "2 cabinets");
     }
 }

@@ -152,7 +152,7 @@ pub fn suggest(
 ) -> Suggestion {
     let mut index: HashMap<String, usize> = HashMap::new();
     let mut trays: Vec<Tray> = Vec::new();
-    let tray_of = |path: &[String]| path[..inv.meet_depth.min(path.len())].join("/");
+    let tray_of = |path: &[String]| inv.spill_zone_path(path).join("/");
     let add_tray = |path: Vec<String>,
                     capacity: Option<usize>,
                     trays: &mut Vec<Tray>,
@@ -166,8 +166,8 @@ pub fn suggest(
         }
         trays.push(Tray {
             path: key.clone(),
-            cabinet: path[..inv.cabinet_depth.min(path.len())].join("/"),
-            room: path[..2.min(path.len())].join("/"),
+            cabinet: inv.cabinet_path(&path).join("/"),
+            room: inv.room_path(&path).join("/"),
             capacity: capacity.unwrap_or(usize::MAX),
         });
         index.insert(key, trays.len() - 1);
@@ -175,9 +175,7 @@ pub fn suggest(
     };
     for l in &inv.locations {
         let p = split_path(&l.path);
-        if p.len() >= inv.meet_depth {
-            add_tray(p, Some(l.capacity), &mut trays, &mut index);
-        }
+        add_tray(p, Some(l.capacity), &mut trays, &mut index);
     }
     let at: Vec<usize> = inv
         .containers
@@ -291,15 +289,24 @@ pub fn suggest(
     let complete = stops_after == 0;
     let note = if out_of_time {
         format!(
-            "The search stopped after {} s with {stops_after} stop pairs left ({} moves found by then); a store this crowded with pairs that must not meet needs more room or fewer containers per cabinet before moves can help.",
+            "The search stopped after {} s with {} left ({} found by then); a store this crowded with pairs that must not meet needs more room or fewer containers per cabinet before moves can help.",
             BUDGET.as_secs(),
-            layout.at.iter().zip(&at).filter(|(a, b)| a != b).count()
+            super::counted(stops_after, "stop pair", "stop pairs"),
+            super::counted(
+                layout.at.iter().zip(&at).filter(|(a, b)| a != b).count(),
+                "move",
+                "moves"
+            )
         )
     } else if complete {
-        format!("Every stop pair is removed with {} moves.", moves.len())
+        format!(
+            "Every stop pair is removed with {}.",
+            super::counted(moves.len(), "move", "moves")
+        )
     } else {
         format!(
-            "{stops_after} stop pairs remain: there is no free place that keeps them apart. Add trays or cabinets, or remove containers."
+            "{} left: there is no free place that keeps them apart. Add trays or cabinets, or remove containers.",
+            super::counted(stops_after, "stop pair is", "stop pairs are")
         )
     };
     Suggestion {

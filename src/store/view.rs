@@ -1,9 +1,10 @@
 //! The audit report for a terminal (findings and per-cabinet matrices) and as one
 //! self-contained HTML page with an inline SVG matrix per cabinet. Layout only.
 
-use super::audit::{AuditReport, CabinetMatrix, Level};
+use super::audit::{AuditCounts, AuditReport, CabinetMatrix, Level};
+use super::counted;
+use crate::html::{esc, prose};
 use crate::report::Severity;
-use crate::sheet::esc;
 use std::fmt::Write;
 
 /// Most containers a terminal matrix shows before it lists findings only.
@@ -38,6 +39,28 @@ fn matrix_text(m: &CabinetMatrix) -> String {
     out
 }
 
+/// The counts sentence, singular or plural as each count asks: "3 containers in 2 spill
+/// zones and 1 cabinet; 3 pairs can meet, ...".
+fn counts_sentence(c: &AuditCounts) -> String {
+    format!(
+        "{} in {} and {}; {} can meet, {} cleared by screening, {} checked",
+        counted(c.containers, "container", "containers"),
+        counted(c.spill_zones, "spill zone", "spill zones"),
+        counted(c.cabinets, "cabinet", "cabinets"),
+        counted(c.pairs_that_can_meet, "pair", "pairs"),
+        c.pairs_cleared_by_screening,
+        c.pairs_checked
+    )
+}
+
+/// Where a pair meets, as the report words it.
+fn level_words(level: Level) -> &'static str {
+    match level {
+        Level::Tray => "spill zone",
+        Level::Cabinet => "cabinet",
+    }
+}
+
 /// The report for a terminal.
 pub fn audit_table(r: &AuditReport) -> String {
     let mut out = String::new();
@@ -45,15 +68,22 @@ pub fn audit_table(r: &AuditReport) -> String {
     let _ = writeln!(out, "offgas audit: {} ({})", r.name, r.file);
     let _ = writeln!(
         out,
-        "{} containers in {} spill zones and {} cabinets; {} pairs can meet, {} cleared by screening, {} checked ({} distinct checks).",
-        c.containers, c.spill_zones, c.cabinets, c.pairs_that_can_meet, c.pairs_cleared_by_screening, c.pairs_checked, c.distinct_checks
+        "{} ({}).",
+        counts_sentence(c),
+        counted(c.distinct_checks, "distinct check", "distinct checks")
     );
     let _ = writeln!(out, "\nVerdict: {}", r.severity.word().to_uppercase());
     if !r.skipped_rows.is_empty() {
+        let n = r.skipped_rows.len();
         let _ = writeln!(
             out,
-            "{} inventory rows were skipped (--skip-bad-rows); see the JSON report for each.",
-            r.skipped_rows.len()
+            "{} skipped (--skip-bad-rows); see the JSON report for {}.",
+            if n == 1 {
+                "1 inventory row was".to_string()
+            } else {
+                format!("{n} inventory rows were")
+            },
+            if n == 1 { "it" } else { "each" }
         );
     }
     let stops = r
@@ -68,7 +98,15 @@ pub fn audit_table(r: &AuditReport) -> String {
         .count();
     let _ = writeln!(
         out,
-        "{stops} pairs to stop, {reviews} to review, worst first:"
+        "{} to stop, {reviews} to review{}",
+        counted(stops, "pair", "pairs"),
+        if stops + reviews > 1 {
+            ", worst first:"
+        } else if stops + reviews == 1 {
+            ":"
+        } else {
+            "."
+        }
     );
     for f in r.findings.iter().take(50) {
         let _ = writeln!(
@@ -79,10 +117,7 @@ pub fn audit_table(r: &AuditReport) -> String {
             f.a.contents,
             f.b.id,
             f.b.contents,
-            match f.level {
-                Level::Tray => "tray",
-                Level::Cabinet => "cabinet",
-            },
+            level_words(f.level),
             f.gas.as_ref().map(|g| format!(", {g}")).unwrap_or_default(),
             f.headline
         );
@@ -98,7 +133,7 @@ pub fn audit_table(r: &AuditReport) -> String {
     for m in &r.cabinets {
         let _ = writeln!(
             out,
-            "\nCabinet {} (S/R: stop/review on the same tray; s/r: in the same cabinet)",
+            "\nCabinet {} (S/R: stop/review in the same spill zone; s/r: in the same cabinet)",
             m.cabinet
         );
         if m.ids.len() <= TERMINAL_MATRIX_MAX {
@@ -114,8 +149,8 @@ pub fn audit_table(r: &AuditReport) -> String {
     if let Some(s) = &r.suggestion {
         let _ = writeln!(
             out,
-            "\nSuggested moves ({}; stop pairs {} → {}, review pairs {} → {})",
-            s.note,
+            "\nSuggested moves: {} (stop pairs {} → {}, review pairs {} → {})",
+            s.note.trim_end_matches('.'),
             s.stop_pairs_before,
             s.stop_pairs_after,
             s.review_pairs_before,
@@ -221,12 +256,9 @@ fn matrix_svg(m: &CabinetMatrix) -> String {
     out
 }
 
-const STYLE: &str = r#"
-@page { margin: 12mm; }
-body { font-family: "Helvetica Neue", Arial, sans-serif; font-size: 10pt; color: #111; max-width: 190mm; margin: 0 auto; padding: 6mm 0; }
-h1 { font-size: 15pt; } h2 { font-size: 12pt; border-bottom: 1px solid #888; margin-top: 14pt; }
-table { border-collapse: collapse; width: 100%; } th, td { border: 1px solid #999; padding: 2pt 4pt; font-size: 8.5pt; text-align: left; vertical-align: top; }
-th { background: #eee; } tr { page-break-inside: avoid; }
+/// What the audit page adds to the shared page style: the ranked rows and the matrices.
+const AUDIT_STYLE: &str = r#"
+th, td { padding: 2pt 4pt; font-size: 8.5pt; }
 .stop td:first-child { background: hsl(0, 75%, 62%); } .review td:first-child { background: hsl(42, 90%, 72%); }
 .matrix { page-break-inside: avoid; margin: 6pt 0 12pt; }
 .legend span { display: inline-block; width: 12px; height: 12px; border: 1px solid #555; vertical-align: middle; margin: 0 3pt 0 8pt; }
@@ -236,12 +268,13 @@ th { background: #eee; } tr { page-break-inside: avoid; }
 pub fn audit_html(r: &AuditReport) -> String {
     let mut out = String::new();
     let c = &r.counts;
-    let _ = write!(out, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>Storeroom audit: {}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n", esc(&r.name));
     let _ = writeln!(out, "<h1>Storeroom audit: {}</h1>", esc(&r.name));
     let _ = writeln!(
         out,
-        "<p>Source: <code>{}</code>. {} containers in {} spill zones and {} cabinets; {} pairs can meet, {} cleared by screening, {} checked. Verdict: <strong>{}</strong>.</p>",
-        esc(&r.file), c.containers, c.spill_zones, c.cabinets, c.pairs_that_can_meet, c.pairs_cleared_by_screening, c.pairs_checked, r.severity.word().to_uppercase()
+        "<p>Source: <code>{}</code>. {}. Verdict: <strong>{}</strong>.</p>",
+        esc(&r.file),
+        esc(&counts_sentence(c)),
+        r.severity.word().to_uppercase()
     );
     let _ = writeln!(out, "<h2>Findings</h2>\n<table>\n<thead><tr><th>Verdict</th><th>Container</th><th>Meets</th><th>Where</th><th>Gas</th><th>× review level</th><th>Why</th></tr></thead>\n<tbody>");
     for f in &r.findings {
@@ -252,17 +285,17 @@ pub fn audit_html(r: &AuditReport) -> String {
             f.severity.word().to_uppercase(),
             esc(&f.a.id), esc(&f.a.contents), esc(&f.a.location),
             esc(&f.b.id), esc(&f.b.contents), esc(&f.b.location),
-            match f.level { Level::Tray => "tray", Level::Cabinet => "cabinet" },
+            level_words(f.level),
             esc(f.gas.as_deref().unwrap_or("-")),
             f.worst_ratio,
-            esc(&f.headline)
+            prose(&f.headline)
         );
     }
     let _ = writeln!(out, "</tbody>\n</table>");
     if !r.cabinets.is_empty() {
         let _ = writeln!(
             out,
-            "<h2>Cabinets</h2>\n<p class=\"legend\">Darker is further past the level;<span style=\"background:{}\"></span>stop<span style=\"background:{}\"></span>review; a diagonal marks pairs on different trays of the same cabinet.</p>",
+            "<h2>Cabinets</h2>\n<p class=\"legend\">Darker is further past the level;<span style=\"background:{}\"></span>stop<span style=\"background:{}\"></span>review; a diagonal marks pairs in different spill zones of the same cabinet.</p>",
             cell_colour(Severity::Stop, 10.0),
             cell_colour(Severity::Review, 10.0)
         );
@@ -279,7 +312,7 @@ pub fn audit_html(r: &AuditReport) -> String {
         let _ = writeln!(
             out,
             "<h2>Suggested moves</h2><p>{} Stop pairs {} → {}, review pairs {} → {}.</p><ul>",
-            esc(&s.note),
+            prose(&s.note),
             s.stop_pairs_before,
             s.stop_pairs_after,
             s.review_pairs_before,
@@ -301,6 +334,107 @@ pub fn audit_html(r: &AuditReport) -> String {
         &r.cautions,
         crate::render::ListStyle::Html,
     ));
-    let _ = writeln!(out, "</body>\n</html>");
+    crate::html::page(&format!("Storeroom audit: {}", r.name), AUDIT_STYLE, &out)
+}
+
+/// Markdown cells hold no line breaks or pipes.
+fn cell(s: &str) -> String {
+    s.replace('|', "\\|").replace('\n', " ")
+}
+
+/// The audit as markdown, for tickets: findings and moves; the matrices need a page
+/// (`--format html`). Layout only, from the report's public fields.
+// This belongs beside `audit_table` in `crate::store::view`; it lives here until that
+// module's owner takes it over.
+pub fn audit_markdown(r: &AuditReport) -> String {
+    use crate::report::Severity;
+    use crate::store::audit::Level;
+    use std::fmt::Write;
+    let mut out = String::new();
+    let c = &r.counts;
+    let _ = writeln!(out, "# Storeroom audit: {}\n", r.name);
+    let _ = writeln!(
+        out,
+        "Source: `{}`. {} containers in {} spill zones and {} cabinets; {} pairs can meet, {} cleared by screening, {} checked.\n",
+        r.file, c.containers, c.spill_zones, c.cabinets, c.pairs_that_can_meet, c.pairs_cleared_by_screening, c.pairs_checked
+    );
+    let _ = writeln!(out, "**Verdict: {}**\n", r.severity.word().to_uppercase());
+    let stops = r
+        .findings
+        .iter()
+        .filter(|f| f.severity == Severity::Stop)
+        .count();
+    let reviews = r
+        .findings
+        .iter()
+        .filter(|f| f.severity == Severity::Review)
+        .count();
+    let _ = writeln!(
+        out,
+        "## Findings\n\n{stops} pairs to stop, {reviews} to review, worst first.\n"
+    );
+    if !r.findings.is_empty() {
+        let _ = writeln!(
+            out,
+            "| verdict | container | meets | where | gas | × review level | why |"
+        );
+        let _ = writeln!(out, "|---|---|---|---|---|---:|---|");
+        for f in &r.findings {
+            let _ = writeln!(
+                out,
+                "| {} | {} ({}), {} | {} ({}), {} | same {} | {} | {:.1} | {} |",
+                f.severity.word().to_uppercase(),
+                cell(&f.a.id),
+                cell(&f.a.contents),
+                cell(&f.a.location),
+                cell(&f.b.id),
+                cell(&f.b.contents),
+                cell(&f.b.location),
+                match f.level {
+                    Level::Tray => "spill zone",
+                    Level::Cabinet => "cabinet",
+                },
+                cell(f.gas.as_deref().unwrap_or("-")),
+                f.worst_ratio,
+                cell(&f.headline)
+            );
+        }
+    }
+    if !r.skipped_rows.is_empty() {
+        let _ = writeln!(
+            out,
+            "\n{} inventory rows were skipped (--skip-bad-rows); the JSON report lists each.",
+            r.skipped_rows.len()
+        );
+    }
+    if !r.cabinets.is_empty() {
+        let _ = writeln!(
+            out,
+            "\nThe pair matrices of {} cabinets are drawn in the HTML report (`--format html`).",
+            r.cabinets.len()
+        );
+    }
+    if let Some(s) = &r.suggestion {
+        let _ = writeln!(
+            out,
+            "\n## Suggested moves\n\n{} Stop pairs {} → {}, review pairs {} → {}.\n",
+            s.note,
+            s.stop_pairs_before,
+            s.stop_pairs_after,
+            s.review_pairs_before,
+            s.review_pairs_after
+        );
+        for m in &s.moves {
+            let _ = writeln!(out, "- Move {} from {} to {}", m.id, m.from, m.to);
+        }
+        for u in &s.unresolved {
+            let _ = writeln!(out, "- Not resolved: {u}");
+        }
+    }
+    out.push_str(&crate::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::render::ListStyle::Markdown,
+    ));
     out
 }
