@@ -7,34 +7,12 @@ use crate::catalog::{Catalog, PhysicalState, SubstanceId};
 use crate::chem::{Closure, Mixture};
 use crate::quantity::{parse_amount, parse_temperature, parse_volume, Amount, QuantityError};
 use serde::Deserialize;
-use std::fmt;
 
 /// Litres of water an empty container is taken to hold.
 pub const EMPTY_FILM_L: f64 = 1e-3;
 
-/// A mistake in something the user wrote.
-#[derive(Debug, Clone, PartialEq)]
-pub struct InputError {
-    pub file: String,
-    pub line: Option<usize>,
-    pub message: String,
-    pub fix: Option<String>,
-}
-
-impl fmt::Display for InputError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self.line {
-            Some(l) => write!(f, "{}:{}: {}", self.file, l, self.message)?,
-            None => write!(f, "{}: {}", self.file, self.message)?,
-        }
-        if let Some(fix) = &self.fix {
-            write!(f, "\n  fix: {fix}")?;
-        }
-        Ok(())
-    }
-}
-
-impl std::error::Error for InputError {}
+/// A mistake in something the user wrote (it lives in `input_error`, which stands on its own).
+pub use crate::input_error::InputError;
 
 /// One component as resolved against the catalog.
 #[derive(Debug, Clone, PartialEq)]

@@ -132,28 +132,22 @@ pub fn check(
         stream_alone: &eq_a,
     };
     let forward = scan(
-        &|f| as_written.state(f).map(|x| x.0),
+        &|f, near| as_written.state(f, near),
         a.liquid_l <= 0.0,
         &scorer,
         opts.detail,
     )
     .map_err(solve_err("pouring the stream into the container"))?;
     let backward = scan(
-        &|f| other_way.state(f).map(|x| x.0),
+        &|f, near| other_way.state(f, near),
         b.liquid_l <= 0.0,
         &scorer,
         opts.detail,
     )
     .map_err(solve_err("pouring the container into the stream"))?;
-    let heat_at = |p: &Pour, f: f64| {
-        p.state(f).map(|x| x.1).map_err(|error| CheckError::Solve {
-            what: format!("the heat balance {}", where_in_pour(f)),
-            error,
-        })
-    };
-    let mut end_heat = heat_at(&as_written, 1.0)?;
-    let mut worst_heat = heat_at(&as_written, forward.worst.fraction_added)?;
-    let mut other_heat = heat_at(&other_way, backward.worst.fraction_added)?;
+    let mut end_heat = forward.end.extra;
+    let mut worst_heat = forward.worst.extra;
+    let mut other_heat = backward.worst.extra;
     let boil_end = boiling(cat, th, &as_written, 1.0, &forward.end.state, &end_heat)?;
     let boil_worst = boiling(
         cat,
@@ -284,7 +278,7 @@ pub fn check(
     });
     let severity = Severity::verdict(&findings);
 
-    let order = |p: &PathScan, heat: &HeatReport, description: &str| OrderReport {
+    let order = |p: &PathScan<HeatReport>, heat: &HeatReport, description: &str| OrderReport {
         description: description.into(),
         worst_state: WorstStateReport {
             fraction_added: p.worst.fraction_added,
@@ -337,8 +331,8 @@ pub fn check(
 
 fn order_findings(
     th: &Thresholds,
-    forward: &PathScan,
-    backward: &PathScan,
+    forward: &PathScan<HeatReport>,
+    backward: &PathScan<HeatReport>,
     action: crate::assess::Action,
 ) -> Vec<Finding> {
     let mut out = Vec::new();
@@ -391,8 +385,8 @@ fn order_findings(
 fn rule_context(
     container: &Batch,
     stream: &Batch,
-    forward: &PathScan,
-    backward: &PathScan,
+    forward: &PathScan<HeatReport>,
+    backward: &PathScan<HeatReport>,
 ) -> RuleContext {
     let present = container
         .components
@@ -641,7 +635,7 @@ fn boiling(
     }
     let warmer = t + th.heat.boiling_margin_k;
     let eq_warm = pour
-        .solve_at(f, warmer)
+        .solve_at(f, warmer, Some(eq))
         .map_err(|error| CheckError::Solve {
             what: format!("the boiling point {}", where_in_pour(f)),
             error,

@@ -13,6 +13,7 @@ pub mod composition;
 pub mod embedded;
 pub mod heat;
 pub mod html;
+pub mod input_error;
 pub mod input_shape;
 pub mod notation;
 pub mod pairs;

@@ -4,7 +4,7 @@
 use crate::batch::Batch;
 use crate::boiling::LiquidMakeup;
 use crate::catalog::{Catalog, SubstanceId};
-use crate::chem::{solve, Equilibrium, Mixture, SolveError, SolverSettings};
+use crate::chem::{solve_from, Equilibrium, Mixture, SolveError, SolverSettings};
 use crate::heat::{reaction_heat_kj, temperature_rise};
 use serde::Serialize;
 
@@ -172,23 +172,37 @@ impl Pour<'_> {
         }
     }
 
-    /// The mixture at fraction `f` solved at `t_k` (within the aqueous model's range).
-    pub fn solve_at(&self, f: f64, t_k: f64) -> Result<Equilibrium, SolveError> {
+    /// The mixture at fraction `f` solved at `t_k` (within the aqueous model's range),
+    /// starting from the neighbouring state `near`.
+    pub fn solve_at(
+        &self,
+        f: f64,
+        t_k: f64,
+        near: Option<&Equilibrium>,
+    ) -> Result<Equilibrium, SolveError> {
         let mut m = self.mixture(f);
         m.temperature_k = t_k.clamp(273.15, BOILING_K);
-        solve(self.cat, &m, &self.settings)
+        solve_from(self.cat, &m, &self.settings, near)
     }
 
-    /// The state at fraction `f`, solved at the temperature its own heat brings it to.
-    pub fn state(&self, f: f64) -> Result<(Equilibrium, HeatReport), SolveError> {
+    /// The state at fraction `f`, solved at the temperature its own heat brings it to,
+    /// starting from the neighbouring state `near`.
+    pub fn state(
+        &self,
+        f: f64,
+        near: Option<&Equilibrium>,
+    ) -> Result<(Equilibrium, HeatReport), SolveError> {
         let mut m = self.mixture(f);
-        let first = solve(self.cat, &m, &self.settings)?;
+        let first = solve_from(self.cat, &m, &self.settings, near)?;
         let heat = self.heat(f, &first);
         if (heat.temperature_rise_k).abs() < 1e-3 {
             return Ok((first, heat));
         }
         m.temperature_k =
             (heat.final_temperature_c + self.cat.physical.kelvin_offset).clamp(273.15, BOILING_K);
-        Ok((solve(self.cat, &m, &self.settings)?, heat))
+        Ok((
+            solve_from(self.cat, &m, &self.settings, Some(&first))?,
+            heat,
+        ))
     }
 }

@@ -1,14 +1,18 @@
 //! Verdict thresholds and report wording from `rules/thresholds.yaml`.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
+use std::collections::BTreeMap;
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Thresholds {
     #[allow(dead_code)]
     pub description: String,
+    /// What the numbers are counted in, in words (documentation for the reader; the
+    /// bundled thresholds are stored in the program's binary data image, which needs a
+    /// fixed type here).
     #[allow(dead_code)]
-    pub units: serde_yaml::Value,
+    pub units: BTreeMap<String, String>,
     pub gas: GasThresholds,
     pub sealed_overpressure: Overpressure,
     pub activity_model: ActivityModel,
@@ -22,7 +26,7 @@ pub struct Thresholds {
     pub cautions: Vec<String>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct GasThresholds {
     /// Review when headspace ppm reaches this fraction of the short-term level.
@@ -34,7 +38,7 @@ pub struct GasThresholds {
     pub basis: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Overpressure {
     pub review_kpa: f64,
@@ -42,7 +46,7 @@ pub struct Overpressure {
     pub basis: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct ActivityModel {
     pub max_ionic_strength: f64,
@@ -61,7 +65,7 @@ impl ActivityModel {
 }
 
 /// How a pour is told apart from what the container already does.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct PourChange {
     /// A gas already at a level in the container counts against the pour only when the
@@ -70,7 +74,7 @@ pub struct PourChange {
     pub basis: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct ProtonTransfer {
     pub complete_above_log_k: f64,
@@ -78,7 +82,7 @@ pub struct ProtonTransfer {
     pub basis: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct HeatThresholds {
     pub review_rise_k: f64,
@@ -90,7 +94,7 @@ pub struct HeatThresholds {
     pub boiling_basis: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Storeroom {
     /// Area a leak on a tray spreads over, m2.
@@ -100,7 +104,7 @@ pub struct Storeroom {
     pub basis: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct RoomDefaults {
     pub volume_m3: f64,
@@ -113,7 +117,7 @@ pub struct RoomDefaults {
     pub window_basis: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct FlammableGas {
     /// Review when the headspace reaches this fraction of the lower flammable limit.
@@ -122,7 +126,7 @@ pub struct FlammableGas {
     pub basis: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct MixingPath {
     /// The other order is advised when its worst state is this many times lower.

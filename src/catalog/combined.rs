@@ -1,7 +1,7 @@
 //! Species formed from two families at once (`data/combined.yaml`), such as dissolved
 //! chlorine from hypochlorous acid and chloride.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -13,7 +13,7 @@ pub struct CombinedFile {
     pub combined: Vec<Combined>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Parent {
     pub family: String,
@@ -21,7 +21,7 @@ pub struct Parent {
 }
 
 /// first + second + protons H+ = combined + H2O.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Combined {
     pub id: String,

@@ -6,7 +6,7 @@
 //! mass ρ_water (1000 − Σ c_i v_i) beside the solutes' c_i g. This is the mixing rule of
 //! M. Laliberté and W. E. Cooper, J. Chem. Eng. Data 49, 1141 (2004).
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 #[derive(Debug, Clone, Deserialize)]
 pub struct DensityFile {
@@ -40,7 +40,7 @@ pub struct DensityEntry {
 }
 
 /// One solute's density curve, with water as its first point.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct DensityTable {
     /// (mass fraction 0–1, g/mL), from 0 upward.
     points: Vec<(f64, f64)>,

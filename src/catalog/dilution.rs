@@ -1,7 +1,7 @@
 //! Integral enthalpies of dilution by solute (`data/dilution-heat.yaml`): for any water
 //! content, the heat to dilute a mole of solute to infinite dilution.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 #[derive(Debug, Clone, Deserialize)]
 pub struct DilutionFile {
@@ -31,7 +31,7 @@ pub struct CurveEntry {
 
 /// A weak proton step that the curve's infinite-dilution state includes: the speciation
 /// counts its heat itself, so the curve must not count it again.
-#[derive(Debug, Clone, Copy)]
+#[derive(Debug, Clone, Copy, Serialize, Deserialize)]
 pub struct IncludedStep {
     /// Ka of the step at 25 °C.
     pub ka: f64,
@@ -42,7 +42,7 @@ pub struct IncludedStep {
 }
 
 /// One solute's dilution curve, with the weak steps the speciation already counts taken out.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct DilutionCurve {
     points: Vec<(f64, f64)>,
     steps: Vec<IncludedStep>,

@@ -2,8 +2,9 @@
 //! classes usually brings, and the rule by which a waste tag lists them.
 //!
 //! The table is loaded on its own, against a loaded catalog, rather than inside
-//! `Catalog::load`: only the waste tag needs it, and a check should not fail because the
-//! labelling table has a problem.
+//! `Catalog::load`: only the waste tag needs it. The bundled table is loaded and checked
+//! when the program is built (`build.rs`), like the rest of the bundled data, and read back
+//! from the binary image by `embedded::ghs`.
 
 use super::{Catalog, CatalogError};
 use serde::{Deserialize, Serialize};
@@ -18,7 +19,7 @@ pub enum GhsPart {
 }
 
 /// A GHS hazard class by the name GHS gives it.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct GhsHazardClass {
     pub id: String,
@@ -37,7 +38,7 @@ impl GhsHazardClass {
 }
 
 /// What one of offgas's classes usually brings.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct ClassHazards {
     pub class: String,
@@ -50,7 +51,7 @@ pub struct ClassHazards {
     pub note: Option<String>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct CutOff {
     /// % by mass of the contents.
@@ -59,7 +60,7 @@ pub struct CutOff {
 }
 
 /// The pH at or beyond which the contents count as corrosive whatever went in.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct ExtremePh {
     pub at_or_below: f64,
@@ -68,7 +69,7 @@ pub struct ExtremePh {
     pub source: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Listing {
     pub cut_off: CutOff,
@@ -90,7 +91,7 @@ struct GhsFile {
 }
 
 /// The loaded table, every reference resolved.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct GhsTable {
     pub listing: Listing,
     pub hazard_classes: Vec<GhsHazardClass>,
@@ -102,54 +103,86 @@ impl GhsTable {
     pub fn parse(file: &str, text: &str, cat: &Catalog) -> Result<GhsTable, CatalogError> {
         let parsed: GhsFile = serde_yaml::from_str(text).map_err(|e| CatalogError::Parse {
             file: file.to_string(),
+            line: e.location().map(|l| l.line()),
             message: e.to_string(),
         })?;
-        let bad = |message: String| CatalogError::Invalid {
-            file: file.to_string(),
-            message,
+        // An error about the entry written `key: value` (its `nth` occurrence, from 0), or
+        // about a whole block when `value` is empty.
+        let bad_at = |section: &str, key: &str, value: &str, nth: usize, message: String| {
+            CatalogError::Invalid {
+                file: file.to_string(),
+                line: super::line_of(text, Some(section), key, value, nth),
+                message,
+            }
         };
         let cut = parsed.listing.cut_off.value;
         if !(cut > 0.0 && cut <= 100.0) {
-            return Err(bad(format!(
-                "listing.cut_off {cut} must be a share of the contents above 0 and at most 100 %"
-            )));
+            return Err(bad_at(
+                "listing",
+                "cut_off",
+                "",
+                0,
+                format!(
+                    "listing.cut_off {cut} must be a share of the contents above 0 and at most 100 %"
+                ),
+            ));
         }
         let ph = &parsed.listing.extreme_ph;
         if ph.at_or_below.partial_cmp(&ph.at_or_above) != Some(std::cmp::Ordering::Less) {
-            return Err(bad(
+            return Err(bad_at(
+                "listing",
+                "extreme_ph",
+                "",
+                0,
                 "listing.extreme_ph: at_or_below must lie below at_or_above".into(),
             ));
         }
         let known = |id: &str| parsed.hazard_classes.iter().any(|h| h.id == id);
         if !known(&ph.hazard) {
-            return Err(bad(format!(
-                "listing.extreme_ph names `{}`, which is not in hazard_classes",
-                ph.hazard
-            )));
+            return Err(bad_at(
+                "listing",
+                "hazard",
+                &ph.hazard,
+                0,
+                format!(
+                    "listing.extreme_ph names `{}`, which is not in hazard_classes",
+                    ph.hazard
+                ),
+            ));
         }
         for (i, h) in parsed.hazard_classes.iter().enumerate() {
             if parsed.hazard_classes[..i].iter().any(|x| x.id == h.id) {
-                return Err(bad(format!("hazard class `{}` appears twice", h.id)));
+                return Err(bad_at(
+                    "hazard_classes",
+                    "id",
+                    &h.id,
+                    1,
+                    format!("hazard class `{}` appears twice", h.id),
+                ));
             }
         }
         for (i, c) in parsed.classes.iter().enumerate() {
+            let bad = |nth: usize, m: String| bad_at("classes", "class", &c.class, nth, m);
             if cat.class(&c.class).is_none() {
-                return Err(bad(format!(
-                    "`{}` is not a class of data/classes.yaml",
-                    c.class
-                )));
+                return Err(bad(
+                    0,
+                    format!("`{}` is not a class of data/classes.yaml", c.class),
+                ));
             }
             if parsed.classes[..i].iter().any(|x| x.class == c.class) {
-                return Err(bad(format!("class `{}` appears twice", c.class)));
+                return Err(bad(1, format!("class `{}` appears twice", c.class)));
             }
             if let Some(g) = c.ghs.iter().find(|g| !known(g)) {
-                return Err(bad(format!(
-                    "class `{}` names `{g}`, which is not in hazard_classes",
-                    c.class
-                )));
+                return Err(bad(
+                    0,
+                    format!(
+                        "class `{}` names `{g}`, which is not in hazard_classes",
+                        c.class
+                    ),
+                ));
             }
             if c.source.trim().is_empty() {
-                return Err(bad(format!("class `{}` needs a source", c.class)));
+                return Err(bad(0, format!("class `{}` needs a source", c.class)));
             }
         }
         Ok(GhsTable {

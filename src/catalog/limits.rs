@@ -2,7 +2,7 @@
 
 use serde::{Deserialize, Serialize};
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 pub struct LimitsFile {
     #[allow(dead_code)]
     #[serde(default)]
@@ -11,14 +11,14 @@ pub struct LimitsFile {
     pub gases: Vec<GasLimits>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 pub struct Fallback {
     pub stop_without_idlh: Derivation,
     pub review_without_short_term: Derivation,
 }
 
 /// A level derived from another one by a factor, with the practice that justifies it.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 pub struct Derivation {
     pub from: String,
     pub factor: f64,
@@ -46,7 +46,7 @@ pub enum GasKind {
     Flammable,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 pub struct GasLimits {
     pub gas: String,
     pub name: String,
@@ -65,7 +65,7 @@ pub struct GasLimits {
 }
 
 /// For a flammable gas: its lower flammable limit in air.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 pub struct Flammability {
     pub lfl: Level,
 }

@@ -15,7 +15,8 @@ pub mod species;
 pub mod substances;
 pub mod volatility;
 
-use std::collections::HashMap;
+use serde::{Deserialize, Serialize};
+use std::collections::{BTreeMap, HashMap};
 
 pub use limits::{GasKind, GasLimits, JudgedLevels, LimitsFile};
 pub use species::{Family, StrongIon};
@@ -23,11 +24,11 @@ pub use substances::{HazardClass, PhysicalState};
 
 use substances::{ClassesFile, SubstanceEntry, SubstancesFile};
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
 pub struct FamilyId(pub usize);
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
 pub struct IonId(pub usize);
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
 pub struct SubstanceId(pub usize);
 
 /// The text of every data file, named by the file it came from (for error messages).
@@ -46,7 +47,7 @@ pub struct DataSources<'a> {
 }
 
 /// A commercial solution: one millilitre holds `solute_mol_per_ml` of the solute.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SolutionForm {
     pub solute: SubstanceId,
     pub mass_percent: f64,
@@ -54,7 +55,7 @@ pub struct SolutionForm {
 }
 
 /// A substance with every reference resolved.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Substance {
     pub name: String,
     pub synonyms: Vec<String>,
@@ -81,12 +82,107 @@ impl Substance {
     }
 }
 
+/// A problem in a data file, with the line where it can be found when it can.
 #[derive(Debug, thiserror::Error)]
 pub enum CatalogError {
-    #[error("{file}: {message}")]
-    Parse { file: String, message: String },
-    #[error("{file}: {message}")]
-    Invalid { file: String, message: String },
+    #[error("{}: {message}", at(file, *line))]
+    Parse {
+        file: String,
+        line: Option<usize>,
+        message: String,
+    },
+    #[error("{}: {message}", at(file, *line))]
+    Invalid {
+        file: String,
+        line: Option<usize>,
+        message: String,
+    },
+}
+
+/// `file:line`, or the file alone when the line is not known.
+fn at(file: &str, line: Option<usize>) -> String {
+    match line {
+        Some(l) => format!("{file}:{l}"),
+        None => file.to_string(),
+    }
+}
+
+/// The line (1-based) of the `nth` (from 0) list item or key written `key: value` in a
+/// data file, with the value compared without quotes; searched from the top-level
+/// `section:` on, when given. Error messages name an entry; this finds it in the text.
+pub(crate) fn line_of(
+    text: &str,
+    section: Option<&str>,
+    key: &str,
+    value: &str,
+    nth: usize,
+) -> Option<usize> {
+    let start = match section {
+        Some(sec) => {
+            let head = format!("{sec}:");
+            text.lines().position(|l| l.starts_with(&head))?
+        }
+        None => 0,
+    };
+    let needle = format!("{key}:");
+    text.lines()
+        .enumerate()
+        .skip(start)
+        .filter(|(_, l)| {
+            let t = l.trim_start();
+            let t = t.strip_prefix("- ").unwrap_or(t).trim_start();
+            let Some(rest) = t.strip_prefix(&needle) else {
+                return false;
+            };
+            let rest = rest.split(" #").next().unwrap_or("").trim();
+            let unquoted = rest
+                .strip_prefix('"')
+                .and_then(|r| r.strip_suffix('"'))
+                .or_else(|| rest.strip_prefix('\'').and_then(|r| r.strip_suffix('\'')))
+                .unwrap_or(rest);
+            unquoted == value
+        })
+        .nth(nth)
+        .map(|(i, _)| i + 1)
+}
+
+/// One data file: its name for messages and its text for finding lines.
+#[derive(Clone, Copy)]
+struct Src<'a> {
+    file: &'a str,
+    text: &'a str,
+}
+
+impl<'a> Src<'a> {
+    fn new((file, text): (&'a str, &'a str)) -> Self {
+        Src { file, text }
+    }
+    /// An error about the file as a whole.
+    fn err(&self, message: String) -> CatalogError {
+        self.err_line(None, message)
+    }
+    fn err_line(&self, line: Option<usize>, message: String) -> CatalogError {
+        CatalogError::Invalid {
+            file: self.file.to_string(),
+            line,
+            message,
+        }
+    }
+    /// An error about the entry written `key: value` (its `nth` occurrence, from 0).
+    fn err_at(&self, key: &str, value: &str, nth: usize, message: String) -> CatalogError {
+        self.err_line(line_of(self.text, None, key, value, nth), message)
+    }
+    /// The same, searching from the top-level `section:` on.
+    fn err_in(
+        &self,
+        section: &str,
+        key: &str,
+        value: &str,
+        nth: usize,
+        message: String,
+    ) -> CatalogError {
+        self.err_line(line_of(self.text, Some(section), key, value, nth), message)
+    }
 }
 
 #[derive(Debug, Clone, serde::Deserialize)]
@@ -100,7 +196,7 @@ struct ReleasesFile {
 }
 
 /// What a substance must meet to release its gas.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Deserialize, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Trigger {
     Water,
@@ -109,7 +205,7 @@ pub enum Trigger {
 }
 
 /// A stoichiometric gas release: `per_mole` mol of `gas` per mol of the substance.
-#[derive(Debug, Clone, serde::Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Release {
     pub substance: String,
@@ -121,13 +217,20 @@ pub struct Release {
 }
 
 /// A combined species with its parents as (family, species index).
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct CombinedSpecies {
     pub first: (FamilyId, usize),
     pub second: (FamilyId, usize),
     pub data: combined::Combined,
 }
 
+/// The chemistry tables, every cross-reference resolved.
+///
+/// The program does not build it from YAML at start-up: `build.rs` loads the data files
+/// through [`Catalog::load`] and stores the result as a binary image (postcard), which
+/// `embedded::catalog` reads back. Every field is therefore serialized; the indexes are
+/// written in key order so that the image of the same data is always the same bytes.
+#[derive(Serialize, Deserialize)]
 pub struct Catalog {
     pub families: Vec<Family>,
     pub strong_ions: Vec<StrongIon>,
@@ -156,10 +259,23 @@ pub struct Catalog {
     /// kJ/mol for H+ + OH- → H2O, as the heat data file states it (a check on water's dh).
     pub neutralization_kj: f64,
     pub water: FamilyId,
+    #[serde(serialize_with = "in_key_order")]
     family_index: HashMap<String, FamilyId>,
+    #[serde(serialize_with = "in_key_order")]
     ion_index: HashMap<String, IonId>,
+    #[serde(serialize_with = "in_key_order")]
     substance_index: HashMap<String, SubstanceId>,
+    #[serde(serialize_with = "in_key_order")]
     gas_index: HashMap<String, usize>,
+}
+
+/// Writes a map in the order of its keys (a `HashMap` iterates in a different order in
+/// every process, which would make the image of the same data differ from build to build).
+fn in_key_order<S: serde::Serializer, V: Serialize>(
+    map: &HashMap<String, V>,
+    s: S,
+) -> Result<S::Ok, S::Error> {
+    map.iter().collect::<BTreeMap<_, _>>().serialize(s)
 }
 
 /// Adds `n` of `id` to a list of (id, count).
@@ -184,6 +300,7 @@ pub fn normalize_name(s: &str) -> String {
 fn parse<T: serde::de::DeserializeOwned>((file, text): (&str, &str)) -> Result<T, CatalogError> {
     serde_yaml::from_str(text).map_err(|e| CatalogError::Parse {
         file: file.to_string(),
+        line: e.location().map(|l| l.line()),
         message: e.to_string(),
     })
 }
@@ -201,48 +318,58 @@ impl Catalog {
         let density_file: density::DensityFile = parse(src.density)?;
         let dilution_file: dilution::DilutionFile = parse(src.dilution)?;
         let volatility_file: volatility::VolatilityFile = parse(src.volatility)?;
-        let bad = |file: &str, message: String| CatalogError::Invalid {
-            file: file.to_string(),
-            message,
-        };
-        let species_file = src.species.0;
-        let substances_file = src.substances.0;
+        let species_src = Src::new(src.species);
+        let substances_src = Src::new(src.substances);
 
         let mut family_index = HashMap::new();
         for (i, f) in species.families.iter().enumerate() {
-            validate_family(f).map_err(|m| bad(species_file, format!("family `{}`: {m}", f.id)))?;
+            validate_family(f).map_err(|m| {
+                species_src.err_in(
+                    "families",
+                    "id",
+                    &f.id,
+                    0,
+                    format!("family `{}`: {m}", f.id),
+                )
+            })?;
             if family_index.insert(f.id.clone(), FamilyId(i)).is_some() {
-                return Err(bad(
-                    species_file,
+                return Err(species_src.err_in(
+                    "families",
+                    "id",
+                    &f.id,
+                    1,
                     format!("family `{}` appears twice", f.id),
                 ));
             }
         }
         let water = *family_index.get("water").ok_or_else(|| {
-            bad(
-                species_file,
-                "the `water` family (pKw and its equation) is missing".into(),
-            )
+            species_src.err("the `water` family (pKw and its equation) is missing".into())
         })?;
         if species.families[water.0].kw_equation.is_none() {
-            return Err(bad(
-                species_file,
+            return Err(species_src.err_in(
+                "families",
+                "id",
+                "water",
+                0,
                 "family `water` needs a kw_equation block".into(),
             ));
         }
         let mut ion_index = HashMap::new();
         for (i, ion) in species.strong_ions.iter().enumerate() {
+            let at_ion = |nth: usize, m: String| {
+                species_src.err_in("strong_ions", "formula", &ion.formula, nth, m)
+            };
             check_formula_charge(&ion.formula, ion.charge)
-                .map_err(|m| bad(species_file, format!("strong ion: {m}")))?;
+                .map_err(|m| at_ion(0, format!("strong ion: {m}")))?;
             if ion.charge == 0 {
-                return Err(bad(
-                    species_file,
+                return Err(at_ion(
+                    0,
                     format!("strong ion `{}` has charge 0", ion.formula),
                 ));
             }
             if ion_index.insert(ion.formula.clone(), IonId(i)).is_some() {
-                return Err(bad(
-                    species_file,
+                return Err(at_ion(
+                    1,
                     format!("strong ion `{}` appears twice", ion.formula),
                 ));
             }
@@ -253,7 +380,9 @@ impl Catalog {
         let mut resolved = Vec::with_capacity(substances.substances.len());
         let mut substance_index = HashMap::new();
         for (i, e) in substances.substances.iter().enumerate() {
-            let ctx = |m: String| bad(substances_file, format!("substance `{}`: {m}", e.name));
+            let ctx = |m: String| {
+                substances_src.err_at("name", &e.name, 0, format!("substance `{}`: {m}", e.name))
+            };
             let gives = e.gives.clone().unwrap_or_default();
             let mut fams = Vec::new();
             for (id, n) in &gives.families {
@@ -306,7 +435,12 @@ impl Catalog {
             });
             let key = normalize_name(&e.name);
             if substance_index.insert(key, SubstanceId(i)).is_some() {
-                return Err(ctx("the name appears twice".into()));
+                return Err(substances_src.err_at(
+                    "name",
+                    &e.name,
+                    1,
+                    format!("substance `{}`: the name appears twice", e.name),
+                ));
             }
         }
         // Synonyms, formulas and CAS numbers come second so that a name always wins.
@@ -328,38 +462,21 @@ impl Catalog {
                 continue;
             };
             let e = &resolved[i].entry;
+            let ctx = |m: String| {
+                substances_src.err_at("name", &e.name, 0, format!("substance `{}`: {m}", e.name))
+            };
             let sid = *substance_index
                 .get(&normalize_name(&solute_name))
-                .ok_or_else(|| {
-                    bad(
-                        substances_file,
-                        format!(
-                            "substance `{}`: solute `{solute_name}` is not in the file",
-                            e.name
-                        ),
-                    )
-                })?;
+                .ok_or_else(|| ctx(format!("solute `{solute_name}` is not in the file")))?;
             let solute = resolved[sid.0].clone();
             if solute.solution.is_some() || solute.state == PhysicalState::Solution {
-                return Err(bad(
-                    substances_file,
-                    format!(
-                        "substance `{}`: solute `{solute_name}` is itself a solution",
-                        e.name
-                    ),
-                ));
+                return Err(ctx(format!("solute `{solute_name}` is itself a solution")));
             }
             let mass_percent = e.mass_percent.as_ref().map(|m| m.value).unwrap_or(0.0);
             let density = e.density.as_ref().map(|d| d.value).unwrap_or(0.0);
             let molar_mass = solute.molar_mass.unwrap_or(f64::NAN);
             if !(mass_percent > 0.0 && mass_percent <= 100.0 && density > 0.0) {
-                return Err(bad(
-                    substances_file,
-                    format!(
-                        "substance `{}`: mass_percent and density must be positive",
-                        e.name
-                    ),
-                ));
+                return Err(ctx("mass_percent and density must be positive".into()));
             }
             let mut families = solute.families.clone();
             let mut ions = solute.ions.clone();
@@ -367,21 +484,11 @@ impl Catalog {
                 let cid = *substance_index
                     .get(&normalize_name(&co.substance))
                     .ok_or_else(|| {
-                        bad(
-                            substances_file,
-                            format!(
-                                "substance `{}`: `also_contains` names unknown `{}`",
-                                e.name, co.substance
-                            ),
-                        )
+                        ctx(format!("`also_contains` names unknown `{}`", co.substance))
                     })?;
                 if !(co.per_mole > 0.0 && co.per_mole.is_finite()) || co.source.trim().is_empty() {
-                    return Err(bad(
-                        substances_file,
-                        format!(
-                            "substance `{}`: `also_contains` needs a positive per_mole and a source",
-                            e.name
-                        ),
+                    return Err(ctx(
+                        "`also_contains` needs a positive per_mole and a source".into(),
                     ));
                 }
                 let co_s = &resolved[cid.0];
@@ -407,24 +514,22 @@ impl Catalog {
         }
 
         let mut linked = Vec::new();
+        let combined_src = Src::new(src.combined);
         for c in combined.combined {
-            let file = src.combined.0;
+            let bad = |m: String| combined_src.err_at("id", &c.id, 0, m);
             let parent = |p: &combined::Parent| -> Result<(FamilyId, usize), CatalogError> {
-                let fid = *family_index.get(&p.family).ok_or_else(|| {
-                    bad(file, format!("`{}`: unknown family `{}`", c.id, p.family))
-                })?;
+                let fid = *family_index
+                    .get(&p.family)
+                    .ok_or_else(|| bad(format!("`{}`: unknown family `{}`", c.id, p.family)))?;
                 let idx = species.families[fid.0]
                     .species
                     .iter()
                     .position(|s| s.formula == p.species)
                     .ok_or_else(|| {
-                        bad(
-                            file,
-                            format!(
-                                "`{}`: family `{}` has no species `{}`",
-                                c.id, p.family, p.species
-                            ),
-                        )
+                        bad(format!(
+                            "`{}`: family `{}` has no species `{}`",
+                            c.id, p.family, p.species
+                        ))
                     })?;
                 Ok((fid, idx))
             };
@@ -434,13 +539,10 @@ impl Catalog {
                 + species.families[second.0 .0].species[second.1].charge
                 + c.protons;
             if z != c.charge {
-                return Err(bad(
-                    file,
-                    format!(
-                        "`{}`: charges do not balance ({} on the left, {} stated)",
-                        c.id, z, c.charge
-                    ),
-                ));
+                return Err(bad(format!(
+                    "`{}`: charges do not balance ({} on the left, {} stated)",
+                    c.id, z, c.charge
+                )));
             }
             if first.0 == second.0
                 || linked.iter().any(|l: &CombinedSpecies| {
@@ -448,7 +550,10 @@ impl Catalog {
                         || [l.first.0, l.second.0].contains(&second.0)
                 })
             {
-                return Err(bad(file, format!("`{}`: each family may take part in one combined species, with another family", c.id)));
+                return Err(bad(format!(
+                    "`{}`: each family may take part in one combined species, with another family",
+                    c.id
+                )));
             }
             linked.push(CombinedSpecies {
                 first,
@@ -458,56 +563,54 @@ impl Catalog {
         }
 
         let mut resolved_releases = Vec::new();
+        let releases_src = Src::new(src.releases);
         for r in releases.releases {
+            let bad = |m: String| releases_src.err_at("substance", &r.substance, 0, m);
             let sid = *substance_index
                 .get(&normalize_name(&r.substance))
-                .ok_or_else(|| {
-                    bad(
-                        src.releases.0,
-                        format!("unknown substance `{}`", r.substance),
-                    )
-                })?;
+                .ok_or_else(|| bad(format!("unknown substance `{}`", r.substance)))?;
             if !(r.per_mole > 0.0 && r.per_mole.is_finite()) || r.with.is_empty() {
-                return Err(bad(
-                    src.releases.0,
-                    format!(
-                        "`{}`: per_mole must be positive and `with` not empty",
-                        r.substance
-                    ),
-                ));
+                return Err(bad(format!(
+                    "`{}`: per_mole must be positive and `with` not empty",
+                    r.substance
+                )));
             }
             resolved_releases.push((sid, r));
         }
 
-        let lookup = |file: &str, name: &str| {
+        // A table's entry names its substance under `key`.
+        let lookup = |src: Src<'_>, key: &str, name: &str| {
             substance_index
                 .get(&normalize_name(name))
                 .copied()
-                .ok_or_else(|| bad(file, format!("unknown substance `{name}`")))
+                .ok_or_else(|| src.err_at(key, name, 0, format!("unknown substance `{name}`")))
         };
         let n = resolved.len();
         // What a substance dissolves as: itself, or a commercial solution's solute.
         let dissolves_as =
             |i: usize| -> usize { resolved[i].solution.as_ref().map_or(i, |sol| sol.solute.0) };
 
+        let density_src = Src::new(src.density);
         if density_file.water.source.trim().is_empty() {
-            return Err(bad(src.density.0, "the water density has no source".into()));
+            return Err(density_src.err_line(
+                line_of(density_src.text, None, "water", "", 0),
+                "the water density has no source".into(),
+            ));
         }
         let water_density = density_file.water.density;
         let mut density_tables = Vec::new();
         let mut table_of_substance: HashMap<usize, usize> = HashMap::new();
         for e in &density_file.solutes {
-            let sid = lookup(src.density.0, &e.substance)?;
-            let t =
-                density::DensityTable::new(e, water_density).map_err(|m| bad(src.density.0, m))?;
+            let at = |nth: usize, m: String| {
+                density_src.err_in("solutes", "substance", &e.substance, nth, m)
+            };
+            let sid = lookup(density_src, "substance", &e.substance)?;
+            let t = density::DensityTable::new(e, water_density).map_err(|m| at(0, m))?;
             if table_of_substance
                 .insert(sid.0, density_tables.len())
                 .is_some()
             {
-                return Err(bad(
-                    src.density.0,
-                    format!("`{}` appears twice", e.substance),
-                ));
+                return Err(at(1, format!("`{}` appears twice", e.substance)));
             }
             density_tables.push(t);
         }
@@ -555,8 +658,10 @@ impl Catalog {
 
         let mut dilution_curves = Vec::new();
         let mut curve_of_substance: HashMap<usize, usize> = HashMap::new();
+        let dilution_src = Src::new(src.dilution);
         for e in &dilution_file.curves {
-            let sid = lookup(src.dilution.0, &e.solute)?;
+            let at = |nth: usize, m: String| dilution_src.err_at("solute", &e.solute, nth, m);
+            let sid = lookup(dilution_src, "solute", &e.solute)?;
             let mut steps = Vec::new();
             for sr in &e.weak_steps_included {
                 let fam = family_index
@@ -564,8 +669,8 @@ impl Catalog {
                     .map(|f| &species.families[f.0])
                     .filter(|f| sr.step < f.steps.len())
                     .ok_or_else(|| {
-                        bad(
-                            src.dilution.0,
+                        at(
+                            0,
                             format!(
                                 "`{}`: no step {} in family `{}`",
                                 e.solute, sr.step, sr.family
@@ -578,12 +683,12 @@ impl Catalog {
                     protons_before: sr.step as f64,
                 });
             }
-            let c = dilution::DilutionCurve::new(e, steps).map_err(|m| bad(src.dilution.0, m))?;
+            let c = dilution::DilutionCurve::new(e, steps).map_err(|m| at(0, m))?;
             if curve_of_substance
                 .insert(sid.0, dilution_curves.len())
                 .is_some()
             {
-                return Err(bad(src.dilution.0, format!("`{}` appears twice", e.solute)));
+                return Err(at(1, format!("`{}` appears twice", e.solute)));
             }
             dilution_curves.push(c);
         }
@@ -593,17 +698,17 @@ impl Catalog {
 
         let mut volatilities = Vec::new();
         let mut volatility_of_substance: HashMap<usize, usize> = HashMap::new();
+        let volatility_src = Src::new(src.volatility);
         for e in &volatility_file.solvents {
-            let sid = lookup(src.volatility.0, &e.substance)?;
-            let v = volatility::Volatility::from_entry(e).map_err(|m| bad(src.volatility.0, m))?;
+            let at =
+                |nth: usize, m: String| volatility_src.err_at("substance", &e.substance, nth, m);
+            let sid = lookup(volatility_src, "substance", &e.substance)?;
+            let v = volatility::Volatility::from_entry(e).map_err(|m| at(0, m))?;
             if volatility_of_substance
                 .insert(sid.0, volatilities.len())
                 .is_some()
             {
-                return Err(bad(
-                    src.volatility.0,
-                    format!("`{}` appears twice", e.substance),
-                ));
+                return Err(at(1, format!("`{}` appears twice", e.substance)));
             }
             volatilities.push(v);
         }
@@ -612,10 +717,12 @@ impl Catalog {
             .collect();
 
         let mut gas_index = HashMap::new();
+        let limits_src = Src::new(src.limits);
         for (i, g) in limits.gases.iter().enumerate() {
+            let at = |nth: usize, m: String| limits_src.err_in("gases", "gas", &g.gas, nth, m);
             if g.kinds.is_empty() || g.kinds_source.trim().is_empty() {
-                return Err(bad(
-                    src.limits.0,
+                return Err(at(
+                    0,
                     format!(
                         "gas `{}`: `kinds` needs at least one kind and a kinds_source",
                         g.gas
@@ -623,7 +730,7 @@ impl Catalog {
                 ));
             }
             if gas_index.insert(g.gas.clone(), i).is_some() {
-                return Err(bad(src.limits.0, format!("gas `{}` appears twice", g.gas)));
+                return Err(at(1, format!("gas `{}` appears twice", g.gas)));
             }
         }
 

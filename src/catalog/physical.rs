@@ -1,6 +1,6 @@
 //! Physical constants and water properties from `data/physical.yaml`.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 #[derive(Debug, Clone, Deserialize)]
 pub struct PhysicalFile {
@@ -12,7 +12,7 @@ pub struct PhysicalFile {
 }
 
 /// Physical bounds on what a user can write.
-#[derive(Debug, Clone, Copy, Deserialize)]
+#[derive(Debug, Clone, Copy, Deserialize, Serialize)]
 pub struct Bounds {
     /// g/mL: no aqueous solution is denser, so none holds more than this per mL.
     pub densest_aqueous_solution: Value,
@@ -21,7 +21,7 @@ pub struct Bounds {
 }
 
 /// The evaporation-rate correlation, in the units of its source (see physical.yaml).
-#[derive(Debug, Clone, Copy, Deserialize)]
+#[derive(Debug, Clone, Copy, Deserialize, Serialize)]
 pub struct Evaporation {
     pub coefficient: f64,
     pub wind_exponent: f64,
@@ -29,19 +29,19 @@ pub struct Evaporation {
 }
 
 /// log10(p / mmHg) = a − b / (c + t/°C).
-#[derive(Debug, Clone, Copy, Deserialize)]
+#[derive(Debug, Clone, Copy, Deserialize, Serialize)]
 pub struct Antoine {
     pub a: f64,
     pub b: f64,
     pub c: f64,
 }
 
-#[derive(Debug, Clone, Copy, Deserialize)]
+#[derive(Debug, Clone, Copy, Deserialize, Serialize)]
 pub struct Value {
     pub value: f64,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 pub struct Constants {
     pub gas_constant: Value,
     pub standard_pressure: Value,
@@ -49,7 +49,7 @@ pub struct Constants {
     pub kelvin_offset: Value,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 pub struct DaviesData {
     pub b: Value,
     pub a_prefactor: Value,
@@ -57,7 +57,7 @@ pub struct DaviesData {
     pub density: Density,
 }
 
-#[derive(Debug, Clone, Copy, Deserialize)]
+#[derive(Debug, Clone, Copy, Deserialize, Serialize)]
 pub struct Permittivity {
     pub e0: f64,
     pub e1: f64,
@@ -65,7 +65,7 @@ pub struct Permittivity {
     pub e3: f64,
 }
 
-#[derive(Debug, Clone, Copy, Deserialize)]
+#[derive(Debug, Clone, Copy, Deserialize, Serialize)]
 pub struct Density {
     pub d0: f64,
     pub d1: f64,
@@ -73,7 +73,7 @@ pub struct Density {
 }
 
 /// The constants the engine uses, flattened for speed.
-#[derive(Debug, Clone, Copy)]
+#[derive(Debug, Clone, Copy, Serialize, Deserialize)]
 pub struct Physical {
     /// J/(mol K) = Pa m3/(mol K)
     pub r: f64,

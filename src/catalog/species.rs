@@ -1,6 +1,6 @@
 //! Acid–base families as they stand in `data/species.yaml`.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -14,7 +14,7 @@ pub struct SpeciesFile {
 }
 
 /// One acid–base family: its species from most to least protonated, and the steps between.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Family {
     pub id: String,
@@ -29,7 +29,7 @@ pub struct Family {
     pub note: Option<String>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Species {
     pub formula: String,
@@ -40,7 +40,7 @@ pub struct Species {
 }
 
 /// One deprotonation: species i → species i+1 + H+.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Step {
     pub pka: f64,
@@ -53,7 +53,7 @@ pub struct Step {
 }
 
 /// The neutral species that can leave the liquid, with its Henry's law solubility.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Volatile {
     pub species: String,
@@ -72,7 +72,7 @@ pub struct Volatile {
 }
 
 /// λ(T) = a + b/T + c/T², kg/mol.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct SelfInteraction {
     pub a: f64,
@@ -88,7 +88,7 @@ impl SelfInteraction {
 }
 
 /// pKw(T) = a/T + b + c·T.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct KwEquation {
     pub a: f64,
@@ -99,7 +99,7 @@ pub struct KwEquation {
     pub source: String,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct StrongIon {
     pub formula: String,
@@ -118,7 +118,7 @@ impl Family {
 }
 
 /// The gas a combined species forms, with its Henry's law solubility.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct CombinedVolatile {
     pub gas: String,

@@ -1,6 +1,6 @@
 //! Substances as they stand in `data/substances.yaml`, and hazard classes.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
 #[derive(Debug, Clone, Deserialize)]
@@ -13,7 +13,7 @@ pub struct SubstancesFile {
     pub substances: Vec<SubstanceEntry>,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum PhysicalState {
     Solid,
@@ -22,7 +22,7 @@ pub enum PhysicalState {
     Solution,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Gives {
     #[serde(default)]
@@ -32,7 +32,7 @@ pub struct Gives {
 }
 
 /// A number with the compilation it came from.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Sourced {
     pub value: f64,
@@ -41,7 +41,7 @@ pub struct Sourced {
     pub note: Option<String>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct SubstanceEntry {
     pub name: String,
@@ -77,7 +77,7 @@ pub struct SubstanceEntry {
 }
 
 /// A substance that comes with a commercial solution's solute.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct CoSolute {
     pub substance: String,
@@ -98,7 +98,7 @@ pub struct ClassesFile {
     pub classes: Vec<HazardClass>,
 }
 
-#[derive(Debug, Clone, Deserialize, serde::Serialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct HazardClass {
     pub id: String,

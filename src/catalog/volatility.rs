@@ -1,7 +1,7 @@
 //! Volatility of solvents and other liquids that take no part in proton transfer
 //! (`data/volatility.yaml`): Henry's law constant, vapour pressure, solubility in water.
 
-use serde::Deserialize;
+use serde::{Deserialize, Serialize};
 
 #[derive(Debug, Clone, Deserialize)]
 pub struct VolatilityFile {
@@ -28,7 +28,7 @@ pub struct SolventEntry {
 }
 
 /// log10(p / mmHg) = a − b / (c + t/°C)
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, Serialize)]
 pub struct AntoineEntry {
     pub a: f64,
     pub b: f64,
@@ -41,7 +41,7 @@ pub struct AntoineEntry {
 }
 
 /// A solvent's volatility, ready to evaluate.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Volatility {
     pub hcp: f64,
     pub hcp_b: f64,

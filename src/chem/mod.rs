@@ -7,4 +7,6 @@ pub mod speciation;
 pub mod temperature;
 
 pub use mixture::{Closure, Mixture};
-pub use speciation::{solve, Equilibrium, FamilyState, GasState, SolveError, SolverSettings};
+pub use speciation::{
+    solve, solve_from, Equilibrium, FamilyState, GasState, SolveError, SolverSettings,
+};

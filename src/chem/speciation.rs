@@ -351,8 +351,68 @@ fn term_charge(t: &Term, x: f64) -> (f64, f64) {
     (q, dq)
 }
 
+/// A family's constants at one temperature.
+#[derive(Clone, Copy)]
+struct FamilyConstants {
+    ka: [f64; MAX_STEPS],
+    /// Henry's law constant of its volatile form (0 when it has none).
+    hcp: f64,
+}
+
+thread_local! {
+    /// The constants of every family at the temperature last solved at: states along a
+    /// pour mostly share a temperature, so each family's van 't Hoff and Henry factors are
+    /// worked out once per temperature rather than once per solve.
+    static CONSTANTS: std::cell::RefCell<(u64, usize, Vec<Option<FamilyConstants>>)> =
+        const { std::cell::RefCell::new((u64::MAX, usize::MAX, Vec::new())) };
+}
+
+/// The constants of family `fid` at `t_k`, from the per-thread cache when it holds them.
+fn constants_at(cat: &Catalog, fid: FamilyId, t_k: f64) -> FamilyConstants {
+    let compute = || {
+        let fam = cat.family(fid);
+        let phys = &cat.physical;
+        let mut ka = [0.0; MAX_STEPS];
+        for (j, v) in ka.iter_mut().enumerate().take(fam.steps.len()) {
+            *v = (log_ka(phys, fam, j, t_k) * std::f64::consts::LN_10).exp();
+        }
+        let hcp = fam
+            .volatile
+            .as_ref()
+            .map_or(0.0, |v| henry_hcp(phys, v, t_k));
+        FamilyConstants { ka, hcp }
+    };
+    // The cache is keyed by the temperature and by which catalog filled it (its address and
+    // size), so that two catalogs never share constants.
+    let owner = cat as *const Catalog as usize ^ cat.families.len();
+    CONSTANTS.with(|c| {
+        let Ok(mut c) = c.try_borrow_mut() else {
+            return compute();
+        };
+        if c.0 != t_k.to_bits() || c.1 != owner {
+            c.0 = t_k.to_bits();
+            c.1 = owner;
+            c.2.clear();
+            c.2.resize(cat.families.len(), None);
+        }
+        *c.2[fid.0].get_or_insert_with(compute)
+    })
+}
+
 /// Solves the equilibrium of `m` and its headspace.
 pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibrium, SolveError> {
+    solve_from(cat, m, s, None)
+}
+
+/// Solves the equilibrium of `m`, starting from the pH and ionic strength of `near` (a
+/// neighbouring state: the previous point along a pour, or the same mixture at another
+/// temperature). The result does not depend on the start, only the work does.
+pub fn solve_from(
+    cat: &Catalog,
+    m: &Mixture,
+    s: &SolverSettings,
+    near: Option<&Equilibrium>,
+) -> Result<Equilibrium, SolveError> {
     if !(m.liquid_l > 0.0 && m.liquid_l.is_finite()) {
         return Err(SolveError::NoLiquid);
     }
@@ -404,15 +464,10 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
         if steps > MAX_STEPS {
             return Err(SolveError::TooManySteps(fam.id.clone()));
         }
-        let mut ka = [0.0; MAX_STEPS];
-        for (j, v) in ka.iter_mut().enumerate().take(steps) {
-            *v = 10f64.powf(log_ka(phys, fam, j, t_k));
-        }
+        let k = constants_at(cat, fid, t_k);
+        let ka = k.ka;
         let (gas_factor, volatile) = match (&fam.volatile, fam.volatile_index()) {
-            (Some(v), Some(idx)) if vg > 0.0 => {
-                let hcp = henry_hcp(phys, v, t_k);
-                ((vg / vl) / (hcp * phys.r * t_k), idx)
-            }
+            (Some(_), Some(idx)) if vg > 0.0 => ((vg / vl) / (k.hcp * phys.r * t_k), idx),
             (Some(_), Some(idx)) => (0.0, idx),
             _ => (0.0, 0),
         };
@@ -435,7 +490,7 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
             lambda,
         });
     }
-    let kw = 10f64.powf(log_kw(phys, cat.family(cat.water), t_k));
+    let kw = (log_kw(phys, cat.family(cat.water), t_k) * std::f64::consts::LN_10).exp();
     let mut links = Vec::new();
     for (ci, c) in cat.combined.iter().enumerate() {
         let find = |f: FamilyId| term_of.iter().position(|&t| t == f);
@@ -459,7 +514,7 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
             second: (b, c.second.1),
             protons: d.protons,
             charge: d.charge,
-            k_form: 10f64.powf(log_k),
+            k_form: (log_k * std::f64::consts::LN_10).exp(),
             k_eff: 0.0,
             gas_factor,
         });
@@ -474,16 +529,30 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
         gamma1: 1.0,
     };
 
-    // Ionic strength: start from the strong ions plus each family half-charged.
-    let mut ionic = 0.5 * strong_ionic + 0.5 * p.terms.iter().map(|t| t.c_total).sum::<f64>();
-    let mut ln_x = (1e-7f64).ln();
+    // Ionic strength: from the neighbouring state, or the strong ions plus each family
+    // half-charged.
+    let (mut ionic, mut ln_x) = match near {
+        Some(e) if e.ionic_strength.is_finite() && e.ph.is_finite() => {
+            (e.ionic_strength, -e.ph * std::f64::consts::LN_10)
+        }
+        _ => (
+            0.5 * strong_ionic + 0.5 * p.terms.iter().map(|t| t.c_total).sum::<f64>(),
+            (1e-7f64).ln(),
+        ),
+    };
     let mut iterations = 0;
     let mut limited = false;
     let mut converged = false;
-    for _ in 0..100 {
+    let debye_huckel_a = phys.debye_huckel_a(t_k);
+    for pass in 0..100 {
         limited = ionic > s.activity_limit;
-        let g = Gammas::davies(phys, t_k, ionic.min(s.activity_limit));
+        let g = Gammas::davies_with_a(phys, debye_huckel_a, ionic.min(s.activity_limit));
         p.set_activity(&g);
+        // The charge balance is negative at the lowest a(H+) and positive at the highest
+        // whatever the activity coefficients: one check per solve is enough.
+        if pass == 0 && (p.eval(LN_X_LO.exp()).f > 0.0 || p.eval(LN_X_HI.exp()).f < 0.0) {
+            return Err(SolveError::NoBracket);
+        }
         let (root, its) = find_root(&p, ln_x, s)?;
         iterations += its;
         ln_x = root;
@@ -516,13 +585,14 @@ pub fn solve(cat: &Catalog, m: &Mixture, s: &SolverSettings) -> Result<Equilibri
     ))
 }
 
-/// Safeguarded Newton in ln x within a bracket where the charge balance changes sign.
+/// The bracket of ln a(H+) the solver searches: pH 22 to pH −4.
+const LN_X_LO: f64 = -50.65687204586901; // ln 1e-22
+const LN_X_HI: f64 = 9.210340371976184; // ln 1e4
+
+/// Safeguarded Newton in ln x within a bracket where the charge balance changes sign (the
+/// caller has checked the sign change once per solve).
 fn find_root(p: &Prepared, start: f64, s: &SolverSettings) -> Result<(f64, usize), SolveError> {
-    let mut lo = (1e-22f64).ln();
-    let mut hi = (1e4f64).ln();
-    if p.eval(lo.exp()).f > 0.0 || p.eval(hi.exp()).f < 0.0 {
-        return Err(SolveError::NoBracket);
-    }
+    let (mut lo, mut hi) = (LN_X_LO, LN_X_HI);
     let mut x = start.clamp(lo, hi);
     for it in 1..=s.max_iterations {
         let pt = p.eval(x.exp());
@@ -539,6 +609,11 @@ fn find_root(p: &Prepared, start: f64, s: &SolverSettings) -> Result<(f64, usize
         } else {
             f64::NAN
         };
+        // A Newton step below the tolerance has found the root, wherever the bracket's
+        // ends lie (the step may land on one of them).
+        if newton.is_finite() && (newton - x).abs() < s.tolerance {
+            return Ok((newton, it));
+        }
         let next = if newton.is_finite() && newton > lo && newton < hi {
             newton
         } else {
@@ -615,15 +690,22 @@ fn assemble(
     let mut gases = Vec::new();
     let mut charge = h - oh + p.strong_charge;
     let mut scale = h + oh + p.strong_ionic;
-    let totals = p.totals(x);
-    let mut terms = p.terms.iter().zip(totals);
+    // Only a linked family's total changes with x; the common case needs no copy.
+    let totals = if p.links.is_empty() {
+        None
+    } else {
+        Some(p.totals(x))
+    };
+    let mut terms = p.terms.iter().enumerate();
     for &(fid, n) in &m.families {
         if fid == cat.water || n == 0.0 {
             continue;
         }
-        let (t, total) = terms.next().expect("one term per non-empty family");
+        let (k, t) = terms.next().expect("one term per non-empty family");
         let mut t = *t;
-        t.c_total = total.max(0.0);
+        if let Some(tt) = &totals {
+            t.c_total = tt[k].max(0.0);
+        }
         let t = &t;
         let fam = cat.family(fid);
         let mut w = [0.0; MAX_STEPS + 1];

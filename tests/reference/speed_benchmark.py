@@ -14,9 +14,20 @@ solves them
 * with offgas: `cargo run --release --example solve_batch -- FILE.json --repeat R` in the
   repository root (its median_ns_per_solve).
 
-Prints the time per solve of each, their ratio, and the agreement of offgas with the
+Prints the time per solve of each, their ratio, the time per equilibrium calculation on each
+side and how each is counted (below), and the agreement of offgas with the
 offgas-constants PHREEQC run (median and 95th percentile of |ΔpH| and of |Δlog10 p| for the
 main gas, the one with the highest PHREEQC partial pressure); writes speed_result.json.
+
+How an equilibrium is counted. PHREEQC: every mixture is two calculations, each a
+Newton-Raphson solution of its own: the initial solution (SOLUTION: speciation with the
+charge balance on H+, no gas) and the batch reaction (that solution equilibrated with its
+fixed-volume GAS_PHASE; a mixture without a volatile family has no gas phase and no batch
+reaction); the number of each is read from PHREEQC's selected output (`state` i_soln and
+react), not assumed. offgas: one solve per mixture, liquid and headspace in one system, from
+a cold start (solve_batch calls `solve`, not the warm-started `solve_from` a pour uses).
+"Per solve" is per mixture on both sides; "per calculation" divides PHREEQC's time by its
+calculations.
 
 Usage: python tests/reference/speed_benchmark.py [--n 1000] [--seed 20240611] [--repeat 20]
 """
@@ -121,6 +132,21 @@ def time_phreeqc(p, text: str, repeats: int) -> list[float]:
     return times
 
 
+def calculations(p) -> dict:
+    """PHREEQC's calculations in the last run, from the selected output's `state` column:
+    i_soln (initial solution) and react (batch reaction with the gas phase)."""
+    states = [str(s).strip() for s in p.GetSelectedOutput()["state"]]
+    return {"initial_solution": states.count("i_soln"), "batch_reaction": states.count("react")}
+
+
+HOW_COUNTED = (
+    "PHREEQC: per mixture one initial-solution calculation (SOLUTION, speciation with the charge "
+    "balance on H+) and one batch-reaction calculation (the solution with its fixed-volume "
+    "GAS_PHASE), each its own Newton-Raphson solution; counts read from the selected output's "
+    "state column. offgas: one solve per mixture, liquid and headspace in one system, cold start."
+)
+
+
 def drop_failures(og, p, cases: list[dict]) -> tuple[list[dict], list[str]]:
     """Cases PHREEQC cannot solve one by one (reported, left out of the comparison)."""
     good, bad = [], []
@@ -183,19 +209,23 @@ def main(argv=None) -> int:
         cases, failed = drop_failures(og, p, cases)
         pu, text = mg.offgas_punch_and_input(og, cases, lean=True)
         times = time_phreeqc(p, text, args.phreeqc_repeat)
+    calc = calculations(p)
     rows = pu.rows(p)
     assert len(rows) == len(cases)
     phreeqc_s = statistics.median(times) / len(cases)
+    phreeqc_calc_s = statistics.median(times) / sum(calc.values())
 
     # PHREEQC, llnl.dat database set-up (timing only)
     setup = mg.DbSetup(DB, og)
     p2 = mg.new_phreeqc(DB, setup.definitions)
     try:
         times_db = time_phreeqc(p2, llnl_batch_input(setup, og, cases), args.phreeqc_repeat)
+        calc_db = calculations(p2)
         phreeqc_db_s = statistics.median(times_db) / len(cases)
+        phreeqc_db_calc_s = statistics.median(times_db) / sum(calc_db.values())
         db_error = None
     except RuntimeError as e:
-        phreeqc_db_s, db_error = None, str(e)[:500]
+        phreeqc_db_s, phreeqc_db_calc_s, calc_db, db_error = None, None, None, str(e)[:500]
 
     # offgas
     with tempfile.TemporaryDirectory() as tmp:
@@ -256,11 +286,18 @@ def main(argv=None) -> int:
             "phreeqc_offgas_constants_s_per_solve": phreeqc_s,
             "phreeqc_llnl_database_s_per_solve": phreeqc_db_s,
             "phreeqc_llnl_database_error": db_error,
+            "phreeqc_offgas_constants_s_per_calculation": phreeqc_calc_s,
+            "phreeqc_llnl_database_s_per_calculation": phreeqc_db_calc_s,
+            "phreeqc_offgas_constants_calculations": calc,
+            "phreeqc_llnl_database_calculations": calc_db,
+            "offgas_solves_per_mixture": 1,
+            "how_counted": HOW_COUNTED,
             "phreeqc_batch_runs_timed": args.phreeqc_repeat,
             "offgas_s_per_solve": offgas_s,
             "offgas_repeat": og_out["repeat"],
             "ratio_phreeqc_offgas_constants_over_offgas": phreeqc_s / offgas_s,
             "ratio_phreeqc_llnl_over_offgas": (phreeqc_db_s / offgas_s) if phreeqc_db_s else None,
+            "ratio_phreeqc_offgas_constants_per_calculation_over_offgas_per_solve": phreeqc_calc_s / offgas_s,
             "how": "PHREEQC: all mixtures in one RunString (one SOLUTION + GAS_PHASE simulation each, "
                    "lean USER_PUNCH), median of the timed batch runs over the number of mixtures; "
                    "database loading and definitions excluded. offgas: solve_batch median over its repeats.",
@@ -287,8 +324,15 @@ def main(argv=None) -> int:
     if phreeqc_db_s:
         print(f"PHREEQC (llnl.dat):         {phreeqc_db_s * 1e6:.1f} µs per solve")
     print(f"offgas:                     {offgas_s * 1e6:.2f} µs per solve")
+    print(f"per equilibrium calculation: PHREEQC {phreeqc_calc_s * 1e6:.1f} µs (offgas constants; "
+          f"{calc['initial_solution']} initial solutions + {calc['batch_reaction']} batch reactions)"
+          + (f", {phreeqc_db_calc_s * 1e6:.1f} µs (llnl.dat; {calc_db['initial_solution']} + "
+             f"{calc_db['batch_reaction']})" if phreeqc_db_s else "")
+          + f"; offgas {offgas_s * 1e6:.2f} µs (one solve per mixture)")
+    print("how counted: " + HOW_COUNTED)
     print(f"ratio PHREEQC/offgas: {t['ratio_phreeqc_offgas_constants_over_offgas']:.0f} (offgas constants)"
-          + (f", {t['ratio_phreeqc_llnl_over_offgas']:.0f} (llnl.dat)" if phreeqc_db_s else ""))
+          + (f", {t['ratio_phreeqc_llnl_over_offgas']:.0f} (llnl.dat)" if phreeqc_db_s else "")
+          + f" per mixture; {phreeqc_calc_s / offgas_s:.0f} per equilibrium calculation (offgas constants)")
     print(f"|ΔpH| median {a['abs_dph_median']:.2e}, p95 {a['abs_dph_p95']:.2e}, max {a['abs_dph_max']:.2e}; "
           f"|Δlog10 p| main gas median {a['abs_dlog10_p_main_gas_median']:.2e}, "
           f"p95 {a['abs_dlog10_p_main_gas_p95']:.2e}, max {a['abs_dlog10_p_main_gas_max']:.2e}")
