@@ -134,7 +134,7 @@ pub fn state_report(
                 .as_ref()
                 .map(|l| l.stop_ppm * th.gas.stop_fraction_of_idlh);
             Some(GasReport {
-                formula: g.gas.clone(),
+                formula: g.gas.to_string(),
                 partial_pressure_kpa: g.partial_pressure_pa / 1e3,
                 headspace_ppm: c,
                 limit_ppm: review,

@@ -139,7 +139,7 @@ pub fn vapour_pressure(
     );
     for g in &eq.gases {
         shares.push(VapourShare {
-            what: g.gas.clone(),
+            what: g.gas.to_string(),
             kpa: g.partial_pressure_pa / 1e3,
             layer: false,
         });

@@ -59,7 +59,7 @@ const WATER_ION_MOL_PER_L: f64 = 1e-3;
 
 fn gas_of(cat: &Catalog, fid: FamilyId, species: usize) -> Option<String> {
     let fam = cat.family(fid);
-    (fam.volatile_index() == Some(species)).then(|| fam.volatile.as_ref().unwrap().gas.clone())
+    (fam.volatile_index() == Some(species)).then(|| fam.volatile.as_ref().unwrap().gas.to_string())
 }
 
 fn actors(cat: &Catalog, eq: &Equilibrium, t_k: f64) -> (Vec<Actor>, Vec<Actor>) {

@@ -5,6 +5,7 @@
 //! (parabolic steps through the three best points, golden-section steps where a parabola
 //! would not help). Each state starts its solve from its neighbour's pH and ionic strength.
 
+use crate::catalog::GasName;
 use crate::chem::{Equilibrium, SolveError};
 
 /// Fractions of the stream added at which the vessel is solved before refinement.
@@ -68,7 +69,7 @@ pub struct PathScan<X> {
     pub temperature_max_k: f64,
     /// Each gas at its own highest partial pressure among the states solved:
     /// (gas, fraction added there, Pa).
-    pub gas_peaks: Vec<(String, f64, f64)>,
+    pub gas_peaks: Vec<(GasName, f64, f64)>,
 }
 
 /// The state at a fraction, solved from a neighbouring state where there is one.
@@ -142,7 +143,7 @@ pub fn scan<X: Clone>(
         .iter()
         .map(|s| s.state.temperature_k)
         .fold(f64::NEG_INFINITY, f64::max);
-    let mut gas_peaks: Vec<(String, f64, f64)> = Vec::new();
+    let mut gas_peaks: Vec<(GasName, f64, f64)> = Vec::new();
     for s in &states {
         for g in &s.state.gases {
             match gas_peaks.iter_mut().find(|p| p.0 == g.gas) {

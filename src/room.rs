@@ -157,7 +157,7 @@ pub fn room_report(cat: &Catalog, eq: &Equilibrium, r: &RoomSettings) -> Vec<Roo
                 .filter(|m| lasts_min.is_some_and(|l| *m <= l))
         };
         out.push(RoomGasReport {
-            formula: g.gas.clone(),
+            formula: g.gas.to_string(),
             releasable_mol: releasable,
             headspace_mol: g.moles_in_gas,
             evaporated_mol: evaporated,

@@ -7,6 +7,7 @@
 pub mod combined;
 pub mod density;
 pub mod dilution;
+pub mod gas_name;
 pub mod ghs;
 pub mod heat;
 pub mod limits;
@@ -18,6 +19,7 @@ pub mod volatility;
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, HashMap};
 
+pub use gas_name::GasName;
 pub use limits::{GasKind, GasLimits, JudgedLevels, LimitsFile};
 pub use species::{Family, StrongIon};
 pub use substances::{HazardClass, PhysicalState};
@@ -267,6 +269,22 @@ pub struct Catalog {
     substance_index: HashMap<String, SubstanceId>,
     #[serde(serialize_with = "in_key_order")]
     gas_index: HashMap<String, usize>,
+    /// Which catalog this is within the process, for caches of values derived from it.
+    #[serde(skip)]
+    stamp: Stamp,
+}
+
+/// A number no other catalog in the process carries: a new one for every catalog built or
+/// read, so that a cache keyed by it never serves one catalog's constants for another.
+/// (A catalog's tables are not changed after it is built.)
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Stamp(u64);
+
+impl Default for Stamp {
+    fn default() -> Self {
+        static NEXT: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(1);
+        Stamp(NEXT.fetch_add(1, std::sync::atomic::Ordering::Relaxed))
+    }
 }
 
 /// Writes a map in the order of its keys (a `HashMap` iterates in a different order in
@@ -757,7 +775,13 @@ impl Catalog {
             ion_index,
             substance_index,
             gas_index,
+            stamp: Stamp::default(),
         })
+    }
+
+    /// This catalog's stamp (see [`Stamp`]).
+    pub fn stamp(&self) -> Stamp {
+        self.stamp
     }
 
     /// kJ per mol of solute on dilution to infinity, for concentrated reagents.

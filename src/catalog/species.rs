@@ -57,7 +57,7 @@ pub struct Step {
 #[serde(deny_unknown_fields)]
 pub struct Volatile {
     pub species: String,
-    pub gas: String,
+    pub gas: super::GasName,
     /// Hcp at 298.15 K, mol/(m3 Pa).
     pub hcp: f64,
     /// d ln Hcp / d(1/T), K.
@@ -121,7 +121,7 @@ impl Family {
 #[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct CombinedVolatile {
-    pub gas: String,
+    pub gas: super::GasName,
     pub hcp: f64,
     pub hcp_b: f64,
     pub source: String,

@@ -3,17 +3,25 @@
 //! One unknown: x = a(H+). Every family's species follow from x through its conditional
 //! constants; volatile neutral species share their family's moles with the headspace by
 //! Henry's law; the charge balance F(x) = 0 closes the system. F rises monotonically with
-//! ln x, so a Newton step guarded by a bisection bracket always converges. Activity
-//! coefficients (Davies) depend on the ionic strength, which an outer fixed-point loop
-//! settles.
+//! ln x, so a Newton step guarded by a bisection bracket converges. Activity coefficients
+//! (Davies) depend on the ionic strength, which each evaluation of F also yields: the
+//! coefficients follow the iterate, and the solve ends when the Newton step is below the
+//! tolerance with the ionic strength (and any neutral form's activity) unchanged by it.
+
+use arrayvec::ArrayVec;
+use smallvec::SmallVec;
 
 use super::activity::{Gammas, MAX_CHARGE};
 use super::mixture::{Closure, Mixture};
 use super::temperature::{henry_hcp, log_ka, log_kw};
-use crate::catalog::{Catalog, FamilyId};
+use crate::catalog::{Catalog, FamilyId, GasName};
 
 /// Most steps any family may have (EDTA has six).
-const MAX_STEPS: usize = 8;
+pub const MAX_STEPS: usize = 8;
+
+/// One value per species of a family (a concentration or a fraction), most protonated
+/// first: held inline, so a solve does not allocate per family.
+pub type SpeciesValues = ArrayVec<f64, { MAX_STEPS + 1 }>;
 
 /// kg of water in a litre of dilute solution (water's density at 25 °C), the scale on
 /// which Henry's law constants are given.
@@ -65,9 +73,9 @@ pub struct FamilyState {
     /// Moles in liquid and gas together.
     pub total_mol: f64,
     /// mol/L of each species in the liquid, most protonated first.
-    pub concentrations: Vec<f64>,
+    pub concentrations: SpeciesValues,
     /// Fraction of the liquid total in each species.
-    pub fractions: Vec<f64>,
+    pub fractions: SpeciesValues,
 }
 
 /// A species formed from two families.
@@ -89,7 +97,7 @@ pub struct GasState {
     pub family: FamilyId,
     /// True when the gas is a combined species (e.g. Cl2), drawing on two families.
     pub from_combined: bool,
-    pub gas: String,
+    pub gas: GasName,
     pub partial_pressure_pa: f64,
     pub moles_in_gas: f64,
 }
@@ -127,12 +135,21 @@ impl Equilibrium {
 /// A family prepared for fast evaluation at one temperature and ionic strength.
 #[derive(Clone, Copy)]
 struct Term {
+    family: FamilyId,
     /// mol per litre of liquid if nothing went to the gas.
     c_total: f64,
     n: usize,
     z0: i32,
+    /// Charge of the bare base (the least protonated species).
+    z_base: f64,
     /// Ka of each step at the temperature (thermodynamic).
     ka: [f64; MAX_STEPS],
+    /// Each step's conditional constant is Ka · γ(z)/γ(z−1) = Ka · γ(1)^(2z−1) for the
+    /// acid's charge z (Davies): the exponent 2z−1 of each step, as an index into the
+    /// table of powers that `set_activity` builds.
+    gamma_power: [usize; MAX_STEPS],
+    /// Henry's law constant of the volatile form at the temperature, mol/(m3 Pa).
+    hcp: f64,
     /// Cumulative conditional constants: beta[j] = Π_{i<=j} K'_i; beta[0] = 1.
     beta: [f64; MAX_STEPS + 1],
     /// Moles in gas per mole in liquid, per unit volatile fraction:
@@ -163,50 +180,78 @@ struct Link {
     gas_factor: f64,
 }
 
+/// The charge balance at one x, its slope in ln x, and the ionic strength there.
 struct Point {
     f: f64,
     dfdlnx: f64,
+    ionic: f64,
 }
+
+/// Largest |2z−1| for the charges the solver takes.
+const MAX_POWER: usize = 2 * MAX_CHARGE as usize + 1;
+
+/// The index in `set_activity`'s table of γ(1)^(2z−1) for each step of a family whose
+/// most protonated species has charge `z0`.
+fn gamma_powers(z0: i32, steps: usize) -> [usize; MAX_STEPS] {
+    let mut out = [MAX_POWER; MAX_STEPS];
+    for (j, o) in out.iter_mut().enumerate().take(steps) {
+        let z_acid = (z0 - j as i32).clamp(-MAX_CHARGE, MAX_CHARGE);
+        *o = (MAX_POWER as i32 + 2 * z_acid - 1) as usize;
+    }
+    out
+}
+
+/// Families a mixture usually holds at most; more spill to the heap.
+const INLINE_TERMS: usize = 16;
 
 struct Prepared {
     /// mol/kg of water per mol/L of liquid.
     molal: f64,
-    terms: Vec<Term>,
-    links: Vec<Link>,
+    terms: SmallVec<[Term; INLINE_TERMS]>,
+    links: SmallVec<[Link; 2]>,
     strong_charge: f64,
     strong_ionic: f64,
     kw: f64,
     gamma1: f64,
+    /// The least and greatest index into the table of powers of γ(1) that any step uses.
+    powers_used: (usize, usize),
 }
 
 impl Prepared {
     fn set_activity(&mut self, g: &Gammas) {
         self.gamma1 = g.gamma(1);
-        // γ(z) = γ(1)^(z²): one table per ionic strength instead of a power per step.
-        let mut table = [1.0; 2 * MAX_CHARGE as usize + 1];
-        for (k, v) in table.iter_mut().enumerate() {
-            let z = k as i32 - MAX_CHARGE;
-            *v = self.gamma1.powi(z * z);
+        // γ(z) = γ(1)^(z²) and γ(z)/γ(z−1) = γ(1)^(2z−1): every coefficient the
+        // constants need is a power of γ(1), built here by products, not one power each.
+        let mut powers = [1.0; 2 * MAX_POWER + 1];
+        let inverse = 1.0 / self.gamma1;
+        for k in MAX_POWER + 1..=self.powers_used.1 {
+            powers[k] = powers[k - 1] * self.gamma1;
         }
-        let gamma = |z: i32| table[(z.clamp(-MAX_CHARGE, MAX_CHARGE) + MAX_CHARGE) as usize];
-        for l in &mut self.links {
-            let z1 = self.terms[l.first.0].z0 - l.first.1 as i32;
-            let z2 = self.terms[l.second.0].z0 - l.second.1 as i32;
-            // x is already the activity of H+, so only the other reactants and the
-            // product carry activity coefficients here.
-            l.k_eff = l.k_form * gamma(z1) * gamma(z2) / gamma(l.charge);
+        for k in (self.powers_used.0..MAX_POWER).rev() {
+            powers[k] = powers[k + 1] * inverse;
+        }
+        if !self.links.is_empty() {
+            let gamma = |z: i32| {
+                let z = z.clamp(-MAX_CHARGE, MAX_CHARGE);
+                self.gamma1.powi(z * z)
+            };
+            for l in &mut self.links {
+                let z1 = self.terms[l.first.0].z0 - l.first.1 as i32;
+                let z2 = self.terms[l.second.0].z0 - l.second.1 as i32;
+                // x is already the activity of H+, so only the other reactants and the
+                // product carry activity coefficients here.
+                l.k_eff = l.k_form * gamma(z1) * gamma(z2) / gamma(l.charge);
+            }
         }
         for t in &mut self.terms {
             t.beta[0] = 1.0;
-            for j in 1..=t.n {
-                let z_acid = t.z0 - (j as i32 - 1);
-                let k = t.ka[j - 1] * gamma(z_acid) / gamma(z_acid - 1);
-                t.beta[j] = t.beta[j - 1] * k;
+            for j in 0..t.n {
+                t.beta[j + 1] = t.beta[j] * t.ka[j] * powers[t.gamma_power[j]];
             }
         }
     }
 
-    /// Charge balance and its slope in ln x.
+    /// Charge balance, its slope in ln x, and the ionic strength, at x.
     fn eval(&self, x: f64) -> Point {
         if !self.links.is_empty() {
             // The coupling makes the analytic slope long; a central difference is exact
@@ -215,22 +260,30 @@ impl Prepared {
             let f = self.charge_linked(x);
             let slope =
                 (self.charge_linked(x * d.exp()) - self.charge_linked(x * (-d).exp())) / (2.0 * d);
-            return Point { f, dfdlnx: slope };
+            return Point {
+                f,
+                dfdlnx: slope,
+                ionic: self.ionic_linked(x),
+            };
         }
         let h = x / self.gamma1;
         let oh = self.kw / (x * self.gamma1);
         let mut f = h - oh + self.strong_charge;
         let mut d = h + oh;
+        let mut ionic = self.strong_ionic + h + oh;
         for t in &self.terms {
-            let (q, dq) = term_charge(t, x);
-            f += q;
-            d += dq;
+            let c = term_charge(t, x);
+            f += c.charge;
+            d += c.slope;
+            ionic += c.ionic;
         }
-        Point { f, dfdlnx: d }
+        Point {
+            f,
+            dfdlnx: d,
+            ionic: 0.5 * ionic,
+        }
     }
-}
 
-impl Prepared {
     /// Sets each self-interacting neutral form's activity coefficient from its molality at
     /// x; true when none changed.
     fn update_neutral_activity(&mut self, x: f64, molal_scale: f64) -> bool {
@@ -240,9 +293,8 @@ impl Prepared {
             let Some(lambda) = t.lambda else {
                 continue;
             };
-            let mut w = [0.0; MAX_STEPS + 1];
-            let d = weights(t, x, &mut w);
-            let neutral = liquid_total(t, &w, d) * w[t.volatile] / d;
+            let mo = moments(t, x);
+            let neutral = liquid_total(t, mo.volatile_share) * mo.volatile_share;
             let gamma = (2.0 * lambda * neutral * molal).exp();
             let henry = molal_scale * gamma;
             if (henry - t.henry).abs() > 1e-12 * henry {
@@ -267,26 +319,31 @@ impl Prepared {
         2.0 * kappa * a * b / (s + disc.sqrt())
     }
 
-    /// Each term's total after the links have taken their share, at x.
-    fn totals(&self, x: f64) -> Vec<f64> {
-        let mut totals: Vec<f64> = self.terms.iter().map(|t| t.c_total).collect();
+    /// Each term as it stands after the links have taken their share of its total, at x.
+    fn linked_terms(&self, x: f64) -> SmallVec<[Term; INLINE_TERMS]> {
+        let mut totals: SmallVec<[f64; INLINE_TERMS]> =
+            self.terms.iter().map(|t| t.c_total).collect();
         for l in &self.links {
             let y = self.link_amount(l, x);
             totals[l.first.0] -= y;
             totals[l.second.0] -= y;
         }
-        totals
+        self.terms
+            .iter()
+            .zip(&totals)
+            .map(|(t, &total)| Term {
+                c_total: total.max(0.0),
+                ..*t
+            })
+            .collect()
     }
 
     fn charge_linked(&self, x: f64) -> f64 {
         let h = x / self.gamma1;
         let oh = self.kw / (x * self.gamma1);
         let mut f = h - oh + self.strong_charge;
-        let totals = self.totals(x);
-        for (t, &total) in self.terms.iter().zip(&totals) {
-            let mut t = *t;
-            t.c_total = total.max(0.0);
-            f += term_charge(&t, x).0;
+        for t in &self.linked_terms(x) {
+            f += term_charge(t, x).charge;
         }
         for l in &self.links {
             if l.charge != 0 {
@@ -294,6 +351,20 @@ impl Prepared {
             }
         }
         f
+    }
+
+    fn ionic_linked(&self, x: f64) -> f64 {
+        let h = x / self.gamma1;
+        let oh = self.kw / (x * self.gamma1);
+        let mut sum = self.strong_ionic + h + oh;
+        for l in &self.links {
+            let z = l.charge as f64;
+            sum += z * z * self.link_amount(l, x) / (1.0 + l.gas_factor);
+        }
+        for t in &self.linked_terms(x) {
+            sum += term_charge(t, x).ionic;
+        }
+        0.5 * sum
     }
 }
 
@@ -322,81 +393,150 @@ fn weights(t: &Term, x: f64, w: &mut [f64; MAX_STEPS + 1]) -> f64 {
     sum
 }
 
-/// A family's charge concentration in the liquid and its slope in ln x.
-#[inline]
-fn term_charge(t: &Term, x: f64) -> (f64, f64) {
-    let mut w = [0.0; MAX_STEPS + 1];
-    let d = weights(t, x, &mut w);
-    // m_j = n − j protons above the bare base; z_j = (z0 − n) + m_j.
-    let mut m1 = 0.0;
-    let mut m2 = 0.0;
-    for (j, wj) in w.iter().enumerate().take(t.n + 1) {
-        let m = (t.n - j) as f64;
-        m1 += m * wj;
-        m2 += m * m * wj;
-    }
-    m1 /= d;
-    m2 /= d;
-    let zbar = (t.z0 - t.n as i32) as f64 + m1;
-    let dzbar = m2 - m1 * m1;
-    if t.gas_factor == 0.0 {
-        return (t.c_total * zbar, t.c_total * dzbar);
-    }
-    let av = w[t.volatile] / d;
-    let dav = av * ((t.n - t.volatile) as f64 - m1);
-    let denom = 1.0 + t.gas_factor * av;
-    let c_aq = t.c_total / denom;
-    let q = c_aq * zbar;
-    let dq = c_aq * dzbar - t.c_total * zbar * t.gas_factor * dav / (denom * denom);
-    (q, dq)
+/// A family's speciation at x summarised by the number of protons above the bare base:
+/// its mean and mean square over the species, and the volatile species' share.
+struct Moments {
+    m1: f64,
+    m2: f64,
+    volatile_share: f64,
 }
 
-/// A family's constants at one temperature.
+#[inline]
+fn moments(t: &Term, x: f64) -> Moments {
+    // The species with k protons above the bare base weighs beta[n−k] x^k.
+    let (mut sum, mut s1, mut s2, mut wv) = (0.0, 0.0, 0.0, 0.0);
+    let mut xp = 1.0;
+    let volatile_k = t.n - t.volatile;
+    for (k, &b) in t.beta[..=t.n].iter().rev().enumerate() {
+        let w = b * xp;
+        let kf = k as f64;
+        sum += w;
+        s1 += kf * w;
+        s2 += kf * kf * w;
+        if k == volatile_k {
+            wv = w;
+        }
+        xp *= x;
+    }
+    let inv = 1.0 / sum;
+    Moments {
+        m1: s1 * inv,
+        m2: s2 * inv,
+        volatile_share: wv * inv,
+    }
+}
+
+/// A family's charge concentration in the liquid, its slope in ln x, and its Σ z² c.
+struct Contribution {
+    charge: f64,
+    slope: f64,
+    ionic: f64,
+}
+
+#[inline]
+fn term_charge(t: &Term, x: f64) -> Contribution {
+    let mo = moments(t, x);
+    let zbar = t.z_base + mo.m1;
+    let dzbar = mo.m2 - mo.m1 * mo.m1;
+    // Σ z_j² α_j with z = z_base + k.
+    let z2bar = t.z_base * t.z_base + 2.0 * t.z_base * mo.m1 + mo.m2;
+    if t.gas_factor == 0.0 {
+        return Contribution {
+            charge: t.c_total * zbar,
+            slope: t.c_total * dzbar,
+            ionic: t.c_total * z2bar,
+        };
+    }
+    let av = mo.volatile_share;
+    let dav = av * ((t.n - t.volatile) as f64 - mo.m1);
+    let denom = 1.0 + t.gas_factor * av;
+    let c_aq = t.c_total / denom;
+    Contribution {
+        charge: c_aq * zbar,
+        slope: c_aq * dzbar - t.c_total * zbar * t.gas_factor * dav / (denom * denom),
+        ionic: c_aq * z2bar,
+    }
+}
+
+/// A family's constants at one temperature, and what the solver needs of its species.
 #[derive(Clone, Copy)]
 struct FamilyConstants {
     ka: [f64; MAX_STEPS],
+    steps: usize,
+    z0: i32,
     /// Henry's law constant of its volatile form (0 when it has none).
     hcp: f64,
+    volatile: Option<usize>,
+    lambda: Option<f64>,
+}
+
+/// The constants of one catalog at one temperature.
+struct TemperatureConstants {
+    stamp: Option<crate::catalog::Stamp>,
+    t_bits: u64,
+    kw: f64,
+    debye_huckel_a: f64,
+    families: Vec<Option<FamilyConstants>>,
 }
 
 thread_local! {
-    /// The constants of every family at the temperature last solved at: states along a
-    /// pour mostly share a temperature, so each family's van 't Hoff and Henry factors are
-    /// worked out once per temperature rather than once per solve.
-    static CONSTANTS: std::cell::RefCell<(u64, usize, Vec<Option<FamilyConstants>>)> =
-        const { std::cell::RefCell::new((u64::MAX, usize::MAX, Vec::new())) };
+    /// The constants at the temperature last solved at: states along a pour mostly share a
+    /// temperature, so each family's van 't Hoff and Henry factors are worked out once per
+    /// temperature rather than once per solve.
+    static CONSTANTS: std::cell::RefCell<TemperatureConstants> =
+        const { std::cell::RefCell::new(TemperatureConstants {
+            stamp: None,
+            t_bits: u64::MAX,
+            kw: 0.0,
+            debye_huckel_a: 0.0,
+            families: Vec::new(),
+        }) };
 }
 
-/// The constants of family `fid` at `t_k`, from the per-thread cache when it holds them.
-fn constants_at(cat: &Catalog, fid: FamilyId, t_k: f64) -> FamilyConstants {
-    let compute = || {
-        let fam = cat.family(fid);
-        let phys = &cat.physical;
-        let mut ka = [0.0; MAX_STEPS];
-        for (j, v) in ka.iter_mut().enumerate().take(fam.steps.len()) {
-            *v = (log_ka(phys, fam, j, t_k) * std::f64::consts::LN_10).exp();
+impl TemperatureConstants {
+    /// Points the cache at `cat` and `t_k`, emptying it when either changed.
+    fn select(&mut self, cat: &Catalog, t_k: f64) {
+        if self.stamp == Some(cat.stamp()) && self.t_bits == t_k.to_bits() {
+            return;
         }
-        let hcp = fam
+        let phys = &cat.physical;
+        self.stamp = Some(cat.stamp());
+        self.t_bits = t_k.to_bits();
+        self.kw = (log_kw(phys, cat.family(cat.water), t_k) * std::f64::consts::LN_10).exp();
+        self.debye_huckel_a = phys.debye_huckel_a(t_k);
+        self.families.clear();
+        self.families.resize(cat.families.len(), None);
+    }
+
+    fn family(&mut self, cat: &Catalog, fid: FamilyId, t_k: f64) -> FamilyConstants {
+        *self.families[fid.0].get_or_insert_with(|| family_constants(cat, fid, t_k))
+    }
+}
+
+fn family_constants(cat: &Catalog, fid: FamilyId, t_k: f64) -> FamilyConstants {
+    let fam = cat.family(fid);
+    let phys = &cat.physical;
+    let steps = fam.steps.len().min(MAX_STEPS);
+    let mut ka = [0.0; MAX_STEPS];
+    for (j, v) in ka.iter_mut().enumerate().take(steps) {
+        *v = (log_ka(phys, fam, j, t_k) * std::f64::consts::LN_10).exp();
+    }
+    let hcp = fam
+        .volatile
+        .as_ref()
+        .map_or(0.0, |v| henry_hcp(phys, v, t_k));
+    FamilyConstants {
+        ka,
+        steps,
+        z0: fam.species[0].charge,
+        hcp,
+        volatile: fam.volatile_index(),
+        lambda: fam
             .volatile
             .as_ref()
-            .map_or(0.0, |v| henry_hcp(phys, v, t_k));
-        FamilyConstants { ka, hcp }
-    };
-    // The cache is keyed by the temperature and by which catalog filled it (its address and
-    // size), so that two catalogs never share constants.
-    let owner = cat as *const Catalog as usize ^ cat.families.len();
-    CONSTANTS.with(|c| {
-        let Ok(mut c) = c.try_borrow_mut() else {
-            return compute();
-        };
-        if c.0 != t_k.to_bits() || c.1 != owner {
-            c.0 = t_k.to_bits();
-            c.1 = owner;
-            c.2.clear();
-            c.2.resize(cat.families.len(), None);
-        }
-        *c.2[fid.0].get_or_insert_with(compute)
-    })
+            .and_then(|v| v.self_interaction.as_ref())
+            .map(|si| si.lambda(t_k)),
+    }
 }
 
 /// Solves the equilibrium of `m` and its headspace.
@@ -419,8 +559,41 @@ pub fn solve_from(
     if !(273.0..=373.5).contains(&m.temperature_k) {
         return Err(SolveError::Temperature(m.temperature_k));
     }
+    for &(fid, _) in &m.families {
+        let fam = cat.family(fid);
+        if fam.steps.len() > MAX_STEPS {
+            return Err(SolveError::TooManySteps(fam.id.clone()));
+        }
+    }
+    CONSTANTS.with(|c| match c.try_borrow_mut() {
+        Ok(mut c) => solve_with(cat, m, s, near, &mut c),
+        // Only a solve inside a solve would find the cache taken; it gets its own.
+        Err(_) => solve_with(cat, m, s, near, &mut TemperatureConstants::empty()),
+    })
+}
+
+impl TemperatureConstants {
+    fn empty() -> Self {
+        TemperatureConstants {
+            stamp: None,
+            t_bits: u64::MAX,
+            kw: 0.0,
+            debye_huckel_a: 0.0,
+            families: Vec::new(),
+        }
+    }
+}
+
+fn solve_with(
+    cat: &Catalog,
+    m: &Mixture,
+    s: &SolverSettings,
+    near: Option<&Equilibrium>,
+    constants: &mut TemperatureConstants,
+) -> Result<Equilibrium, SolveError> {
     let phys = &cat.physical;
     let t_k = m.temperature_k;
+    constants.select(cat, t_k);
     let vl = m.liquid_l;
     let vg = if m.closure == Closure::Open {
         // An open vessel's air is the room: the liquid keeps its gas, which is the
@@ -450,8 +623,16 @@ pub fn solve_from(
         strong_charge += z * n / vl;
         strong_ionic += z * z * n / vl;
     }
-    let mut terms = Vec::with_capacity(m.families.len());
-    let mut term_of: Vec<FamilyId> = Vec::with_capacity(m.families.len());
+    let mut p = Prepared {
+        molal,
+        terms: SmallVec::new(),
+        links: SmallVec::new(),
+        strong_charge,
+        strong_ionic,
+        kw: constants.kw,
+        gamma1: 1.0,
+        powers_used: (MAX_POWER, MAX_POWER),
+    };
     for &(fid, n) in &m.families {
         if !(n.is_finite() && n >= 0.0) {
             return Err(SolveError::BadTotals);
@@ -459,79 +640,66 @@ pub fn solve_from(
         if fid == cat.water || n == 0.0 {
             continue;
         }
-        let fam = cat.family(fid);
-        let steps = fam.steps.len();
-        if steps > MAX_STEPS {
-            return Err(SolveError::TooManySteps(fam.id.clone()));
-        }
-        let k = constants_at(cat, fid, t_k);
-        let ka = k.ka;
-        let (gas_factor, volatile) = match (&fam.volatile, fam.volatile_index()) {
-            (Some(_), Some(idx)) if vg > 0.0 => ((vg / vl) / (k.hcp * phys.r * t_k), idx),
-            (Some(_), Some(idx)) => (0.0, idx),
-            _ => (0.0, 0),
+        let k = constants.family(cat, fid, t_k);
+        let (gas_factor, volatile) = match k.volatile {
+            Some(idx) if vg > 0.0 => ((vg / vl) / (k.hcp * phys.r * t_k), idx),
+            Some(idx) => (0.0, idx),
+            None => (0.0, 0),
         };
-        let lambda = fam
-            .volatile
-            .as_ref()
-            .and_then(|v| v.self_interaction.as_ref())
-            .map(|si| si.lambda(t_k));
-        term_of.push(fid);
-        terms.push(Term {
+        let gamma_power = gamma_powers(k.z0, k.steps);
+        for &g in &gamma_power[..k.steps] {
+            p.powers_used = (p.powers_used.0.min(g), p.powers_used.1.max(g));
+        }
+        p.terms.push(Term {
+            family: fid,
             c_total: n / vl,
-            n: steps,
-            z0: fam.species[0].charge,
-            ka,
+            n: k.steps,
+            z0: k.z0,
+            z_base: (k.z0 - k.steps as i32) as f64,
+            ka: k.ka,
+            gamma_power,
+            hcp: k.hcp,
             beta: [0.0; MAX_STEPS + 1],
             gas_factor: gas_factor * molal_scale,
             base_gas_factor: gas_factor,
             volatile,
             henry: molal_scale,
-            lambda,
+            lambda: k.lambda,
         });
     }
-    let kw = (log_kw(phys, cat.family(cat.water), t_k) * std::f64::consts::LN_10).exp();
-    let mut links = Vec::new();
-    for (ci, c) in cat.combined.iter().enumerate() {
-        let find = |f: FamilyId| term_of.iter().position(|&t| t == f);
-        let (Some(a), Some(b)) = (find(c.first.0), find(c.second.0)) else {
-            continue;
-        };
-        let d = &c.data;
-        let log_k = d.log_k_formation
-            - d.dh_formation * 1e3 / (phys.r * std::f64::consts::LN_10)
-                * (1.0 / t_k - 1.0 / phys.t_ref);
-        let gas_factor = match &d.volatile {
-            Some(v) if vg > 0.0 => {
-                let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();
-                (vg / vl) / (hcp * phys.r * t_k)
-            }
-            _ => 0.0,
-        };
-        links.push(Link {
-            catalog_index: ci,
-            first: (a, c.first.1),
-            second: (b, c.second.1),
-            protons: d.protons,
-            charge: d.charge,
-            k_form: (log_k * std::f64::consts::LN_10).exp(),
-            k_eff: 0.0,
-            gas_factor,
-        });
+    if !cat.combined.is_empty() {
+        for (ci, c) in cat.combined.iter().enumerate() {
+            let find = |f: FamilyId| p.terms.iter().position(|t| t.family == f);
+            let (Some(a), Some(b)) = (find(c.first.0), find(c.second.0)) else {
+                continue;
+            };
+            let d = &c.data;
+            let log_k = d.log_k_formation
+                - d.dh_formation * 1e3 / (phys.r * std::f64::consts::LN_10)
+                    * (1.0 / t_k - 1.0 / phys.t_ref);
+            let gas_factor = match &d.volatile {
+                Some(v) if vg > 0.0 => {
+                    let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();
+                    (vg / vl) / (hcp * phys.r * t_k)
+                }
+                _ => 0.0,
+            };
+            p.links.push(Link {
+                catalog_index: ci,
+                first: (a, c.first.1),
+                second: (b, c.second.1),
+                protons: d.protons,
+                charge: d.charge,
+                k_form: (log_k * std::f64::consts::LN_10).exp(),
+                k_eff: 0.0,
+                gas_factor,
+            });
+        }
     }
-    let mut p = Prepared {
-        molal,
-        terms,
-        links,
-        strong_charge,
-        strong_ionic,
-        kw,
-        gamma1: 1.0,
-    };
 
     // Ionic strength: from the neighbouring state, or the strong ions plus each family
     // half-charged.
-    let (mut ionic, mut ln_x) = match near {
+    let (ionic, ln_x) = match near {
         Some(e) if e.ionic_strength.is_finite() && e.ph.is_finite() => {
             (e.ionic_strength, -e.ph * std::f64::consts::LN_10)
         }
@@ -540,63 +708,66 @@ pub fn solve_from(
             (1e-7f64).ln(),
         ),
     };
-    let mut iterations = 0;
-    let mut limited = false;
-    let mut converged = false;
-    let debye_huckel_a = phys.debye_huckel_a(t_k);
-    for pass in 0..100 {
-        limited = ionic > s.activity_limit;
-        let g = Gammas::davies_with_a(phys, debye_huckel_a, ionic.min(s.activity_limit));
-        p.set_activity(&g);
-        // The charge balance is negative at the lowest a(H+) and positive at the highest
-        // whatever the activity coefficients: one check per solve is enough.
-        if pass == 0 && (p.eval(LN_X_LO.exp()).f > 0.0 || p.eval(LN_X_HI.exp()).f < 0.0) {
-            return Err(SolveError::NoBracket);
-        }
-        let (root, its) = find_root(&p, ln_x, s)?;
-        iterations += its;
-        ln_x = root;
-        let new_ionic = ionic_strength(&p, root.exp());
-        let close = (new_ionic - ionic).abs() <= 1e-10 * new_ionic.max(1e-12);
-        // Above the limit the coefficients no longer change with I, so one more pass is exact.
-        let frozen = ionic > s.activity_limit && new_ionic > s.activity_limit;
-        ionic = new_ionic;
-        let neutrals_settled = p.update_neutral_activity(root.exp(), molal_scale);
-        if (close || frozen) && neutrals_settled {
-            converged = true;
-            if frozen {
-                limited = true;
-            }
-            break;
-        }
-    }
-    if !converged {
-        return Err(SolveError::NoConvergence(iterations));
-    }
-    Ok(assemble(
-        cat,
-        m,
-        &p,
-        ln_x.exp(),
+    let root = find_root(
+        &mut p,
+        ln_x,
         ionic,
-        vg,
-        limited,
-        iterations,
-    ))
+        s,
+        &Activity {
+            phys,
+            debye_huckel_a: constants.debye_huckel_a,
+            molal_scale,
+        },
+    )?;
+    Ok(assemble(cat, m, &p, &root, vg))
 }
 
 /// The bracket of ln a(H+) the solver searches: pH 22 to pH −4.
 const LN_X_LO: f64 = -50.65687204586901; // ln 1e-22
 const LN_X_HI: f64 = 9.210340371976184; // ln 1e4
 
-/// Safeguarded Newton in ln x within a bracket where the charge balance changes sign (the
-/// caller has checked the sign change once per solve).
-fn find_root(p: &Prepared, start: f64, s: &SolverSettings) -> Result<(f64, usize), SolveError> {
+/// What the activity coefficients are worked out from.
+struct Activity<'a> {
+    phys: &'a crate::catalog::physical::Physical,
+    debye_huckel_a: f64,
+    molal_scale: f64,
+}
+
+/// The solver's answer before it is written out per species.
+struct Root {
+    x: f64,
+    ionic: f64,
+    limited: bool,
+    iterations: usize,
+}
+
+/// Safeguarded Newton in ln x within a bracket where the charge balance changes sign, with
+/// the activity coefficients following the iterate.
+///
+/// The charge balance is negative at the bracket's low end and positive at its high end
+/// whatever the coefficients, so the full bracket is never checked up front: a root that
+/// would lie outside it shows as an iterate that ends on one of its ends. A bracket
+/// narrowed under earlier coefficients may no longer hold under new ones; when it closes
+/// without a root in it, the search starts again from the full bracket.
+fn find_root(
+    p: &mut Prepared,
+    start: f64,
+    start_ionic: f64,
+    s: &SolverSettings,
+    a: &Activity,
+) -> Result<Root, SolveError> {
+    let limit = s.activity_limit;
+    let coefficients = |i: f64| Gammas::davies_with_a(a.phys, a.debye_huckel_a, i.min(limit));
+    let mut ionic = start_ionic;
+    p.set_activity(&coefficients(ionic));
     let (mut lo, mut hi) = (LN_X_LO, LN_X_HI);
+    // True when the coefficients changed since the bracket was last the full one.
+    let mut stale = false;
     let mut x = start.clamp(lo, hi);
     for it in 1..=s.max_iterations {
-        let pt = p.eval(x.exp());
-        if !pt.f.is_finite() {
+        let ax = x.exp();
+        let pt = p.eval(ax);
+        if !(pt.f.is_finite() && pt.ionic.is_finite()) {
             return Err(SolveError::NoConvergence(it));
         }
         if pt.f > 0.0 {
@@ -609,120 +780,97 @@ fn find_root(p: &Prepared, start: f64, s: &SolverSettings) -> Result<(f64, usize
         } else {
             f64::NAN
         };
-        // A Newton step below the tolerance has found the root, wherever the bracket's
-        // ends lie (the step may land on one of them).
-        if newton.is_finite() && (newton - x).abs() < s.tolerance {
-            return Ok((newton, it));
+        // Above the limit the coefficients no longer change with I.
+        let ionic_settled = (pt.ionic - ionic).abs() <= 1e-10 * pt.ionic.max(1e-12)
+            || (ionic > limit && pt.ionic > limit);
+        let neutrals_settled = p.update_neutral_activity(ax, a.molal_scale);
+        if !ionic_settled {
+            ionic = pt.ionic;
+            p.set_activity(&coefficients(ionic));
         }
-        let next = if newton.is_finite() && newton > lo && newton < hi {
+        stale |= !(ionic_settled && neutrals_settled);
+        // A Newton step below the tolerance, with coefficients that the step no longer
+        // changes, is the root (the step may land on one of the bracket's ends).
+        if newton.is_finite() && (newton - x).abs() < s.tolerance {
+            if ionic_settled && neutrals_settled {
+                return Ok(Root {
+                    x: newton.exp(),
+                    ionic: pt.ionic,
+                    limited: ionic > limit,
+                    iterations: it,
+                });
+            }
+            x = newton;
+            continue;
+        }
+        if hi - lo < s.tolerance {
+            if lo <= LN_X_LO || hi >= LN_X_HI {
+                // Pressed against the end of the full bracket: the charge balance keeps
+                // its sign over the whole range.
+                return Err(SolveError::NoBracket);
+            }
+            if !stale && ionic_settled && neutrals_settled {
+                // Closed on a root that rounding keeps the Newton step from confirming.
+                return Ok(Root {
+                    x: (0.5 * (lo + hi)).exp(),
+                    ionic: pt.ionic,
+                    limited: ionic > limit,
+                    iterations: it,
+                });
+            }
+            (lo, hi) = (LN_X_LO, LN_X_HI);
+            stale = false;
+        }
+        x = if newton.is_finite() && newton > lo && newton < hi {
             newton
         } else {
             0.5 * (lo + hi)
         };
-        if (next - x).abs() < s.tolerance || hi - lo < s.tolerance {
-            return Ok((next, it));
-        }
-        x = next;
     }
     Err(SolveError::NoConvergence(s.max_iterations))
 }
 
-fn ionic_strength(p: &Prepared, x: f64) -> f64 {
-    let h = x / p.gamma1;
-    let oh = p.kw / (x * p.gamma1);
-    let mut sum = p.strong_ionic + h + oh;
-    let mut w = [0.0; MAX_STEPS + 1];
-    // Only a linked family's total changes with x; the common case needs no copy.
-    let totals = if p.links.is_empty() {
-        None
-    } else {
-        Some(p.totals(x))
-    };
-    for l in &p.links {
-        let z = l.charge as f64;
-        sum += z * z * p.link_amount(l, x) / (1.0 + l.gas_factor);
-    }
-    for (k, t) in p.terms.iter().enumerate() {
-        let adjusted;
-        let t = match &totals {
-            Some(tt) => {
-                let mut c = *t;
-                c.c_total = tt[k].max(0.0);
-                adjusted = c;
-                &adjusted
-            }
-            None => t,
-        };
-        let d = weights(t, x, &mut w);
-        let c_aq = liquid_total(t, &w, d);
-        for (j, wj) in w.iter().enumerate().take(t.n + 1) {
-            let z = (t.z0 - j as i32) as f64;
-            sum += z * z * c_aq * wj / d;
-        }
-    }
-    0.5 * sum
-}
-
-fn liquid_total(t: &Term, w: &[f64; MAX_STEPS + 1], d: f64) -> f64 {
+fn liquid_total(t: &Term, volatile_share: f64) -> f64 {
     if t.gas_factor == 0.0 {
         t.c_total
     } else {
-        t.c_total / (1.0 + t.gas_factor * w[t.volatile] / d)
+        t.c_total / (1.0 + t.gas_factor * volatile_share)
     }
 }
 
-#[allow(clippy::too_many_arguments)]
-fn assemble(
-    cat: &Catalog,
-    m: &Mixture,
-    p: &Prepared,
-    x: f64,
-    ionic: f64,
-    vg: f64,
-    limited: bool,
-    iterations: usize,
-) -> Equilibrium {
+fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> Equilibrium {
     let phys = &cat.physical;
     let t_k = m.temperature_k;
+    let x = root.x;
     let h = x / p.gamma1;
     let oh = p.kw / (x * p.gamma1);
-    let mut families = Vec::with_capacity(m.families.len());
+    let mut families = Vec::with_capacity(p.terms.len());
     let mut gases = Vec::new();
     let mut charge = h - oh + p.strong_charge;
     let mut scale = h + oh + p.strong_ionic;
     // Only a linked family's total changes with x; the common case needs no copy.
-    let totals = if p.links.is_empty() {
-        None
-    } else {
-        Some(p.totals(x))
-    };
-    let mut terms = p.terms.iter().enumerate();
-    for &(fid, n) in &m.families {
-        if fid == cat.water || n == 0.0 {
-            continue;
-        }
-        let (k, t) = terms.next().expect("one term per non-empty family");
-        let mut t = *t;
-        if let Some(tt) = &totals {
-            t.c_total = tt[k].max(0.0);
-        }
-        let t = &t;
+    let linked = (!p.links.is_empty()).then(|| p.linked_terms(x));
+    let terms = linked.as_ref().unwrap_or(&p.terms);
+    let totals_mol = m
+        .families
+        .iter()
+        .filter(|&&(fid, n)| fid != cat.water && n != 0.0);
+    for (t, &(fid, n)) in terms.iter().zip(totals_mol) {
         let fam = cat.family(fid);
         let mut w = [0.0; MAX_STEPS + 1];
         let d = weights(t, x, &mut w);
-        let c_aq = liquid_total(t, &w, d);
-        let fractions: Vec<f64> = w[..=t.n].iter().map(|wj| wj / d).collect();
-        let concentrations: Vec<f64> = fractions.iter().map(|a| a * c_aq).collect();
+        let c_aq = liquid_total(t, w[t.volatile] / d);
+        let fractions: SpeciesValues = w[..=t.n].iter().map(|wj| wj / d).collect();
+        let concentrations: SpeciesValues = fractions.iter().map(|a| a * c_aq).collect();
         for (j, c) in concentrations.iter().enumerate() {
-            let z = fam.species[j].charge as f64;
+            let z = (t.z0 - j as i32) as f64;
             charge += z * c;
             scale += z.abs() * c;
         }
-        if let (Some(v), Some(idx)) = (&fam.volatile, fam.volatile_index()) {
-            let hcp = henry_hcp(phys, v, t_k);
+        if let Some(v) = &fam.volatile {
             // c in mol/L → mol/m3; p = c / Hcp on the molal scale, with the neutral form's
             // activity coefficient.
-            let pa = concentrations[idx] * 1e3 * t.henry / hcp;
+            let pa = concentrations[t.volatile] * 1e3 * t.henry / t.hcp;
             let moles_in_gas = pa * (vg / 1e3) / (phys.r * t_k);
             gases.push(GasState {
                 family: fid,
@@ -768,7 +916,7 @@ fn assemble(
     }
     Equilibrium {
         ph: -x.log10(),
-        ionic_strength: ionic,
+        ionic_strength: root.ionic,
         temperature_k: t_k,
         liquid_l: m.liquid_l,
         headspace_l: m.headspace_l,
@@ -783,7 +931,7 @@ fn assemble(
         } else {
             0.0
         },
-        activity_limited: limited,
-        iterations,
+        activity_limited: root.limited,
+        iterations: root.iterations,
     }
 }
