@@ -114,7 +114,7 @@ pub fn run(a: AuditArgs) -> Result<u8> {
     let cat = load_catalog()?;
     let th = load_thresholds(a.thresholds.as_deref())?;
     a.out.check_free()?;
-    let rules = rules_cmd::load(&cat, a.site_rules.as_deref())?;
+    let rules = rules_cmd::load(cat, a.site_rules.as_deref())?;
     let spill_area_m2 = match &a.spill_area {
         Some(s) => {
             let v = offgas::quantity::parse_area_m2(s).map_err(|e| anyhow!("--spill-area: {e}"))?;
@@ -125,9 +125,9 @@ pub fn run(a: AuditArgs) -> Result<u8> {
         }
         None => th.storeroom.spill_area_m2,
     };
-    let (inv, skipped) = read_inventory(&cat, &a)?;
+    let (inv, skipped) = read_inventory(cat, &a)?;
     let auditor = Auditor {
-        cat: &cat,
+        cat,
         th: &th,
         rules: &rules,
         settings: AuditSettings {

@@ -89,7 +89,7 @@ fn expected_stops(scenario: &Scenario) -> usize {
 pub fn run(format: Format) -> Result<u8> {
     let cat = crate::load_catalog()?;
     let th = crate::load_thresholds(None)?;
-    let rules = crate::rules_cmd::load(&cat, None)?;
+    let rules = crate::rules_cmd::load(cat, None)?;
     let scenario: Scenario = serde_yaml::from_str(SCENARIO)?;
     let mut surprises = Vec::new();
     let mut out = String::new();
@@ -103,10 +103,10 @@ pub fn run(format: Format) -> Result<u8> {
     }
     for (i, c) in scenario.checks.iter().enumerate() {
         let path = |n: &str| format!("data/demo/{n}");
-        let a = Batch::parse(&cat, &path(&c.container), file(&c.container)?)
+        let a = Batch::parse(cat, &path(&c.container), file(&c.container)?)
             .map_err(|e| anyhow!("{e}"))?;
-        let b = Batch::parse(&cat, &path(&c.add), file(&c.add)?).map_err(|e| anyhow!("{e}"))?;
-        let report = check(&cat, &th, &rules, &a, &b, &CheckOptions::default())
+        let b = Batch::parse(cat, &path(&c.add), file(&c.add)?).map_err(|e| anyhow!("{e}"))?;
+        let report = check(cat, &th, &rules, &a, &b, &CheckOptions::default())
             .map_err(|e| anyhow!("{e}"))?;
         if report.severity.word() != c.expect {
             surprises.push(format!(
@@ -133,10 +133,10 @@ pub fn run(format: Format) -> Result<u8> {
         }
     }
     // The procedure: an unsafe step, and the computed fix that makes it clear.
-    let procedure = offgas::procedure::Procedure::parse(&cat, PROCEDURE.0, PROCEDURE.1)
+    let procedure = offgas::procedure::Procedure::parse(cat, PROCEDURE.0, PROCEDURE.1)
         .map_err(|e| anyhow!("{e}"))?;
     let engine = offgas::procedure::run::Engine {
-        cat: &cat,
+        cat,
         th: &th,
         rules: &rules,
     };

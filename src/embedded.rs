@@ -90,7 +90,7 @@ pub fn thresholds() -> Result<Thresholds, String> {
 
 /// The built-in rules. The build checked them against the bundled catalog's hazard
 /// classes, which is the one `cat` is.
-pub fn rules(_cat: &Catalog) -> Result<RuleSet, Vec<RuleError>> {
+pub fn rules(cat: &Catalog) -> Result<RuleSet, Vec<RuleError>> {
     let image: RuleImage = postcard::from_bytes(RULES_IMAGE).map_err(|e| {
         vec![RuleError {
             file: "rules/*.yaml".into(),
@@ -101,11 +101,7 @@ pub fn rules(_cat: &Catalog) -> Result<RuleSet, Vec<RuleError>> {
     Ok(RuleSet {
         rules: image
             .into_iter()
-            .map(|(file, line, rule)| LoadedRule {
-                rule,
-                origin: Origin::BuiltIn { file },
-                line,
-            })
+            .map(|(file, line, rule)| LoadedRule::new(cat, rule, Origin::BuiltIn { file }, line))
             .collect(),
     })
 }

@@ -179,7 +179,7 @@ pub fn new(path: &Path, from: &Path) -> Result<u8> {
     let text = std::fs::read_to_string(from)
         .with_context(|| format!("cannot read {}: check the path", from.display()))?;
     let batch =
-        Batch::parse(&cat, &from.display().to_string(), &text).map_err(|e| anyhow!("{e}"))?;
+        Batch::parse(cat, &from.display().to_string(), &text).map_err(|e| anyhow!("{e}"))?;
     if batch.capacity_l.is_none() {
         return Err(anyhow!(
             "{}: a carboy record needs a container with a `capacity`",
@@ -219,10 +219,10 @@ pub fn add(
     }
     let cat = load_catalog()?;
     let th = load_thresholds(thresholds)?;
-    let rules = rules_cmd::load(&cat, site_rules)?;
+    let rules = rules_cmd::load(cat, site_rules)?;
     let stream_text = std::fs::read_to_string(stream_path)
         .with_context(|| format!("cannot read {}: check the path", stream_path.display()))?;
-    let stream = Batch::parse(&cat, &stream_path.display().to_string(), &stream_text)
+    let stream = Batch::parse(cat, &stream_path.display().to_string(), &stream_text)
         .map_err(|e| anyhow!("{e}"))?;
     let _lock = lock(path)?;
     let mut record = read_record(path)?;
@@ -230,17 +230,10 @@ pub fn add(
         return Err(anyhow!("{} is closed: the carboy is full and waits for pickup; start a new record for a new carboy", path.display()));
     }
     let vessel = record
-        .current(&cat, &path.display().to_string())
+        .current(cat, &path.display().to_string())
         .map_err(|e| anyhow!("{e}"))?;
-    let report = check(
-        &cat,
-        &th,
-        &rules,
-        &vessel,
-        &stream,
-        &CheckOptions::default(),
-    )
-    .map_err(|e| anyhow!("{e}"))?;
+    let report = check(cat, &th, &rules, &vessel, &stream, &CheckOptions::default())
+        .map_err(|e| anyhow!("{e}"))?;
     print(&crate::render(&report, format, false)?)?;
     let decision = match (report.severity, accept) {
         (Severity::Stop, _) => Err(format!(
@@ -287,9 +280,9 @@ pub fn show(path: &Path, format: Format, out: &OutputArgs) -> Result<u8> {
     out.check_free()?;
     let cat = load_catalog()?;
     let th = load_thresholds(None)?;
-    let ghs = load_ghs(&cat)?;
+    let ghs = load_ghs(cat)?;
     let record = read_record(path)?;
-    let report = CarboyReport::from_record(&cat, &th, &ghs, &record, &path.display().to_string())
+    let report = CarboyReport::from_record(cat, &th, &ghs, &record, &path.display().to_string())
         .map_err(|e| anyhow!("{e}"))?;
     let text = match format {
         Format::Table => offgas::tag::carboy_table(&report),
@@ -311,7 +304,7 @@ pub fn close(path: &Path, by: &str, format: Format, out: &OutputArgs) -> Result<
     out.check_free()?;
     let cat = load_catalog()?;
     let th = load_thresholds(None)?;
-    let ghs = load_ghs(&cat)?;
+    let ghs = load_ghs(cat)?;
     let _lock = lock(path)?;
     let mut record = read_record(path)?;
     if record.is_closed() {
@@ -332,7 +325,7 @@ pub fn close(path: &Path, by: &str, format: Format, out: &OutputArgs) -> Result<
     );
     // The tag is made before the record is written: a carboy whose contents cannot be
     // assessed stays open rather than close without a tag.
-    let tag = WasteTag::from_record(&cat, &th, &ghs, &record, &path.display().to_string())
+    let tag = WasteTag::from_record(cat, &th, &ghs, &record, &path.display().to_string())
         .map_err(|e| anyhow!("{e}; the record was not closed"))?;
     let text = match format {
         Format::Table => offgas::tag::tag_table(&tag),

@@ -26,16 +26,16 @@ pub fn run(query: &str, as_json: bool) -> Result<u8> {
     }
     let text = if as_json {
         serde_json::to_string_pretty(&json!({
-            "substance": substance.map(|s| substance_json(&cat, s)),
-            "families": families.iter().map(|&f| family_json(&cat, f)).collect::<Vec<_>>(),
+            "substance": substance.map(|s| substance_json(cat, s)),
+            "families": families.iter().map(|&f| family_json(cat, f)).collect::<Vec<_>>(),
         }))? + "\n"
     } else {
         let mut out = String::new();
         if let Some(s) = substance {
-            substance_text(&cat, s, &mut out);
+            substance_text(cat, s, &mut out);
         }
         for f in families {
-            family_text(&cat, f, &mut out);
+            family_text(cat, f, &mut out);
         }
         out
     };

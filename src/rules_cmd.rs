@@ -81,7 +81,7 @@ pub fn load(cat: &Catalog, site: Option<&Path>) -> Result<RuleSet> {
 /// `offgas rules list`: every rule in force with its source file.
 pub fn list(site: Option<&Path>, as_json: bool) -> Result<u8> {
     let cat = crate::load_catalog()?;
-    let set = load(&cat, site)?;
+    let set = load(cat, site)?;
     let text = if as_json {
         let rules: Vec<serde_json::Value> = set
             .rules
@@ -142,7 +142,7 @@ pub fn list(site: Option<&Path>, as_json: bool) -> Result<u8> {
 /// `offgas rules check DIR`: validates a site folder as it would be layered; exit 0 or 1.
 pub fn check_dir(dir: &Path) -> Result<u8> {
     let cat = crate::load_catalog()?;
-    match layered(&cat, Some(dir)) {
+    match layered(cat, Some(dir)) {
         Ok(set) => {
             let site = set
                 .rules

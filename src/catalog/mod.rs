@@ -272,6 +272,10 @@ pub struct Catalog {
     /// Which catalog this is within the process, for caches of values derived from it.
     #[serde(skip)]
     stamp: Stamp,
+    /// Each gas's review and stop levels, worked out on first use (they are asked for
+    /// at every state of every pour).
+    #[serde(skip)]
+    judged: std::sync::OnceLock<Vec<Option<limits::JudgedLevels>>>,
 }
 
 /// A number no other catalog in the process carries: a new one for every catalog built or
@@ -776,6 +780,7 @@ impl Catalog {
             substance_index,
             gas_index,
             stamp: Stamp::default(),
+            judged: Default::default(),
         })
     }
 
@@ -826,8 +831,16 @@ impl Catalog {
     pub fn gas_limits(&self, gas: &str) -> Option<&GasLimits> {
         self.gas_index.get(gas).map(|&i| &self.limits.gases[i])
     }
-    pub fn judged_levels(&self, gas: &str) -> Option<JudgedLevels> {
-        self.gas_limits(gas)?.judged(&self.limits.fallback)
+    pub fn judged_levels(&self, gas: &str) -> Option<&JudgedLevels> {
+        let judged = self.judged.get_or_init(|| {
+            let fallback = &self.limits.fallback;
+            self.limits
+                .gases
+                .iter()
+                .map(|g| g.judged(fallback))
+                .collect()
+        });
+        judged[*self.gas_index.get(gas)?].as_ref()
     }
 
     /// How a gas does harm; a gas the limits file does not know counts as toxic.

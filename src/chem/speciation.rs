@@ -257,13 +257,14 @@ impl Prepared {
             // The coupling makes the analytic slope long; a central difference is exact
             // enough for a Newton step that the bracket guards anyway.
             let d: f64 = 1e-6;
-            let f = self.charge_linked(x);
-            let slope =
-                (self.charge_linked(x * d.exp()) - self.charge_linked(x * (-d).exp())) / (2.0 * d);
+            let (f, ionic) = self.balance_linked(x);
+            let slope = (self.balance_linked(x * d.exp()).0
+                - self.balance_linked(x * (-d).exp()).0)
+                / (2.0 * d);
             return Point {
                 f,
                 dfdlnx: slope,
-                ionic: self.ionic_linked(x),
+                ionic,
             };
         }
         let h = x / self.gamma1;
@@ -319,8 +320,8 @@ impl Prepared {
         2.0 * kappa * a * b / (s + disc.sqrt())
     }
 
-    /// Each term as it stands after the links have taken their share of its total, at x.
-    fn linked_terms(&self, x: f64) -> SmallVec<[Term; INLINE_TERMS]> {
+    /// Each term's total after the links have taken their share of it, at x.
+    fn linked_totals(&self, x: f64) -> SmallVec<[f64; INLINE_TERMS]> {
         let mut totals: SmallVec<[f64; INLINE_TERMS]> =
             self.terms.iter().map(|t| t.c_total).collect();
         for l in &self.links {
@@ -328,9 +329,14 @@ impl Prepared {
             totals[l.first.0] -= y;
             totals[l.second.0] -= y;
         }
+        totals
+    }
+
+    /// Each term as it stands after the links have taken their share of its total, at x.
+    fn linked_terms(&self, x: f64) -> SmallVec<[Term; INLINE_TERMS]> {
         self.terms
             .iter()
-            .zip(&totals)
+            .zip(&self.linked_totals(x))
             .map(|(t, &total)| Term {
                 c_total: total.max(0.0),
                 ..*t
@@ -338,33 +344,26 @@ impl Prepared {
             .collect()
     }
 
-    fn charge_linked(&self, x: f64) -> f64 {
+    /// The charge balance and the ionic strength at x, with the links taking their share.
+    fn balance_linked(&self, x: f64) -> (f64, f64) {
         let h = x / self.gamma1;
         let oh = self.kw / (x * self.gamma1);
         let mut f = h - oh + self.strong_charge;
-        for t in &self.linked_terms(x) {
-            f += term_charge(t, x).charge;
+        let mut ionic = self.strong_ionic + h + oh;
+        for (t, &total) in self.terms.iter().zip(&self.linked_totals(x)) {
+            let c = term_charge_of(t, total.max(0.0), x);
+            f += c.charge;
+            ionic += c.ionic;
         }
         for l in &self.links {
             if l.charge != 0 {
-                f += l.charge as f64 * self.link_amount(l, x) / (1.0 + l.gas_factor);
+                let z = l.charge as f64;
+                let c = self.link_amount(l, x) / (1.0 + l.gas_factor);
+                f += z * c;
+                ionic += z * z * c;
             }
         }
-        f
-    }
-
-    fn ionic_linked(&self, x: f64) -> f64 {
-        let h = x / self.gamma1;
-        let oh = self.kw / (x * self.gamma1);
-        let mut sum = self.strong_ionic + h + oh;
-        for l in &self.links {
-            let z = l.charge as f64;
-            sum += z * z * self.link_amount(l, x) / (1.0 + l.gas_factor);
-        }
-        for t in &self.linked_terms(x) {
-            sum += term_charge(t, x).ionic;
-        }
-        0.5 * sum
+        (f, 0.5 * ionic)
     }
 }
 
@@ -435,6 +434,12 @@ struct Contribution {
 
 #[inline]
 fn term_charge(t: &Term, x: f64) -> Contribution {
+    term_charge_of(t, t.c_total, x)
+}
+
+/// As `term_charge`, for a total of `c_total` mol/L rather than the term's own.
+#[inline]
+fn term_charge_of(t: &Term, c_total: f64, x: f64) -> Contribution {
     let mo = moments(t, x);
     let zbar = t.z_base + mo.m1;
     let dzbar = mo.m2 - mo.m1 * mo.m1;
@@ -442,32 +447,20 @@ fn term_charge(t: &Term, x: f64) -> Contribution {
     let z2bar = t.z_base * t.z_base + 2.0 * t.z_base * mo.m1 + mo.m2;
     if t.gas_factor == 0.0 {
         return Contribution {
-            charge: t.c_total * zbar,
-            slope: t.c_total * dzbar,
-            ionic: t.c_total * z2bar,
+            charge: c_total * zbar,
+            slope: c_total * dzbar,
+            ionic: c_total * z2bar,
         };
     }
     let av = mo.volatile_share;
     let dav = av * ((t.n - t.volatile) as f64 - mo.m1);
     let denom = 1.0 + t.gas_factor * av;
-    let c_aq = t.c_total / denom;
+    let c_aq = c_total / denom;
     Contribution {
         charge: c_aq * zbar,
-        slope: c_aq * dzbar - t.c_total * zbar * t.gas_factor * dav / (denom * denom),
+        slope: c_aq * dzbar - c_total * zbar * t.gas_factor * dav / (denom * denom),
         ionic: c_aq * z2bar,
     }
-}
-
-/// A family's constants at one temperature, and what the solver needs of its species.
-#[derive(Clone, Copy)]
-struct FamilyConstants {
-    ka: [f64; MAX_STEPS],
-    steps: usize,
-    z0: i32,
-    /// Henry's law constant of its volatile form (0 when it has none).
-    hcp: f64,
-    volatile: Option<usize>,
-    lambda: Option<f64>,
 }
 
 /// The constants of one catalog at one temperature.
@@ -476,7 +469,8 @@ struct TemperatureConstants {
     t_bits: u64,
     kw: f64,
     debye_huckel_a: f64,
-    families: Vec<Option<FamilyConstants>>,
+    /// Each family's term at the temperature, before the mixture's amounts and volumes.
+    families: Vec<Option<Term>>,
 }
 
 thread_local! {
@@ -508,12 +502,13 @@ impl TemperatureConstants {
         self.families.resize(cat.families.len(), None);
     }
 
-    fn family(&mut self, cat: &Catalog, fid: FamilyId, t_k: f64) -> FamilyConstants {
-        *self.families[fid.0].get_or_insert_with(|| family_constants(cat, fid, t_k))
+    fn family(&mut self, cat: &Catalog, fid: FamilyId, t_k: f64) -> &Term {
+        self.families[fid.0].get_or_insert_with(|| term_at(cat, fid, t_k))
     }
 }
 
-fn family_constants(cat: &Catalog, fid: FamilyId, t_k: f64) -> FamilyConstants {
+/// A family's term at one temperature, with no amount in it yet.
+fn term_at(cat: &Catalog, fid: FamilyId, t_k: f64) -> Term {
     let fam = cat.family(fid);
     let phys = &cat.physical;
     let steps = fam.steps.len().min(MAX_STEPS);
@@ -525,12 +520,21 @@ fn family_constants(cat: &Catalog, fid: FamilyId, t_k: f64) -> FamilyConstants {
         .volatile
         .as_ref()
         .map_or(0.0, |v| henry_hcp(phys, v, t_k));
-    FamilyConstants {
+    let z0 = fam.species[0].charge;
+    Term {
+        family: fid,
+        c_total: 0.0,
+        n: steps,
+        z0,
+        z_base: (z0 - steps as i32) as f64,
         ka,
-        steps,
-        z0: fam.species[0].charge,
+        gamma_power: gamma_powers(z0, steps),
         hcp,
-        volatile: fam.volatile_index(),
+        beta: [0.0; MAX_STEPS + 1],
+        gas_factor: 0.0,
+        base_gas_factor: 0.0,
+        volatile: fam.volatile_index().unwrap_or(0),
+        henry: 1.0,
         lambda: fam
             .volatile
             .as_ref()
@@ -640,32 +644,20 @@ fn solve_with(
         if fid == cat.water || n == 0.0 {
             continue;
         }
-        let k = constants.family(cat, fid, t_k);
-        let (gas_factor, volatile) = match k.volatile {
-            Some(idx) if vg > 0.0 => ((vg / vl) / (k.hcp * phys.r * t_k), idx),
-            Some(idx) => (0.0, idx),
-            None => (0.0, 0),
-        };
-        let gamma_power = gamma_powers(k.z0, k.steps);
-        for &g in &gamma_power[..k.steps] {
+        let mut term = *constants.family(cat, fid, t_k);
+        for &g in &term.gamma_power[..term.n] {
             p.powers_used = (p.powers_used.0.min(g), p.powers_used.1.max(g));
         }
-        p.terms.push(Term {
-            family: fid,
-            c_total: n / vl,
-            n: k.steps,
-            z0: k.z0,
-            z_base: (k.z0 - k.steps as i32) as f64,
-            ka: k.ka,
-            gamma_power,
-            hcp: k.hcp,
-            beta: [0.0; MAX_STEPS + 1],
-            gas_factor: gas_factor * molal_scale,
-            base_gas_factor: gas_factor,
-            volatile,
-            henry: molal_scale,
-            lambda: k.lambda,
-        });
+        let gas_factor = if term.hcp > 0.0 && vg > 0.0 {
+            (vg / vl) / (term.hcp * phys.r * t_k)
+        } else {
+            0.0
+        };
+        term.c_total = n / vl;
+        term.gas_factor = gas_factor * molal_scale;
+        term.base_gas_factor = gas_factor;
+        term.henry = molal_scale;
+        p.terms.push(term);
     }
     if !cat.combined.is_empty() {
         for (ci, c) in cat.combined.iter().enumerate() {
@@ -845,7 +837,8 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
     let h = x / p.gamma1;
     let oh = p.kw / (x * p.gamma1);
     let mut families = Vec::with_capacity(p.terms.len());
-    let mut gases = Vec::new();
+    let volatile_terms = p.terms.iter().filter(|t| t.hcp > 0.0).count();
+    let mut gases = Vec::with_capacity(volatile_terms + p.links.len());
     let mut charge = h - oh + p.strong_charge;
     let mut scale = h + oh + p.strong_ionic;
     // Only a linked family's total changes with x; the common case needs no copy.

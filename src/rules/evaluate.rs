@@ -1,6 +1,6 @@
 //! Which rules a mixture meets.
 
-use super::{LoadedRule, Meeting, RuleSet};
+use super::{class_mask, LoadedRule, Meeting, RuleSet};
 use crate::catalog::{Catalog, SubstanceId};
 use crate::pairs::Side;
 
@@ -120,7 +120,24 @@ impl RuleSet {
     /// Every rule the mixture meets, in the order the rules are listed.
     pub fn evaluate<'r>(&'r self, cat: &Catalog, ctx: &RuleContext) -> Vec<RuleHit<'r>> {
         let mut hits = Vec::new();
+        let present_masks: smallvec::SmallVec<[u128; 8]> = ctx
+            .present
+            .iter()
+            .map(|p| {
+                class_mask(
+                    cat,
+                    cat.substance(p.substance)
+                        .classes
+                        .iter()
+                        .map(String::as_str),
+                )
+            })
+            .collect();
+        let someone_carries = |group: u128| present_masks.iter().any(|m| m & group != 0);
         for lr in &self.rules {
+            if !lr.meet_masks.iter().all(|&g| someone_carries(g)) {
+                continue;
+            }
             let r = &lr.rule;
             let w = &r.when;
             let candidates: Vec<Vec<usize>> = r

@@ -139,6 +139,34 @@ pub struct LoadedRule {
     pub origin: Origin,
     /// The line of the rule's `id` in its file, where it is known.
     pub line: Option<usize>,
+    /// Each `meet` group's classes as a [`class_mask`], so that a rule no component can
+    /// meet is passed over without comparing names.
+    pub meet_masks: Vec<u128>,
+}
+
+impl LoadedRule {
+    pub fn new(cat: &Catalog, rule: Rule, origin: Origin, line: Option<usize>) -> Self {
+        let meet_masks = rule
+            .meet
+            .iter()
+            .map(|g| class_mask(cat, g.iter().map(String::as_str)))
+            .collect();
+        LoadedRule {
+            rule,
+            origin,
+            line,
+            meet_masks,
+        }
+    }
+}
+
+/// A set of hazard classes as bits, by the class's place in the catalog. Classes past the
+/// 127th share the last bit, so two masks with no bit in common never share a class (the
+/// masks only rule out; names decide).
+pub fn class_mask<'a>(cat: &Catalog, classes: impl Iterator<Item = &'a str>) -> u128 {
+    classes
+        .filter_map(|c| cat.classes.iter().position(|k| k.id == c))
+        .fold(0, |mask, i| mask | 1u128 << i.min(127))
 }
 
 /// The rules in force: built-ins first, then site rules.
@@ -461,11 +489,7 @@ impl RuleSet {
                     let line = key_line(text, span, "id").or_else(|| line_of_id(text, &rule.id));
                     let problems = validate(cat, &rule);
                     if problems.is_empty() {
-                        rules.push(LoadedRule {
-                            rule,
-                            origin: origin.clone(),
-                            line,
-                        });
+                        rules.push(LoadedRule::new(cat, rule, origin.clone(), line));
                     } else {
                         errors.extend(
                             problems

@@ -408,11 +408,11 @@ fn evaluate(
     pb: &Profile,
     opts: &CheckOptions,
 ) -> PairOutcome {
-    let fail = |e: String| PairOutcome {
+    let fail = |e: &crate::check::CheckError| PairOutcome {
         severity: Severity::Review,
         worst_ratio: 0.0,
         gas: None,
-        headline: format!("could not be assessed: {e}; treat as unsafe until checked another way"),
+        headline: not_assessed_headline(e),
         codes: vec!["not-assessed".into()],
         computed: false,
     };
@@ -456,8 +456,18 @@ fn evaluate(
     vessel.closure = Closure::Open;
     match check(cat, th, rules, &vessel, &stream, opts) {
         Ok(r) => outcome_of(&r, pa.alone_score.max(pb.alone_score), !(pa.dry || pb.dry)),
-        Err(e) => fail(e.to_string()),
+        Err(e) => fail(&e),
     }
+}
+
+/// A pair's headline when its check failed: what stopped it, and the caution, once each
+/// (the error's own text carries both for a single check).
+fn not_assessed_headline(e: &crate::check::CheckError) -> String {
+    let why = match e {
+        crate::check::CheckError::Solve { what, error } => format!("{what}: {error}"),
+        crate::check::CheckError::Input(e) => e.to_string(),
+    };
+    format!("could not be assessed: {why}; treat as unsafe until checked another way")
 }
 
 /// A pair of containers that can meet: (i, j, level, index of the place in
@@ -898,6 +908,26 @@ mod tests {
             text.push_str(&format!("  - {{ id: {id}, location: \"{l}\", size: 1 L, substance: sodium chloride, amount: 5 g }}\n"));
         }
         Inventory::parse(&cat, "store.yaml", &text).expect("inventory")
+    }
+
+    #[test]
+    fn an_unassessed_pair_says_so_once() {
+        let e = crate::check::CheckError::Solve {
+            what: "the end state".into(),
+            error: crate::chem::SolveError::NoBracket,
+        };
+        let headline = not_assessed_headline(&e);
+        assert_eq!(
+            headline.matches("could not be assessed").count(),
+            1,
+            "{headline}"
+        );
+        assert_eq!(
+            headline.to_lowercase().matches("treat").count(),
+            1,
+            "{headline}"
+        );
+        assert!(headline.contains("the charge balance could not be bracketed"));
     }
 
     #[test]
