@@ -64,6 +64,7 @@ const CATALOG_FILES: &[&str] = &[
     "data/density.yaml",
     "data/dilution-heat.yaml",
     "data/volatility.yaml",
+    "data/pitzer.yaml",
 ];
 const GHS_FILE: &str = "data/ghs.yaml";
 const THRESHOLDS_FILE: &str = "rules/thresholds.yaml";
@@ -196,6 +197,7 @@ fn build(root: &Path, out: &Path) -> Result<(), Vec<String>> {
         density: src("data/density.yaml"),
         dilution: src("data/dilution-heat.yaml"),
         volatility: src("data/volatility.yaml"),
+        pitzer: src("data/pitzer.yaml"),
     });
     // Everything else is checked against the catalog, so its first problem ends the checks.
     let cat = match cat {

@@ -23,6 +23,7 @@ pub const HEAT: &str = include_str!("../data/heat.yaml");
 pub const DENSITY: &str = include_str!("../data/density.yaml");
 pub const DILUTION: &str = include_str!("../data/dilution-heat.yaml");
 pub const VOLATILITY: &str = include_str!("../data/volatility.yaml");
+pub const PITZER: &str = include_str!("../data/pitzer.yaml");
 pub const GHS: &str = include_str!("../data/ghs.yaml");
 pub const THRESHOLDS: &str = include_str!("../rules/thresholds.yaml");
 
@@ -55,6 +56,7 @@ pub fn sources() -> DataSources<'static> {
         density: ("data/density.yaml", DENSITY),
         dilution: ("data/dilution-heat.yaml", DILUTION),
         volatility: ("data/volatility.yaml", VOLATILITY),
+        pitzer: ("data/pitzer.yaml", PITZER),
     }
 }
 

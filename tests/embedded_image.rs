@@ -203,4 +203,22 @@ fn a_catalog_error_names_the_line_of_its_entry() {
         "{shown}"
     );
     assert!(shown.contains("appears twice"), "{shown}");
+
+    // An ion pair whose ion the species data do not know is named at its line.
+    let text = format!(
+        "{}\n  - cation: \"Na+\"\n    anion: \"Xx-\"\n    beta0: 0.1\n    beta1: 0.2\n    c_phi: 0\n    max_molality: 1\n    source: \"test\"\n",
+        embedded::PITZER.trim_end()
+    );
+    let line = embedded::PITZER.trim_end().lines().count() + 1;
+    let mut src = embedded::sources();
+    src.pitzer = ("data/pitzer.yaml", &text);
+    let shown = Catalog::load(src)
+        .err()
+        .expect("an unknown ion is refused")
+        .to_string();
+    assert!(
+        shown.starts_with(&format!("data/pitzer.yaml:{line}: ")),
+        "{shown}"
+    );
+    assert!(shown.contains("Xx-"), "{shown}");
 }

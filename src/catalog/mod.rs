@@ -12,6 +12,7 @@ pub mod ghs;
 pub mod heat;
 pub mod limits;
 pub mod physical;
+pub mod pitzer;
 pub mod species;
 pub mod substances;
 pub mod volatility;
@@ -46,6 +47,7 @@ pub struct DataSources<'a> {
     pub density: (&'a str, &'a str),
     pub dilution: (&'a str, &'a str),
     pub volatility: (&'a str, &'a str),
+    pub pitzer: (&'a str, &'a str),
 }
 
 /// A commercial solution: one millilitre holds `solute_mol_per_ml` of the solute.
@@ -256,6 +258,8 @@ pub struct Catalog {
     /// Volatility of solvents, and for each substance its solvent entry.
     pub volatilities: Vec<volatility::Volatility>,
     volatility_of: Vec<Option<usize>>,
+    /// Ion-interaction parameters for concentrated solutions.
+    pub pitzer: pitzer::PitzerTable,
     /// J/(g K) of the mixed liquid (water's).
     pub heat_capacity: f64,
     /// kJ/mol for H+ + OH- → H2O, as the heat data file states it (a check on water's dh).
@@ -340,6 +344,7 @@ impl Catalog {
         let density_file: density::DensityFile = parse(src.density)?;
         let dilution_file: dilution::DilutionFile = parse(src.dilution)?;
         let volatility_file: volatility::VolatilityFile = parse(src.volatility)?;
+        let pitzer_file: pitzer::PitzerFile = parse(src.pitzer)?;
         let species_src = Src::new(src.species);
         let substances_src = Src::new(src.substances);
 
@@ -756,7 +761,59 @@ impl Catalog {
             }
         }
 
+        let pitzer_src = Src::new(src.pitzer);
+        let charge_of = |formula: &str| -> Option<i32> {
+            // The proton is the solver's own unknown, not a species of a family.
+            if formula == "H+" {
+                return Some(1);
+            }
+            if let Some(&id) = ion_index.get(formula) {
+                return Some(species.strong_ions[id.0].charge);
+            }
+            species
+                .families
+                .iter()
+                .flat_map(|f| f.species.iter())
+                .find(|s| s.formula == formula)
+                .map(|s| s.charge)
+        };
+        let dh = &pitzer_file.debye_huckel;
+        if !(dh.a_phi > 0.0 && dh.b > 0.0) || dh.source.trim().is_empty() {
+            return Err(pitzer_src.err_line(
+                line_of(pitzer_src.text, None, "debye_huckel", "", 0),
+                "debye_huckel needs a positive a_phi and b, and a source".into(),
+            ));
+        }
+        let mut pitzer_pairs: Vec<pitzer::PitzerPair> = Vec::new();
+        for (i, e) in pitzer_file.pairs.iter().enumerate() {
+            let nth = pitzer_file.pairs[..i]
+                .iter()
+                .filter(|p| p.cation == e.cation)
+                .count();
+            let at = |m: String| pitzer_src.err_in("pairs", "cation", &e.cation, nth, m);
+            let (Some(zc), Some(za)) = (charge_of(&e.cation), charge_of(&e.anion)) else {
+                return Err(at(format!(
+                    "`{}`–`{}`: both ions must be species or strong ions of data/species.yaml, written as there",
+                    e.cation, e.anion
+                )));
+            };
+            let pair = pitzer::PitzerPair::from_entry(e, zc, za).map_err(at)?;
+            if pitzer_pairs
+                .iter()
+                .any(|p| p.cation == pair.cation && p.anion == pair.anion)
+            {
+                return Err(at(format!("`{}`–`{}` appears twice", e.cation, e.anion)));
+            }
+            pitzer_pairs.push(pair);
+        }
+        let pitzer = pitzer::PitzerTable {
+            a_phi_25: dh.a_phi,
+            b: dh.b,
+            pairs: pitzer_pairs,
+        };
+
         Ok(Catalog {
+            pitzer,
             families: species.families,
             strong_ions: species.strong_ions,
             substances: resolved,

@@ -3,6 +3,7 @@
 
 pub mod activity;
 pub mod mixture;
+pub mod pitzer;
 pub mod speciation;
 pub mod temperature;
 

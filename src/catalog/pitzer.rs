@@ -1,0 +1,129 @@
+//! Ion-interaction (Pitzer) parameters of cation–anion pairs (`data/pitzer.yaml`).
+
+use serde::{Deserialize, Serialize};
+
+#[derive(Debug, Clone, Deserialize)]
+pub struct PitzerFile {
+    #[allow(dead_code)]
+    pub description: String,
+    #[allow(dead_code)]
+    pub units: serde_yaml::Value,
+    pub debye_huckel: DebyeHuckelEntry,
+    pub pairs: Vec<PairEntry>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DebyeHuckelEntry {
+    pub a_phi: f64,
+    pub b: f64,
+    pub source: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PairEntry {
+    pub cation: String,
+    pub anion: String,
+    pub beta0: f64,
+    pub beta1: f64,
+    #[serde(default)]
+    pub beta2: f64,
+    #[serde(default)]
+    pub alpha1: Option<f64>,
+    #[serde(default)]
+    pub alpha2: Option<f64>,
+    pub c_phi: f64,
+    pub max_molality: f64,
+    pub source: String,
+}
+
+/// One cation–anion pair's parameters at 25 °C, with the ions' charges.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PitzerPair {
+    pub cation: String,
+    pub anion: String,
+    pub z_cation: i32,
+    pub z_anion: i32,
+    pub beta0: f64,
+    pub beta1: f64,
+    pub beta2: f64,
+    pub alpha1: f64,
+    pub alpha2: f64,
+    pub c_phi: f64,
+    /// The highest molality of the pure salt the parameters were fitted to.
+    pub max_molality: f64,
+    pub source: String,
+}
+
+/// The parameters the activity model for concentrated solutions uses.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct PitzerTable {
+    /// The Debye–Hückel slope for the osmotic coefficient at 25 °C.
+    pub a_phi_25: f64,
+    pub b: f64,
+    pub pairs: Vec<PitzerPair>,
+}
+
+impl PitzerTable {
+    pub fn pair(&self, cation: &str, anion: &str) -> Option<&PitzerPair> {
+        self.pairs
+            .iter()
+            .find(|p| p.cation == cation && p.anion == anion)
+    }
+}
+
+impl PitzerPair {
+    /// Checks an entry and fills in the usual exponents: α1 = 2 when either ion is
+    /// univalent; α1 = 1.4 and α2 = 12 for 2:2 salts.
+    pub fn from_entry(e: &PairEntry, z_cation: i32, z_anion: i32) -> Result<PitzerPair, String> {
+        if z_cation <= 0 || z_anion >= 0 {
+            return Err(format!(
+                "`{}`–`{}`: the cation must carry positive charge and the anion negative",
+                e.cation, e.anion
+            ));
+        }
+        let values = [e.beta0, e.beta1, e.beta2, e.c_phi];
+        if values.iter().any(|v| !v.is_finite()) {
+            return Err(format!(
+                "`{}`–`{}`: every parameter must be a number",
+                e.cation, e.anion
+            ));
+        }
+        if !(e.max_molality > 0.0 && e.max_molality <= 30.0) {
+            return Err(format!(
+                "`{}`–`{}`: max_molality must be between 0 and 30 mol/kg",
+                e.cation, e.anion
+            ));
+        }
+        if e.source.trim().is_empty() {
+            return Err(format!(
+                "`{}`–`{}`: the entry has no source",
+                e.cation, e.anion
+            ));
+        }
+        let two_two = z_cation >= 2 && z_anion <= -2;
+        let alpha1 = e.alpha1.unwrap_or(if two_two { 1.4 } else { 2.0 });
+        let alpha2 = e.alpha2.unwrap_or(12.0);
+        if !(alpha1 > 0.0 && alpha2 > 0.0) {
+            return Err(format!(
+                "`{}`–`{}`: alpha1 and alpha2 must be positive",
+                e.cation, e.anion
+            ));
+        }
+        Ok(PitzerPair {
+            cation: e.cation.clone(),
+            anion: e.anion.clone(),
+            z_cation,
+            z_anion,
+            beta0: e.beta0,
+            beta1: e.beta1,
+            beta2: e.beta2,
+            alpha1,
+            alpha2,
+            c_phi: e.c_phi,
+            max_molality: e.max_molality,
+            source: e.source.clone(),
+        })
+    }
+}
