@@ -857,7 +857,7 @@ fn water_density_matches_published_value() {
 #[test]
 fn densities_match_crc_concentrative_properties() {
     // CRC Handbook of Chemistry and Physics, Concentrative properties of aqueous solutions
-    // (20 °C). Table points the file says it read in a transcription of that table; 0.002 g/mL
+    // (20 °C). Table points the file says it read in a copy of that table; 0.002 g/mL
     // (about 0.1 %) allows for the last digit and for a point interpolated between two rows.
     // 96 % H2SO4: 1.8355 (the file's own reading; 1.84 on student pages, which is too coarse).
     assert_close(
@@ -886,7 +886,7 @@ fn densities_match_crc_concentrative_properties() {
     assert_close("28 % NH3, g/mL", density_at("ammonia", 28.0), 0.898, 0.002);
 
     // Points read on stored pages while writing these tests, tolerance 0.0005 g/mL (the last
-    // printed digit): a transcription of the same CRC table at 20 °C (engineering reference
+    // printed digit): a copy of the same CRC table at 20 °C (engineering reference
     // page "density of aqueous solutions of some inorganic substances" and the sodium-salt page).
     // 10 % NaCl 1.0707 (also 1070.7 kg/m3 in a Polish physico-chemical handbook table, read).
     assert_close(
