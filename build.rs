@@ -65,6 +65,7 @@ const CATALOG_FILES: &[&str] = &[
     "data/dilution-heat.yaml",
     "data/volatility.yaml",
     "data/pitzer.yaml",
+    "data/salting-out.yaml",
 ];
 const GHS_FILE: &str = "data/ghs.yaml";
 const THRESHOLDS_FILE: &str = "rules/thresholds.yaml";
@@ -198,6 +199,7 @@ fn build(root: &Path, out: &Path) -> Result<(), Vec<String>> {
         dilution: src("data/dilution-heat.yaml"),
         volatility: src("data/volatility.yaml"),
         pitzer: src("data/pitzer.yaml"),
+        salting: src("data/salting-out.yaml"),
     });
     // Everything else is checked against the catalog, so its first problem ends the checks.
     let cat = match cat {

@@ -176,6 +176,13 @@ pub fn state_report(
         vented_toxic_percent: pressure.vented_toxic_percent,
         heat: *heat,
         activity_model_exceeded: eq.activity_limited,
+        activity: crate::report::ActivityReport {
+            model: eq.activity_model,
+            ionic_strength_mol_kg: eq.molal_ionic_strength,
+            water_activity: eq.water_activity,
+            holds_to_mol_kg: eq.activity_range,
+            detail: eq.activity_detail.as_deref().cloned(),
+        },
         gases,
     }
 }
@@ -552,6 +559,67 @@ fn overpressure_finding(th: &Thresholds, p: &PourStates) -> Option<Finding> {
     ))
 }
 
+/// What the activity model did for one state, in words, where it went past Davies.
+pub fn activity_assumption(a: &crate::report::ActivityReport, when: &str) -> Option<String> {
+    let d = a.detail.as_ref()?;
+    let mut parts = Vec::new();
+    if !d.ion_interaction.is_empty() {
+        parts.push(format!(
+            "ion-interaction equations for {}",
+            d.ion_interaction.join(", ")
+        ));
+    }
+    if !d.extended_debye_huckel.is_empty() {
+        parts.push(format!(
+            "the extended Debye–Hückel form for {} (no ion-interaction parameters)",
+            d.extended_debye_huckel.join(", ")
+        ));
+    }
+    if !d.salting_own.is_empty() {
+        parts.push(format!(
+            "salting-out by their own parameters for {}",
+            d.salting_own.join(", ")
+        ));
+    }
+    if !d.salting_estimated.is_empty() {
+        parts.push(format!(
+            "salting-out by the upper estimate for {} (no published parameters)",
+            d.salting_estimated.join(", ")
+        ));
+    }
+    Some(format!(
+        "Activity {when} ({} mol/kg, water activity {}): {}; the model holds here to {} mol/kg.",
+        crate::text::fixed(a.ionic_strength_mol_kg, 2),
+        crate::text::fixed(a.water_activity, 3),
+        parts.join("; "),
+        crate::text::fixed(a.holds_to_mol_kg, 1)
+    ))
+}
+
+/// Why the activity model's range ends where it does for a state, in words.
+fn range_reason(s: &StateReport) -> String {
+    use crate::chem::{ActivityModelUsed, RangeSetBy};
+    let d = s.activity.detail.as_ref();
+    match (s.activity.model, d.map(|d| &d.range_set_by)) {
+        (ActivityModelUsed::Davies, _) | (_, None) => {
+            "the Davies equation's usual limit".to_string()
+        }
+        (_, Some(RangeSetBy::Pair(c, a))) => format!(
+            "the highest concentration the ion-interaction parameters of {} with {} were fitted to",
+            c,
+            a
+        ),
+        (_, Some(RangeSetBy::Unpaired(c, a))) => format!(
+            "{} with {} has no ion-interaction parameters and rests on the extended Debye–Hückel form, which holds to about this",
+            c,
+            a
+        ),
+        (_, Some(RangeSetBy::Extended(_))) => {
+            "its ions rest on the extended Debye–Hückel form, which holds to about this".to_string()
+        }
+    }
+}
+
 /// Past the activity model's range the figures are rough. That decides something only
 /// where a figure off by the model's uncertainty factor would cross a level; otherwise it
 /// is a note.
@@ -561,11 +629,16 @@ fn activity_model_note(th: &Thresholds, p: &PourStates) -> Option<Finding> {
         .into_iter()
         .filter(|s| s.activity_model_exceeded)
         .collect();
-    let i = states.iter().map(|s| s.ionic_strength).fold(0.0, f64::max);
-    if states.is_empty() {
-        return None;
-    }
-    let factor = am.uncertainty_factor(i);
+    // The state furthest past its range speaks for the note.
+    let beyond = |s: &StateReport| s.activity.ionic_strength_mol_kg - s.activity.holds_to_mol_kg;
+    let worst = *states
+        .iter()
+        .max_by(|a, b| beyond(a).total_cmp(&beyond(b)))?;
+    let (i, limit) = (
+        worst.activity.ionic_strength_mol_kg,
+        worst.activity.holds_to_mol_kg,
+    );
+    let factor = am.uncertainty_factor(i, limit);
     // A level within reach: below it as computed, at or above it with the factor.
     let within_reach = |r: Option<f64>| r.is_some_and(|r| r < 1.0 && r * factor >= 1.0);
     let mut could_cross: Vec<String> = Vec::new();
@@ -595,9 +668,10 @@ fn activity_model_note(th: &Thresholds, p: &PourStates) -> Option<Finding> {
         }
     }
     let range = format!(
-        "The ionic strength reaches {i:.2} mol/L, past the {} mol/L where the activity model holds ({}); computed partial pressures may be off by up to about {} there ({}).",
-        am.max_ionic_strength,
-        am.basis,
+        "The ionic strength reaches {} mol/kg, past the {} mol/kg up to which the activity model holds for this mixture ({}); computed partial pressures may be off by up to about {} there ({}).",
+        crate::text::fixed(i, 2),
+        crate::text::fixed(limit, 1),
+        range_reason(worst),
         fmt_times(factor),
         am.uncertainty_basis
     );

@@ -124,10 +124,13 @@ pub fn vapour_pressure(
             layer,
         });
     }
-    let water_x = if makeup.water_mol > 0.0 {
-        makeup.water_mol / (makeup.water_mol + dissolved + solvent_mol)
-    } else {
+    let water_x = if makeup.water_mol <= 0.0 {
         0.0
+    } else if eq.activity_model == crate::chem::ActivityModelUsed::IonInteraction {
+        // The concentrated model gives water's activity from the ions; solvents dilute it.
+        eq.water_activity * makeup.water_mol / (makeup.water_mol + solvent_mol)
+    } else {
+        makeup.water_mol / (makeup.water_mol + dissolved + solvent_mol)
     };
     shares.insert(
         0,

@@ -292,6 +292,11 @@ pub fn check(
             .map(|(g, f, pa)| crate::assess::gas_peak(cat, th, g, *f, *pa))
             .collect(),
     };
+    let mut assumptions = assumptions(cat, container, stream, opts, th);
+    assumptions.extend(crate::assess::activity_assumption(
+        &end.activity,
+        "when the pour is complete",
+    ));
     Ok(CheckReport {
         tool: "offgas",
         version: env!("CARGO_PKG_VERSION"),
@@ -324,7 +329,7 @@ pub fn check(
         findings,
         uncomputed_gases,
         inert_components: inert,
-        assumptions: assumptions(cat, container, stream, opts, th),
+        assumptions,
         cautions: th.cautions.clone(),
     })
 }
@@ -1024,8 +1029,9 @@ fn assumptions(
     let mut out = vec![
         "Equilibrium of a well-mixed liquid with its headspace; the headspace starts as air at 1 atm and each volatile form shares its moles with it by Henry's law on the molal scale (ammonia with its own activity in concentrated solution).".to_string(),
         format!(
-            "Activity coefficients by the Davies equation, held at their value at I = {} mol/L above that.",
-            th.activity_model.max_ionic_strength
+            "Activity coefficients by the Davies equation while the ionic strength stays below {dilute} mol/kg; above it by Pitzer's ion-interaction equations (pairs of cation and anion, no mixing terms) for the ions their parameters name and the extended Debye–Hückel form for the others, passing over from Davies between {dilute} and {} mol/kg. Water's activity from the same equations enters Kw, the steps that take up water (CO2 to bicarbonate) and the vapour pressure. Dissolved gases are salted out by the Weisenberger–Schumpe method; a gas with no parameters of its own takes an upper estimate. Beyond the range a mixture's parameters were fitted to, the coefficients are held at their value at the highest fitted ionic strength.",
+            2.0 * cat.pitzer.dilute_below,
+            dilute = cat.pitzer.dilute_below,
         ),
         "Constants adjusted to the mixture temperature by the van 't Hoff equation with each step's ionization enthalpy; Kw from its temperature equation.".to_string(),
         "Heat: proton transfers by Hess's law from each step's ionization enthalpy (25 °C values, no heat-capacity change), plus each concentrated reagent's heat of dilution from the water it had to the water of the mixture (integral heats of dilution); the mixture's mass from the density tables, warming as water does (4.18 J/(g K)) from the volume-weighted mean of the two temperatures, re-solved at the temperature it reaches.".to_string(),

@@ -24,6 +24,7 @@ pub const DENSITY: &str = include_str!("../data/density.yaml");
 pub const DILUTION: &str = include_str!("../data/dilution-heat.yaml");
 pub const VOLATILITY: &str = include_str!("../data/volatility.yaml");
 pub const PITZER: &str = include_str!("../data/pitzer.yaml");
+pub const SALTING: &str = include_str!("../data/salting-out.yaml");
 pub const GHS: &str = include_str!("../data/ghs.yaml");
 pub const THRESHOLDS: &str = include_str!("../rules/thresholds.yaml");
 
@@ -57,6 +58,7 @@ pub fn sources() -> DataSources<'static> {
         dilution: ("data/dilution-heat.yaml", DILUTION),
         volatility: ("data/volatility.yaml", VOLATILITY),
         pitzer: ("data/pitzer.yaml", PITZER),
+        salting: ("data/salting-out.yaml", SALTING),
     }
 }
 

@@ -163,3 +163,82 @@ mod tests {
         assert_eq!(pretty_words("pH 7 and Cl2"), "pH 7 and Cl₂");
     }
 }
+
+/// How many atoms of `element` a formula holds ("B(OH)4-", "O" → 4), counting groups in
+/// parentheses and a hydrate's water after a dot; None where the formula cannot be read.
+pub fn atom_count(formula: &str, element: &str) -> Option<u32> {
+    let (body, _) = split_charge(formula);
+    let mut total = 0;
+    for part in body.split('.') {
+        let digits = part.chars().take_while(|c| c.is_ascii_digit()).count();
+        let times: u32 = if digits > 0 {
+            part[..digits].parse().ok()?
+        } else {
+            1
+        };
+        total += times * count_in_group(&part[digits..], element)?;
+    }
+    Some(total)
+}
+
+/// Atoms of `element` in a formula without charge or hydrate dots.
+fn count_in_group(s: &str, element: &str) -> Option<u32> {
+    let bytes = s.as_bytes();
+    let mut stack: Vec<u32> = vec![0];
+    let mut i = 0;
+    let number_at = |i: &mut usize| -> u32 {
+        let start = *i;
+        while *i < bytes.len() && bytes[*i].is_ascii_digit() {
+            *i += 1;
+        }
+        s[start..*i].parse().unwrap_or(1)
+    };
+    while i < bytes.len() {
+        match bytes[i] {
+            b'(' | b'[' => {
+                stack.push(0);
+                i += 1;
+            }
+            b')' | b']' => {
+                i += 1;
+                let inner = stack.pop()?;
+                let n = number_at(&mut i);
+                *stack.last_mut()? += inner * n;
+            }
+            c if c.is_ascii_uppercase() => {
+                let start = i;
+                i += 1;
+                while i < bytes.len() && bytes[i].is_ascii_lowercase() {
+                    i += 1;
+                }
+                let symbol = &s[start..i];
+                let n = number_at(&mut i);
+                if symbol == element {
+                    *stack.last_mut()? += n;
+                }
+            }
+            _ => return None,
+        }
+    }
+    (stack.len() == 1).then(|| stack[0])
+}
+
+#[cfg(test)]
+mod atom_tests {
+    use super::atom_count;
+
+    #[test]
+    fn atoms_are_counted_through_groups_charges_and_water() {
+        assert_eq!(atom_count("CO2", "O"), Some(2));
+        assert_eq!(atom_count("HCO3-", "H"), Some(1));
+        assert_eq!(atom_count("B(OH)4-", "O"), Some(4));
+        assert_eq!(atom_count("B(OH)4-", "H"), Some(4));
+        assert_eq!(atom_count("CO3^2-", "O"), Some(3));
+        assert_eq!(atom_count("Fe(CN)6^4-", "N"), Some(6));
+        assert_eq!(atom_count("CuSO4.5H2O", "O"), Some(9));
+        assert_eq!(atom_count("CH3COOH", "H"), Some(4));
+        assert_eq!(atom_count("Cl-", "O"), Some(0));
+        assert_eq!(atom_count("H2O2", "O"), Some(2));
+        assert_eq!(atom_count("(OH", "O"), None);
+    }
+}

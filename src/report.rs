@@ -134,7 +134,23 @@ pub struct StateReport {
     /// Heat of the pour up to this state and the temperature it reaches.
     pub heat: crate::pour::HeatReport,
     pub activity_model_exceeded: bool,
+    /// How the activity coefficients were found for this state.
+    pub activity: ActivityReport,
     pub gases: Vec<GasReport>,
+}
+
+/// The activity model behind one state.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ActivityReport {
+    pub model: crate::chem::ActivityModelUsed,
+    /// mol/kg of water.
+    pub ionic_strength_mol_kg: f64,
+    pub water_activity: f64,
+    /// The ionic strength (mol/kg) up to which the model holds for this mixture.
+    pub holds_to_mol_kg: f64,
+    /// Which ions and gases the model for concentrated mixtures treated how.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub detail: Option<crate::chem::ActivityDetail>,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]

@@ -51,16 +51,17 @@ pub struct Overpressure {
 pub struct ActivityModel {
     pub max_ionic_strength: f64,
     pub basis: String,
-    /// Past `max_ionic_strength`, a computed partial pressure may be off by up to
-    /// 10^(uncertainty_per_mol_l × (I − max_ionic_strength)).
+    /// Past the ionic strength up to which the activity model holds for a mixture, a computed
+    /// partial pressure may be off by up to 10^(uncertainty_per_mol_l × (I − that)).
     pub uncertainty_per_mol_l: f64,
     pub uncertainty_basis: String,
 }
 
 impl ActivityModel {
-    /// The factor a computed partial pressure may be off by at ionic strength `i`.
-    pub fn uncertainty_factor(&self, i: f64) -> f64 {
-        10f64.powf(self.uncertainty_per_mol_l * (i - self.max_ionic_strength).max(0.0))
+    /// The factor a computed partial pressure may be off by at ionic strength `i`, for a
+    /// model that holds up to `holds_to` (both mol/kg).
+    pub fn uncertainty_factor(&self, i: f64, holds_to: f64) -> f64 {
+        10f64.powf(self.uncertainty_per_mol_l * (i - holds_to).max(0.0))
     }
 }
 

@@ -248,16 +248,17 @@ fn the_html_sheet_is_self_contained_and_has_sign_off_lines() {
 
 #[test]
 fn a_note_on_the_activity_model_is_never_the_target_of_a_fix() {
-    // Brine poured onto brine: I = 3 mol/L, nothing volatile or reactive. The step is clear
-    // with a note, so there is no first problem and no computed fix (no caustic to "cure"
-    // an ionic strength).
+    // Sodium acetate brine poured onto the same: 3 mol/L, past the 1 mol/kg where the
+    // extended Debye–Hückel form (acetate has no ion-interaction parameters) holds, nothing
+    // near a level. The step is clear with a note, so there is no first problem and no
+    // computed fix (no caustic to "cure" an ionic strength).
     let c = ctx();
     let e = Engine {
         cat: catalog(),
         th: &c.th,
         rules: &c.rules,
     };
-    let text = "name: brine\nvessel:\n  name: tank\n  capacity: 100 L\n  volume: 40 L\n  closure: open\n  contents:\n    - sodium chloride: 3 mol/L\nsteps:\n  - description: add more brine\n    add:\n      name: brine\n      volume: 20 L\n      contents:\n        - sodium chloride: 3 mol/L\n";
+    let text = "name: brine\nvessel:\n  name: tank\n  capacity: 100 L\n  volume: 40 L\n  closure: open\n  contents:\n    - sodium acetate: 3 mol/L\nsteps:\n  - description: add more brine\n    add:\n      name: brine\n      volume: 20 L\n      contents:\n        - sodium acetate: 3 mol/L\n";
     let p = parse(text);
     let r = e.run(&p).unwrap();
     assert_eq!(

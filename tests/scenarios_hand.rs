@@ -328,11 +328,13 @@ fn acetic_acid_solution() {
 }
 
 #[test]
-fn ionic_strength_past_the_activity_limit_is_flagged() {
+fn ionic_strength_past_the_activity_models_range_is_flagged() {
+    // 2 M sodium acetate: acetate has no ion-interaction parameters, so the mixture rests on
+    // the extended Debye–Hückel form, taken to hold to 1 mol/kg: past it.
     let eq = solve(
         catalog(),
         &mix(
-            &[("chloride", 1.0), ("Na+", 1.0)],
+            &[("acetate", 2.0), ("Na+", 2.0)],
             1.0,
             0.0,
             25.0,
@@ -341,11 +343,14 @@ fn ionic_strength_past_the_activity_limit_is_flagged() {
         &settings(),
     )
     .unwrap();
-    assert!(eq.activity_limited);
+    assert!(eq.activity_limited, "{eq:?}");
+    assert!((eq.activity_range - 1.0).abs() < 1e-12);
+    // 1 M NaCl with a little HCl lies within the 6 mol/kg the NaCl and HCl parameters were
+    // fitted to: the model for concentrated solutions holds there.
     let eq = solve(
         catalog(),
         &mix(
-            &[("chloride", 0.1), ("Na+", 0.1)],
+            &[("chloride", 1.1), ("Na+", 1.0)],
             1.0,
             0.0,
             25.0,
@@ -354,6 +359,26 @@ fn ionic_strength_past_the_activity_limit_is_flagged() {
         &settings(),
     )
     .unwrap();
+    assert_eq!(
+        eq.activity_model,
+        offgas::chem::ActivityModelUsed::IonInteraction
+    );
+    assert!(!eq.activity_limited, "{eq:?}");
+    assert!(eq.activity_range >= 6.0);
+    // Dilute: Davies.
+    let eq = solve(
+        catalog(),
+        &mix(
+            &[("chloride", 0.05), ("Na+", 0.05)],
+            1.0,
+            0.0,
+            25.0,
+            Closure::Open,
+        ),
+        &settings(),
+    )
+    .unwrap();
+    assert_eq!(eq.activity_model, offgas::chem::ActivityModelUsed::Davies);
     assert!(!eq.activity_limited);
 }
 

@@ -328,13 +328,41 @@ fn saline_into_an_ammonia_buffer_is_judged_by_what_the_pour_changes() {
 // ------------------------------------------------------------ the activity model's range
 
 #[test]
-fn brine_into_brine_is_clear_with_a_note() {
-    // 3 M NaCl into 3 M NaCl: I = 3 mol/L, nothing volatile, nothing reactive. Past the
-    // Davies range the figures may be off by 10^(0.25 × 2.5) = 4.2 ×, but there is no gas
-    // for that to lift past a level: a note, not a verdict.
+fn brine_into_brine_is_clear_and_within_the_model() {
+    // 3 M NaCl into 3 M NaCl: about 3.2 mol/kg, within the 6 mol/kg the NaCl ion-interaction
+    // parameters were fitted to; nothing volatile, nothing reactive: clear, and no note.
     let r = run(
         "name: c\ncapacity: 20 L\nvolume: 10 L\nclosure: vented\ncontents:\n  - sodium chloride: 3 mol/L\n",
         "name: s\nvolume: 2 L\ncontents:\n  - sodium chloride: 3 mol/L\n",
+    );
+    assert_eq!(r.severity, Severity::Clear, "{:?}", r.findings);
+    assert!(
+        r.findings
+            .iter()
+            .all(|f| f.code != "outside-activity-model"),
+        "{:?}",
+        r.findings
+    );
+    let a = &r.end_state.activity;
+    assert_eq!(a.model, offgas::chem::ActivityModelUsed::IonInteraction);
+    assert!(
+        a.ionic_strength_mol_kg > 3.0 && a.holds_to_mol_kg >= 6.0,
+        "{a:?}"
+    );
+    let d = a.detail.as_ref().unwrap();
+    assert!(d.ion_interaction.contains(&"Na+".to_string()));
+    assert!(d.ion_interaction.contains(&"Cl-".to_string()));
+}
+
+#[test]
+fn a_brine_of_ions_without_parameters_is_clear_with_a_note() {
+    // 3 M sodium acetate: acetate has no ion-interaction parameters, so its coefficients rest
+    // on the extended Debye–Hückel form, taken to hold to 1 mol/kg. Past it the figures may be
+    // off by 10^(0.25 (I − 1)), but the little acetic acid over a pH 9 brine is nowhere near
+    // a level: a note, not a verdict, naming why the range ends there.
+    let r = run(
+        "name: c\ncapacity: 20 L\nvolume: 10 L\nclosure: vented\ncontents:\n  - sodium acetate: 3 mol/L\n",
+        "name: s\nvolume: 2 L\ncontents:\n  - sodium acetate: 3 mol/L\n",
     );
     assert_eq!(r.severity, Severity::Clear, "{:?}", r.findings);
     let note = r
@@ -343,6 +371,12 @@ fn brine_into_brine_is_clear_with_a_note() {
         .find(|f| f.code == "outside-activity-model")
         .expect("the note is there");
     assert_eq!(note.severity, Severity::Info);
+    assert!(note.message.contains("extended Debye"), "{}", note.message);
+    let d = r.end_state.activity.detail.as_ref().unwrap();
+    assert!(
+        d.extended_debye_huckel.contains(&"CH3COO-".to_string()),
+        "{d:?}"
+    );
 }
 
 #[test]
@@ -352,7 +386,7 @@ fn past_the_range_a_gas_within_the_uncertainty_of_its_level_is_reviewed() {
     // scale it down to sit just under the short-term level, where a factor of
     // 10^(0.25 × 1.6) = 2.5 would lift it past: the note then decides review.
     let th = offgas::embedded::thresholds().unwrap();
-    let factor = th.activity_model.uncertainty_factor(2.1);
+    let factor = th.activity_model.uncertainty_factor(2.1, 0.5);
     assert!((factor - 10f64.powf(0.25 * 1.6)).abs() < 1e-9);
     let mut s = state_with(gas_report("NH3", 30.0, vec![GasKind::Toxic], None));
     s.gases[0].limit_ppm = Some(35.0);
@@ -361,6 +395,8 @@ fn past_the_range_a_gas_within_the_uncertainty_of_its_level_is_reviewed() {
     s.gases[0].idlh_ratio = Some(0.1);
     s.ionic_strength = 2.1;
     s.activity_model_exceeded = true;
+    s.activity.ionic_strength_mol_kg = 2.1;
+    s.activity.holds_to_mol_kg = 0.5;
     let f = state_findings(
         &th,
         &PourStates {

@@ -13,6 +13,7 @@ pub mod heat;
 pub mod limits;
 pub mod physical;
 pub mod pitzer;
+pub mod salting;
 pub mod species;
 pub mod substances;
 pub mod volatility;
@@ -48,6 +49,7 @@ pub struct DataSources<'a> {
     pub dilution: (&'a str, &'a str),
     pub volatility: (&'a str, &'a str),
     pub pitzer: (&'a str, &'a str),
+    pub salting: (&'a str, &'a str),
 }
 
 /// A commercial solution: one millilitre holds `solute_mol_per_ml` of the solute.
@@ -260,6 +262,8 @@ pub struct Catalog {
     volatility_of: Vec<Option<usize>>,
     /// Ion-interaction parameters for concentrated solutions.
     pub pitzer: pitzer::PitzerTable,
+    /// Salting-out parameters for dissolved neutral gases.
+    pub salting: salting::SaltingTable,
     /// J/(g K) of the mixed liquid (water's).
     pub heat_capacity: f64,
     /// kJ/mol for H+ + OH- → H2O, as the heat data file states it (a check on water's dh).
@@ -345,6 +349,7 @@ impl Catalog {
         let dilution_file: dilution::DilutionFile = parse(src.dilution)?;
         let volatility_file: volatility::VolatilityFile = parse(src.volatility)?;
         let pitzer_file: pitzer::PitzerFile = parse(src.pitzer)?;
+        let salting_file: salting::SaltingFile = parse(src.salting)?;
         let species_src = Src::new(src.species);
         let substances_src = Src::new(src.substances);
 
@@ -777,6 +782,7 @@ impl Catalog {
                 .find(|s| s.formula == formula)
                 .map(|s| s.charge)
         };
+        let charge_of = |formula: &str| charge_of(formula).or((formula == "OH-").then_some(-1));
         let dh = &pitzer_file.debye_huckel;
         if !(dh.a_phi > 0.0 && dh.b > 0.0) || dh.source.trim().is_empty() {
             return Err(pitzer_src.err_line(
@@ -806,14 +812,45 @@ impl Catalog {
             }
             pitzer_pairs.push(pair);
         }
+        let model = &pitzer_file.model;
+        if model.dilute_below_ionic_strength.is_nan()
+            || model.dilute_below_ionic_strength < 0.0
+            || model.dilute_basis.trim().is_empty()
+        {
+            return Err(pitzer_src.err_line(
+                line_of(pitzer_src.text, None, "model", "", 0),
+                "model needs dilute_below_ionic_strength of 0 or more (mol/kg) and a dilute_basis"
+                    .into(),
+            ));
+        }
+        let x = &pitzer_file.extended_debye_huckel;
+        if !(x.ion_size_angstrom > 0.0
+            && x.b_per_angstrom > 0.0
+            && x.b_dot.is_finite()
+            && x.max_ionic_strength > 0.0)
+            || x.source.trim().is_empty()
+        {
+            return Err(pitzer_src.err_line(
+                line_of(pitzer_src.text, None, "extended_debye_huckel", "", 0),
+                "extended_debye_huckel needs a positive ion_size_angstrom, b_per_angstrom and max_ionic_strength, a b_dot, and a source".into(),
+            ));
+        }
         let pitzer = pitzer::PitzerTable {
             a_phi_25: dh.a_phi,
             b: dh.b,
             pairs: pitzer_pairs,
+            fallback: pitzer::ExtendedDebyeHuckel {
+                ion_size_angstrom: x.ion_size_angstrom,
+                b_per_angstrom: x.b_per_angstrom,
+                b_dot: x.b_dot,
+                max_ionic_strength: x.max_ionic_strength,
+            },
+            dilute_below: model.dilute_below_ionic_strength,
         };
 
         Ok(Catalog {
             pitzer,
+            salting: load_salting(&salting_file, Src::new(src.salting), &charge_of)?,
             families: species.families,
             strong_ions: species.strong_ions,
             substances: resolved,
@@ -1041,4 +1078,76 @@ fn validate_family(f: &Family) -> Result<(), String> {
         }
     }
     Ok(())
+}
+
+/// Checks and resolves the salting-out parameters: every ion must be one the species data
+/// carry (so a misspelt one cannot be silently unused), every gas a neutral species.
+fn load_salting(
+    file: &salting::SaltingFile,
+    src: Src,
+    charge_of: &dyn Fn(&str) -> Option<i32>,
+) -> Result<salting::SaltingTable, CatalogError> {
+    let mut ions: Vec<(String, f64)> = Vec::new();
+    for e in &file.ions {
+        let at = |m: String| src.err_in("ions", "ion", &e.ion, 0, m);
+        match charge_of(&e.ion) {
+            Some(z) if z != 0 => {}
+            _ => {
+                return Err(at(format!(
+                    "`{}` is not an ion of data/species.yaml; write it as there (e.g. \"SO4^2-\")",
+                    e.ion
+                )))
+            }
+        }
+        if !e.h.is_finite() || e.source.trim().is_empty() {
+            return Err(at(format!("`{}` needs a number h and a source", e.ion)));
+        }
+        if ions.iter().any(|(f, _)| f == &e.ion) {
+            return Err(at(format!("`{}` appears twice", e.ion)));
+        }
+        ions.push((e.ion.clone(), e.h));
+    }
+    let check_gas = |h_g0: f64, h_t: f64, source: &str| {
+        h_g0.is_finite() && h_t.is_finite() && !source.trim().is_empty()
+    };
+    let mut gases: Vec<(String, salting::GasSalting)> = Vec::new();
+    for e in &file.gases {
+        let at = |m: String| src.err_in("gases", "species", &e.species, 0, m);
+        if charge_of(&e.species) != Some(0) {
+            return Err(at(format!(
+                "`{}` is not a neutral species of data/species.yaml",
+                e.species
+            )));
+        }
+        if !check_gas(e.h_g0, e.h_t, &e.source) || e.max_molarity.is_some_and(|m| m <= 0.0) {
+            return Err(at(format!(
+                "`{}` needs numbers h_g0 (and h_t), a positive max_molarity if given, and a source",
+                e.species
+            )));
+        }
+        gases.push((
+            e.species.clone(),
+            salting::GasSalting {
+                h_g0: e.h_g0,
+                h_t: e.h_t,
+                max_molarity: e.max_molarity,
+            },
+        ));
+    }
+    let u = &file.unlisted_gas;
+    if !check_gas(u.h_g0, 0.0, &u.source) {
+        return Err(src.err_line(
+            line_of(src.text, None, "unlisted_gas", "", 0),
+            "unlisted_gas needs a number h_g0 and a source".into(),
+        ));
+    }
+    Ok(salting::SaltingTable {
+        ions,
+        gases,
+        unlisted: salting::GasSalting {
+            h_g0: u.h_g0,
+            h_t: 0.0,
+            max_molarity: None,
+        },
+    })
 }

@@ -9,7 +9,27 @@ pub struct PitzerFile {
     #[allow(dead_code)]
     pub units: serde_yaml::Value,
     pub debye_huckel: DebyeHuckelEntry,
+    pub model: ModelEntry,
+    pub extended_debye_huckel: ExtendedDebyeHuckelEntry,
     pub pairs: Vec<PairEntry>,
+}
+
+/// When the solver uses the model.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ModelEntry {
+    pub dilute_below_ionic_strength: f64,
+    pub dilute_basis: String,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ExtendedDebyeHuckelEntry {
+    pub ion_size_angstrom: f64,
+    pub b_per_angstrom: f64,
+    pub b_dot: f64,
+    pub max_ionic_strength: f64,
+    pub source: String,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -56,6 +76,17 @@ pub struct PitzerPair {
     pub source: String,
 }
 
+/// The extended Debye–Hückel (b-dot) form for ions the pair parameters do not name:
+/// log10 γ = −A z² √I / (1 + B å √I) + ḃ I.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
+pub struct ExtendedDebyeHuckel {
+    pub ion_size_angstrom: f64,
+    pub b_per_angstrom: f64,
+    pub b_dot: f64,
+    /// Ionic strength (mol/kg) up to which the form is taken to hold.
+    pub max_ionic_strength: f64,
+}
+
 /// The parameters the activity model for concentrated solutions uses.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
 pub struct PitzerTable {
@@ -63,6 +94,10 @@ pub struct PitzerTable {
     pub a_phi_25: f64,
     pub b: f64,
     pub pairs: Vec<PitzerPair>,
+    pub fallback: ExtendedDebyeHuckel,
+    /// Below this ionic strength (mol/kg, an upper bound over the mixture) the solver keeps
+    /// the cheaper Davies equation.
+    pub dilute_below: f64,
 }
 
 impl PitzerTable {
@@ -71,9 +106,27 @@ impl PitzerTable {
             .iter()
             .find(|p| p.cation == cation && p.anion == anion)
     }
+
+    /// True when some pair's parameters name the ion.
+    pub fn names(&self, formula: &str) -> bool {
+        self.pairs
+            .iter()
+            .any(|p| p.cation == formula || p.anion == formula)
+    }
 }
 
 impl PitzerPair {
+    /// The ionic strength of the pure salt at the highest molality of the fit.
+    pub fn max_ionic_strength(&self) -> f64 {
+        let (zc, za) = (self.z_cation as f64, -self.z_anion as f64);
+        // The neutral salt holds za cations and zc anions per their common factor; the
+        // factor cancels in I per mole of cation.
+        let (nu_c, nu_a) = (za, zc);
+        let per_mol_cation = 0.5 * (nu_c * zc * zc + nu_a * za * za) / nu_c;
+        let salt_molality_to_cation = nu_c / gcd(self.z_cation, -self.z_anion) as f64;
+        self.max_molality * salt_molality_to_cation * per_mol_cation
+    }
+
     /// Checks an entry and fills in the usual exponents: α1 = 2 when either ion is
     /// univalent; α1 = 1.4 and α2 = 12 for 2:2 salts.
     pub fn from_entry(e: &PairEntry, z_cation: i32, z_anion: i32) -> Result<PitzerPair, String> {
@@ -125,5 +178,13 @@ impl PitzerPair {
             max_molality: e.max_molality,
             source: e.source.clone(),
         })
+    }
+}
+
+fn gcd(a: i32, b: i32) -> i32 {
+    if b == 0 {
+        a.abs()
+    } else {
+        gcd(b, a % b)
     }
 }

@@ -9,5 +9,6 @@ pub mod temperature;
 
 pub use mixture::{Closure, Mixture};
 pub use speciation::{
-    solve, solve_from, Equilibrium, FamilyState, GasState, SolveError, SolverSettings,
+    solve, solve_from, ActivityDetail, ActivityModelUsed, Equilibrium, FamilyState, GasState,
+    RangeSetBy, SolveError, SolverSettings,
 };

@@ -11,6 +11,11 @@
 use arrayvec::ArrayVec;
 use smallvec::SmallVec;
 
+mod concentrated;
+
+use concentrated::{ionic_strength_bound, Concentrated};
+pub use concentrated::{ActivityDetail, RangeSetBy};
+
 use super::activity::{Gammas, MAX_CHARGE};
 use super::mixture::{Closure, Mixture};
 use super::temperature::{henry_hcp, log_ka, log_kw};
@@ -118,9 +123,32 @@ pub struct Equilibrium {
     pub gases: Vec<GasState>,
     /// Charge balance residual over the sum of absolute charge concentrations.
     pub relative_charge_residual: f64,
-    /// True when the ionic strength passed the activity limit.
+    /// True when the ionic strength passed the range where the activity model holds for
+    /// this mixture (`activity_range`).
     pub activity_limited: bool,
+    /// Which equations gave the activity coefficients.
+    pub activity_model: ActivityModelUsed,
+    /// Ionic strength in mol/kg of water.
+    pub molal_ionic_strength: f64,
+    /// The ionic strength (mol/kg) up to which the model's coefficients are validated for
+    /// this mixture.
+    pub activity_range: f64,
+    /// Water's activity (1 for the dilute model, which does not follow it).
+    pub water_activity: f64,
+    /// How the model for concentrated mixtures treated each ion and gas (None for Davies).
+    pub activity_detail: Option<Box<ActivityDetail>>,
     pub iterations: usize,
+}
+
+/// The activity model a solve used.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum ActivityModelUsed {
+    /// The Davies equation, for dilute mixtures.
+    Davies,
+    /// Pitzer's ion-interaction equations, with the extended Debye–Hückel form for ions
+    /// they do not name and salting-out for neutral gases.
+    IonInteraction,
 }
 
 impl Equilibrium {
@@ -163,6 +191,11 @@ struct Term {
     henry: f64,
     /// The neutral form's self-interaction λ at the temperature, when the data give one.
     lambda: Option<f64>,
+    /// ln γ of each species, under the model for concentrated mixtures.
+    ln_gamma: [f64; MAX_STEPS + 1],
+    /// Molecules of water each step takes up (CO2 + H2O → HCO3- + H+ takes one), so that
+    /// its constant carries water's activity where that is followed.
+    water_taken: [f64; MAX_STEPS],
 }
 
 /// A combined species prepared for evaluation: parents are indices into `terms`.
@@ -204,7 +237,7 @@ fn gamma_powers(z0: i32, steps: usize) -> [usize; MAX_STEPS] {
 /// Families a mixture usually holds at most; more spill to the heap.
 const INLINE_TERMS: usize = 16;
 
-struct Prepared {
+struct Prepared<'c> {
     /// mol/kg of water per mol/L of liquid.
     molal: f64,
     terms: SmallVec<[Term; INLINE_TERMS]>,
@@ -212,14 +245,53 @@ struct Prepared {
     strong_charge: f64,
     strong_ionic: f64,
     kw: f64,
+    /// Kw with water's activity: [H+][OH-] γ(H+) γ(OH-) = Kw a(H2O).
+    kw_eff: f64,
+    inv_gamma_h: f64,
+    inv_gamma_oh: f64,
     gamma1: f64,
     /// The least and greatest index into the table of powers of γ(1) that any step uses.
     powers_used: (usize, usize),
+    /// The model for concentrated mixtures, when the mixture needs it.
+    concentrated: Option<Concentrated<'c>>,
+    /// Ionic strength above which Davies' coefficients are held.
+    davies_limit: f64,
 }
 
-impl Prepared {
+impl Prepared<'_> {
+    /// Moves the coefficients of the concentrated model a share `step` of the way to their
+    /// values for the composition at x; returns the largest change of any ln γ the whole way
+    /// would make.
+    fn set_concentrated_activity(&mut self, x: f64, step: f64) -> f64 {
+        let h = x * self.inv_gamma_h;
+        let oh = self.kw_eff * self.inv_gamma_oh / x;
+        let Some(conc) = self.concentrated.as_mut() else {
+            return 0.0;
+        };
+        let c = conc.update(&mut self.terms, &mut self.links, x, h, oh, step);
+        let (ln_h, ln_oh) = (self.inv_gamma_h.ln(), self.inv_gamma_oh.ln());
+        let ln_kw = (self.kw_eff / self.kw).ln();
+        let (to_h, to_oh, to_kw) = (
+            c.inv_gamma_h.ln(),
+            c.inv_gamma_oh.ln(),
+            c.water_activity.ln(),
+        );
+        let change = c
+            .change
+            .max((to_h - ln_h).abs())
+            .max((to_oh - ln_oh).abs())
+            .max((to_kw - ln_kw).abs());
+        self.inv_gamma_h = (ln_h + step * (to_h - ln_h)).exp();
+        self.inv_gamma_oh = (ln_oh + step * (to_oh - ln_oh)).exp();
+        self.kw_eff = self.kw * (ln_kw + step * (to_kw - ln_kw)).exp();
+        change
+    }
+
     fn set_activity(&mut self, g: &Gammas) {
         self.gamma1 = g.gamma(1);
+        self.inv_gamma_h = 1.0 / self.gamma1;
+        self.inv_gamma_oh = 1.0 / self.gamma1;
+        self.kw_eff = self.kw;
         // γ(z) = γ(1)^(z²) and γ(z)/γ(z−1) = γ(1)^(2z−1): every coefficient the
         // constants need is a power of γ(1), built here by products, not one power each.
         let mut powers = [1.0; 2 * MAX_POWER + 1];
@@ -267,8 +339,8 @@ impl Prepared {
                 ionic,
             };
         }
-        let h = x / self.gamma1;
-        let oh = self.kw / (x * self.gamma1);
+        let h = x * self.inv_gamma_h;
+        let oh = self.kw_eff * self.inv_gamma_oh / x;
         let mut f = h - oh + self.strong_charge;
         let mut d = h + oh;
         let mut ionic = self.strong_ionic + h + oh;
@@ -346,8 +418,8 @@ impl Prepared {
 
     /// The charge balance and the ionic strength at x, with the links taking their share.
     fn balance_linked(&self, x: f64) -> (f64, f64) {
-        let h = x / self.gamma1;
-        let oh = self.kw / (x * self.gamma1);
+        let h = x * self.inv_gamma_h;
+        let oh = self.kw_eff * self.inv_gamma_oh / x;
         let mut f = h - oh + self.strong_charge;
         let mut ionic = self.strong_ionic + h + oh;
         for (t, &total) in self.terms.iter().zip(&self.linked_totals(x)) {
@@ -469,6 +541,8 @@ struct TemperatureConstants {
     t_bits: u64,
     kw: f64,
     debye_huckel_a: f64,
+    /// The osmotic Debye–Hückel slope of the concentrated model.
+    a_phi: f64,
     /// Each family's term at the temperature, before the mixture's amounts and volumes.
     families: Vec<Option<Term>>,
 }
@@ -483,6 +557,7 @@ thread_local! {
             t_bits: u64::MAX,
             kw: 0.0,
             debye_huckel_a: 0.0,
+            a_phi: 0.0,
             families: Vec::new(),
         }) };
 }
@@ -498,6 +573,11 @@ impl TemperatureConstants {
         self.t_bits = t_k.to_bits();
         self.kw = (log_kw(phys, cat.family(cat.water), t_k) * std::f64::consts::LN_10).exp();
         self.debye_huckel_a = phys.debye_huckel_a(t_k);
+        self.a_phi = super::pitzer::a_phi(
+            &cat.pitzer,
+            self.debye_huckel_a,
+            phys.debye_huckel_a(phys.t_ref),
+        );
         self.families.clear();
         self.families.resize(cat.families.len(), None);
     }
@@ -535,12 +615,37 @@ fn term_at(cat: &Catalog, fid: FamilyId, t_k: f64) -> Term {
         base_gas_factor: 0.0,
         volatile: fam.volatile_index().unwrap_or(0),
         henry: 1.0,
+        ln_gamma: [0.0; MAX_STEPS + 1],
+        water_taken: water_taken(fam, steps),
         lambda: fam
             .volatile
             .as_ref()
             .and_then(|v| v.self_interaction.as_ref())
             .map(|si| si.lambda(t_k)),
     }
+}
+
+/// Molecules of water each step of a family takes up, read from the formulas: an acid that
+/// gains w O and 2w − 1 H on losing its proton has taken up w waters.
+fn water_taken(fam: &crate::catalog::species::Family, steps: usize) -> [f64; MAX_STEPS] {
+    use crate::notation::atom_count;
+    let mut out = [0.0; MAX_STEPS];
+    for (j, w) in out.iter_mut().enumerate().take(steps) {
+        let (acid, base) = (&fam.species[j].formula, &fam.species[j + 1].formula);
+        let count = |f: &str, e: &str| atom_count(f, e).map(i64::from);
+        if let (Some(oa), Some(ob), Some(ha), Some(hb)) = (
+            count(acid, "O"),
+            count(base, "O"),
+            count(acid, "H"),
+            count(base, "H"),
+        ) {
+            let taken = ob - oa;
+            if taken > 0 && hb + 1 - ha == 2 * taken {
+                *w = taken as f64;
+            }
+        }
+    }
+    out
 }
 
 /// Solves the equilibrium of `m` and its headspace.
@@ -583,6 +688,7 @@ impl TemperatureConstants {
             t_bits: u64::MAX,
             kw: 0.0,
             debye_huckel_a: 0.0,
+            a_phi: 0.0,
             families: Vec::new(),
         }
     }
@@ -634,8 +740,13 @@ fn solve_with(
         strong_charge,
         strong_ionic,
         kw: constants.kw,
+        kw_eff: constants.kw,
+        inv_gamma_h: 1.0,
+        inv_gamma_oh: 1.0,
         gamma1: 1.0,
         powers_used: (MAX_POWER, MAX_POWER),
+        concentrated: None,
+        davies_limit: s.activity_limit,
     };
     for &(fid, n) in &m.families {
         if !(n.is_finite() && n >= 0.0) {
@@ -689,6 +800,11 @@ fn solve_with(
         }
     }
 
+    // Only a mixture whose ionic strength could pass the dilute range may need the model for
+    // concentrated mixtures; whether it does is read off the dilute solve.
+    let could_be_concentrated =
+        ionic_strength_bound(cat, &m.ions, &m.families, vl) * molal > cat.pitzer.dilute_below;
+
     // Ionic strength: from the neighbouring state, or the strong ions plus each family
     // half-charged.
     let (ionic, ln_x) = match near {
@@ -700,23 +816,57 @@ fn solve_with(
             (1e-7f64).ln(),
         ),
     };
-    let root = find_root(
-        &mut p,
-        ln_x,
-        ionic,
-        s,
-        &Activity {
-            phys,
-            debye_huckel_a: constants.debye_huckel_a,
+    let activity = Activity {
+        phys,
+        debye_huckel_a: constants.debye_huckel_a,
+        molal_scale,
+    };
+    let mut root = find_root(&mut p, ln_x, ionic, s, &activity)?;
+    // Above the dilute range the ion-interaction model takes over, from the dilute root;
+    // below it Davies, which is cheaper and gives the same coefficients there.
+    if could_be_concentrated && root.ionic * molal > cat.pitzer.dilute_below {
+        p.concentrated = Some(Concentrated::new(
+            cat,
+            &m.ions,
+            vl,
+            &p.terms,
+            molal,
             molal_scale,
-        },
-    )?;
-    Ok(assemble(cat, m, &p, &root, vg))
+            t_k,
+            constants.a_phi,
+            constants.debye_huckel_a,
+        ));
+        let dilute_iterations = root.iterations;
+        let h = root.x * p.inv_gamma_h;
+        let oh = p.kw_eff * p.inv_gamma_oh / root.x;
+        if let Some(conc) = p.concentrated.as_mut() {
+            conc.hold_at_range(&p.terms, root.x, h, oh);
+        }
+        root = find_root_concentrated(&mut p, root.x.ln(), s, &activity)?;
+        root.iterations += dilute_iterations;
+    }
+    let mut eq = assemble(cat, m, &p, &root, vg);
+    eq.molal_ionic_strength = eq.ionic_strength * molal;
+    if let Some(conc) = &p.concentrated {
+        eq.activity_model = ActivityModelUsed::IonInteraction;
+        eq.molal_ionic_strength = conc.ionic_strength();
+        eq.activity_range = conc.validated_range().0;
+        eq.activity_detail = Some(Box::new(conc.detail(&p.terms)));
+        eq.activity_limited = eq.molal_ionic_strength > eq.activity_range;
+        eq.water_activity = conc.summary.water_activity;
+    }
+    Ok(eq)
 }
 
-/// The bracket of ln a(H+) the solver searches: pH 22 to pH −4.
-const LN_X_LO: f64 = -50.65687204586901; // ln 1e-22
-const LN_X_HI: f64 = 9.210340371976184; // ln 1e4
+/// The largest change of any ln γ at which the concentrated model's coefficients count as
+/// settled.
+const COEFFICIENTS_SETTLED: f64 = 1e-10;
+
+/// The bracket of ln a(H+) the solver searches: pH 30 to pH −10 (in strong caustic and
+/// fuming acids the concentrated model's coefficients can put the activity of OH- or H+ far
+/// above its molality).
+const LN_X_LO: f64 = -69.07755278982137; // ln 1e-30
+const LN_X_HI: f64 = 23.025850929940457; // ln 1e10
 
 /// What the activity coefficients are worked out from.
 struct Activity<'a> {
@@ -731,6 +881,57 @@ struct Root {
     ionic: f64,
     limited: bool,
     iterations: usize,
+}
+
+/// Most rounds of coefficients a concentrated mixture's solve may take.
+const MAX_COEFFICIENT_ROUNDS: usize = 200;
+
+/// The least share of the way a round moves the coefficients.
+const MIN_COEFFICIENT_STEP: f64 = 1.0 / 64.0;
+
+/// The root of a concentrated mixture: a bracketed Newton search with the coefficients held,
+/// then the coefficients set from the composition there, in rounds until they settle. The
+/// coefficients of a concentrated mixture move the charge balance by more than a search that
+/// follows them at every step can bracket; held, each search is an ordinary one and starts
+/// from the last root.
+fn find_root_concentrated(
+    p: &mut Prepared,
+    start: f64,
+    s: &SolverSettings,
+    a: &Activity,
+) -> Result<Root, SolveError> {
+    // The first composition is read with ideal coefficients.
+    p.set_activity(&Gammas::ideal());
+    p.set_concentrated_activity(start.exp(), 1.0);
+    let mut ln_x = start;
+    let mut iterations = 0;
+    // Each round moves the coefficients the whole way while that converges; where a round
+    // undoes the last (the coefficients and the speciation push each other back and forth,
+    // as in fuming acids), the step is halved.
+    let mut step = 1.0;
+    let mut last_change = f64::INFINITY;
+    for _ in 0..MAX_COEFFICIENT_ROUNDS {
+        let r = find_root(p, ln_x, 0.0, s, a)?;
+        iterations += r.iterations;
+        ln_x = r.x.ln();
+        let change = p.set_concentrated_activity(r.x, step);
+        if change >= 0.95 * last_change {
+            step = (step * 0.5).max(MIN_COEFFICIENT_STEP);
+        } else if change > 0.5 * last_change {
+            // Converging, but slowly: a longer step may still be stable.
+            step = (step * 1.5).min(1.0);
+        }
+        last_change = change;
+        if change <= COEFFICIENTS_SETTLED {
+            // One more search with the coefficients that hold at the root.
+            let last = find_root(p, ln_x, 0.0, s, a)?;
+            return Ok(Root {
+                iterations: iterations + last.iterations,
+                ..last
+            });
+        }
+    }
+    Err(SolveError::NoConvergence(iterations))
 }
 
 /// Safeguarded Newton in ln x within a bracket where the charge balance changes sign, with
@@ -751,7 +952,12 @@ fn find_root(
     let limit = s.activity_limit;
     let coefficients = |i: f64| Gammas::davies_with_a(a.phys, a.debye_huckel_a, i.min(limit));
     let mut ionic = start_ionic;
-    p.set_activity(&coefficients(ionic));
+    // The concentrated model's coefficients are held for this search and set between
+    // searches (`find_root_concentrated`).
+    let frozen = p.concentrated.is_some();
+    if !frozen {
+        p.set_activity(&coefficients(ionic));
+    }
     let (mut lo, mut hi) = (LN_X_LO, LN_X_HI);
     // True when the coefficients changed since the bracket was last the full one.
     let mut stale = false;
@@ -772,19 +978,24 @@ fn find_root(
         } else {
             f64::NAN
         };
-        // Above the limit the coefficients no longer change with I.
-        let ionic_settled = (pt.ionic - ionic).abs() <= 1e-10 * pt.ionic.max(1e-12)
-            || (ionic > limit && pt.ionic > limit);
-        let neutrals_settled = p.update_neutral_activity(ax, a.molal_scale);
-        if !ionic_settled {
-            ionic = pt.ionic;
-            p.set_activity(&coefficients(ionic));
-        }
-        stale |= !(ionic_settled && neutrals_settled);
+        let settled = if frozen {
+            true
+        } else {
+            // Above the limit the coefficients no longer change with I.
+            let ionic_settled = (pt.ionic - ionic).abs() <= 1e-10 * pt.ionic.max(1e-12)
+                || (ionic > limit && pt.ionic > limit);
+            let neutrals_settled = p.update_neutral_activity(ax, a.molal_scale);
+            if !ionic_settled {
+                ionic = pt.ionic;
+                p.set_activity(&coefficients(ionic));
+            }
+            ionic_settled && neutrals_settled
+        };
+        stale |= !settled;
         // A Newton step below the tolerance, with coefficients that the step no longer
         // changes, is the root (the step may land on one of the bracket's ends).
         if newton.is_finite() && (newton - x).abs() < s.tolerance {
-            if ionic_settled && neutrals_settled {
+            if settled {
                 return Ok(Root {
                     x: newton.exp(),
                     ionic: pt.ionic,
@@ -801,7 +1012,7 @@ fn find_root(
                 // its sign over the whole range.
                 return Err(SolveError::NoBracket);
             }
-            if !stale && ionic_settled && neutrals_settled {
+            if !stale && settled {
                 // Closed on a root that rounding keeps the Newton step from confirming.
                 return Ok(Root {
                     x: (0.5 * (lo + hi)).exp(),
@@ -834,8 +1045,8 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
     let phys = &cat.physical;
     let t_k = m.temperature_k;
     let x = root.x;
-    let h = x / p.gamma1;
-    let oh = p.kw / (x * p.gamma1);
+    let h = x * p.inv_gamma_h;
+    let oh = p.kw_eff * p.inv_gamma_oh / x;
     let mut families = Vec::with_capacity(p.terms.len());
     let volatile_terms = p.terms.iter().filter(|t| t.hcp > 0.0).count();
     let mut gases = Vec::with_capacity(volatile_terms + p.links.len());
@@ -925,6 +1136,11 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
             0.0
         },
         activity_limited: root.limited,
+        activity_model: ActivityModelUsed::Davies,
+        molal_ionic_strength: root.ionic,
+        activity_range: p.davies_limit,
+        water_activity: 1.0,
+        activity_detail: None,
         iterations: root.iterations,
     }
 }

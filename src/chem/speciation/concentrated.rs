@@ -1,0 +1,520 @@
+//! The activity coefficients of a concentrated mixture while it is solved: every ion's own
+//! coefficient from the ion-interaction equations (or the extended Debye–Hückel form for an
+//! ion the parameters do not name), the neutral gases' salting-out, and water's activity,
+//! all following the composition at the current iterate.
+
+use smallvec::SmallVec;
+
+use super::{liquid_total, weights, Link, Term, INLINE_TERMS, MAX_STEPS};
+use crate::catalog::pitzer::PitzerTable;
+use crate::catalog::{Catalog, FamilyId, IonId};
+use crate::chem::pitzer::{Interactions, IonTreatment, Summary};
+
+/// Inline room for the ions of one mixture.
+const INLINE_SLOTS: usize = 32;
+
+/// A species that is not an ion of the interaction model (a neutral one).
+const NO_SLOT: u16 = u16::MAX;
+
+/// Share of its sign's charge an ion must hold to set the mixture's validated range.
+const MAJOR_SHARE: f64 = 0.1;
+
+/// The neutral form of a family whose coefficient is followed: its salting-out and its
+/// self-interaction.
+#[derive(Clone, Copy)]
+struct NeutralForm {
+    species: usize,
+    /// True when the salting-out parameters are the gas's own, not the upper estimate.
+    own_salting: bool,
+    /// h_G at the temperature, L/mol, where the data give one.
+    h_gas: Option<f64>,
+    lambda: Option<f64>,
+}
+
+pub(super) struct Concentrated<'c> {
+    table: &'c PitzerTable,
+    cat: &'c Catalog,
+    formulas: SmallVec<[&'c str; INLINE_SLOTS]>,
+    interactions: Interactions<'c>,
+    /// mol/kg of water per mol/L of liquid.
+    molal: f64,
+    molal_scale: f64,
+    /// Ionic strength (mol/kg) above which the coefficients are held.
+    hold: f64,
+    /// mol/kg of every ion: the strong ions first (fixed), then H+ and OH-, then the
+    /// families' charged species.
+    molalities: SmallVec<[f64; INLINE_SLOTS]>,
+    held: SmallVec<[f64; INLINE_SLOTS]>,
+    ln_gamma: SmallVec<[f64; INLINE_SLOTS]>,
+    /// Each ion's salting-out parameter h_i, L/mol (0 where the data have none).
+    salting_h: SmallVec<[f64; INLINE_SLOTS]>,
+    h_slot: usize,
+    oh_slot: usize,
+    term_slots: SmallVec<[[u16; MAX_STEPS + 1]; INLINE_TERMS]>,
+    neutrals: SmallVec<[Option<NeutralForm>; INLINE_TERMS]>,
+    pub(super) summary: Summary,
+    /// ln of water's activity as applied to the constants (moved by the same steps as the
+    /// coefficients).
+    ln_water: f64,
+    /// The Davies equation's ln γ for unit charge is a function of I: its A (log10) and b.
+    davies_a: f64,
+    davies_b: f64,
+    /// The ionic strength (mol/kg) where the model starts to take over from Davies; it has
+    /// taken over wholly at twice this.
+    dilute_below: f64,
+}
+
+/// The activity coefficients that the charge balance and the mass action use, as set by
+/// one update.
+pub(super) struct Coefficients {
+    pub inv_gamma_h: f64,
+    pub inv_gamma_oh: f64,
+    pub water_activity: f64,
+    /// The largest change of any ln γ in this update.
+    pub change: f64,
+}
+
+impl<'c> Concentrated<'c> {
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn new(
+        cat: &'c Catalog,
+        ions: &[(IonId, f64)],
+        liquid_l: f64,
+        terms: &[Term],
+        molal: f64,
+        molal_scale: f64,
+        t_k: f64,
+        a_phi: f64,
+        debye_huckel_a: f64,
+    ) -> Self {
+        let table = &cat.pitzer;
+        let mut formulas: SmallVec<[(&str, i32); INLINE_SLOTS]> = SmallVec::new();
+        let mut molalities: SmallVec<[f64; INLINE_SLOTS]> = SmallVec::new();
+        for &(id, n) in ions {
+            let ion = cat.ion(id);
+            formulas.push((ion.formula.as_str(), ion.charge));
+            molalities.push(n / liquid_l * molal);
+        }
+        let h_slot = formulas.len();
+        formulas.push(("H+", 1));
+        formulas.push(("OH-", -1));
+        molalities.extend([0.0, 0.0]);
+        let mut term_slots = SmallVec::new();
+        let mut neutrals = SmallVec::new();
+        for t in terms {
+            let fam = cat.family(t.family);
+            let mut slots = [NO_SLOT; MAX_STEPS + 1];
+            for (j, sp) in fam.species.iter().enumerate().take(t.n + 1) {
+                if sp.charge != 0 {
+                    slots[j] = formulas.len() as u16;
+                    formulas.push((sp.formula.as_str(), sp.charge));
+                    molalities.push(0.0);
+                }
+            }
+            term_slots.push(slots);
+            neutrals.push(fam.volatile.as_ref().and_then(|v| {
+                let species = fam.volatile_index()?;
+                (fam.species[species].charge == 0).then(|| NeutralForm {
+                    species,
+                    own_salting: cat.salting.gas(&v.species).is_some(),
+                    h_gas: Some(
+                        cat.salting
+                            .gas_or_unlisted(&v.species)
+                            .h_g(t_k, cat.physical.t_ref),
+                    ),
+                    lambda: t.lambda,
+                })
+            }));
+        }
+        let salting_h = formulas
+            .iter()
+            .map(|(f, _)| cat.salting.ion_h(f).unwrap_or(0.0))
+            .collect();
+        let n = formulas.len();
+        let interactions = Interactions::new(table, formulas.iter().copied(), a_phi);
+        Concentrated {
+            table,
+            cat,
+            formulas: formulas.iter().map(|f| f.0).collect(),
+            interactions,
+            molal,
+            molal_scale,
+            // Set from the composition by `hold_at_range`; unheld until then.
+            hold: f64::INFINITY,
+            molalities,
+            held: SmallVec::from_elem(0.0, n),
+            ln_gamma: SmallVec::from_elem(0.0, n),
+            salting_h,
+            h_slot,
+            oh_slot: h_slot + 1,
+            term_slots,
+            neutrals,
+            summary: Summary {
+                ionic_strength: 0.0,
+                osmotic_coefficient: 1.0,
+                water_activity: 1.0,
+            },
+            ln_water: 0.0,
+            davies_a: debye_huckel_a,
+            davies_b: cat.physical.davies_b,
+            dilute_below: table.dilute_below,
+        }
+    }
+
+    /// Moves every coefficient a share `step` of the way to its value for the composition at
+    /// x (with H+ and OH- from the previous coefficients), and sets each term's cumulative
+    /// constants and gas factor from them. The change reported is the whole way's.
+    pub(super) fn update(
+        &mut self,
+        terms: &mut [Term],
+        links: &mut [Link],
+        x: f64,
+        h_mol_per_l: f64,
+        oh_mol_per_l: f64,
+        step: f64,
+    ) -> Coefficients {
+        let molal = self.molal;
+        let neutral_molality = self.read_composition(terms, x, h_mol_per_l, oh_mol_per_l);
+        // Beyond the highest ionic strength any parameters were fitted to, the coefficients
+        // are held at their value there (every molality scaled down alike).
+        let i: f64 = 0.5
+            * self
+                .molalities
+                .iter()
+                .enumerate()
+                .map(|(k, m)| m * self.charge_squared(k))
+                .sum::<f64>();
+        let scale = if i > self.hold { self.hold / i } else { 1.0 };
+        for (h, m) in self.held.iter_mut().zip(&self.molalities) {
+            *h = m * scale;
+        }
+        let mut ln_gamma = std::mem::take(&mut self.ln_gamma);
+        // Water's activity is held with the rest: followed past the fitted range it would
+        // fall towards zero in a wet salt, and Kw with it.
+        let mut summary = self.interactions.evaluate(&self.held, &mut ln_gamma);
+        // Between the dilute range and twice it, the coefficients pass over from Davies'
+        // to the model's by the share `weight`, so that a pour crossing the range sees no
+        // step in them.
+        let weight = self.weight(summary.ionic_strength);
+        if weight < 1.0 {
+            let i_molar = summary.ionic_strength / molal;
+            let sqrt_i = i_molar.sqrt();
+            let davies_unit = -std::f64::consts::LN_10
+                * self.davies_a
+                * (sqrt_i / (1.0 + sqrt_i) - self.davies_b * i_molar);
+            for (k, g) in ln_gamma.iter_mut().enumerate() {
+                let z2 = self.charge_squared(k);
+                *g = weight * *g + (1.0 - weight) * z2 * davies_unit;
+            }
+            summary.water_activity = summary.water_activity.powf(weight);
+        }
+        self.ln_gamma = ln_gamma;
+        self.summary = summary;
+
+        // Salting-out: Σ hᵢ cᵢ and Σ cᵢ over the ions, in mol/L (held like the rest).
+        let (mut sum_hc, mut sum_c) = (0.0, 0.0);
+        for (h, m) in self.salting_h.iter().zip(&self.held) {
+            let c = m / molal;
+            sum_hc += h * c;
+            sum_c += c;
+        }
+        let to_water = summary.water_activity.ln();
+        let mut change: f64 = (to_water - self.ln_water).abs();
+        self.ln_water += step * (to_water - self.ln_water);
+        for (k, t) in terms.iter_mut().enumerate() {
+            let slots = &self.term_slots[k];
+            let mut next = [0.0; MAX_STEPS + 1];
+            for j in 0..=t.n {
+                if slots[j] != NO_SLOT {
+                    next[j] = self.ln_gamma[slots[j] as usize];
+                }
+            }
+            let mut ln_neutral = 0.0;
+            if let Some(nf) = self.neutrals[k] {
+                if let Some(h_gas) = nf.h_gas {
+                    ln_neutral += weight * std::f64::consts::LN_10 * (sum_hc + h_gas * sum_c);
+                }
+                if let Some(lambda) = nf.lambda {
+                    ln_neutral += 2.0 * lambda * neutral_molality[k];
+                }
+                next[nf.species] = ln_neutral;
+            }
+            for (to, from) in next.iter_mut().zip(&t.ln_gamma).take(t.n + 1) {
+                change = change.max((*to - from).abs());
+                *to = from + step * (*to - from);
+            }
+            t.ln_gamma = next;
+            let ln_neutral = self.neutrals[k].map_or(0.0, |nf| next[nf.species]);
+            t.beta[0] = 1.0;
+            for j in 0..t.n {
+                let ln_ratio = next[j] - next[j + 1] + t.water_taken[j] * self.ln_water;
+                t.beta[j + 1] = t.beta[j] * t.ka[j] * ln_ratio.exp();
+            }
+            if self.neutrals[k].is_some() {
+                t.henry = self.molal_scale * ln_neutral.exp();
+                t.gas_factor = t.base_gas_factor * t.henry;
+            }
+        }
+        for l in links.iter_mut() {
+            let ln_first = terms[l.first.0].ln_gamma[l.first.1];
+            let ln_second = terms[l.second.0].ln_gamma[l.second.1];
+            l.k_eff = l.k_form * (ln_first + ln_second - self.fallback_ln_gamma(l.charge)).exp();
+        }
+        // x is the activity of H+ on the molal scale: mol/L is mol/kg over `molal` (which
+        // the dilute solve, where the two scales are near enough alike, leaves out).
+        let to_molar = molal.powf(-weight);
+        Coefficients {
+            inv_gamma_h: (-self.ln_gamma[self.h_slot]).exp() * to_molar,
+            inv_gamma_oh: (-self.ln_gamma[self.oh_slot]).exp() * to_molar,
+            water_activity: summary.water_activity,
+            change,
+        }
+    }
+
+    /// The model's share in the coefficients at ionic strength `i` (mol/kg).
+    fn weight(&self, i: f64) -> f64 {
+        if self.dilute_below <= 0.0 {
+            return 1.0;
+        }
+        ((i - self.dilute_below) / self.dilute_below).clamp(0.0, 1.0)
+    }
+
+    fn charge_squared(&self, k: usize) -> f64 {
+        let z = self.interactions.charge(k);
+        (z * z) as f64
+    }
+
+    /// ln γ of an ion of charge z by the extended Debye–Hückel form, at the held ionic
+    /// strength.
+    fn fallback_ln_gamma(&self, z: i32) -> f64 {
+        if z == 0 {
+            return 0.0;
+        }
+        self.interactions
+            .extended_ln_gamma(z, self.summary.ionic_strength)
+    }
+
+    /// The ionic strength (mol/kg) up to which the coefficients of this mixture are
+    /// validated: the least over the pairs of major ions (each holding at least a tenth of
+    /// its sign's charge) of the range the pair's parameters were fitted to, or the extended
+    /// form's range where a major ion has no parameters with the other.
+    pub(super) fn validated_range(&self) -> (f64, RangeSetBy) {
+        let n = self.molalities.len();
+        let charge = |k: usize| self.interactions.charge(k);
+        let is_major = self.major_ions();
+        let major = |k: usize| is_major[k];
+        let mut range = f64::INFINITY;
+        let mut set_by = RangeSetBy::Extended(String::new());
+        for c in (0..n).filter(|&k| charge(k) > 0 && major(k)) {
+            for a in (0..n).filter(|&k| charge(k) < 0 && major(k)) {
+                let fitted = self
+                    .interactions
+                    .pairs()
+                    .find(|&(pc, pa, _)| pc == c && pa == a)
+                    .map(|(_, _, p)| p.max_ionic_strength());
+                let this = fitted.unwrap_or(self.table.fallback.max_ionic_strength);
+                if this < range {
+                    range = this;
+                    let pair = (self.formulas[c].to_string(), self.formulas[a].to_string());
+                    set_by = match fitted {
+                        Some(_) => RangeSetBy::Pair(pair.0, pair.1),
+                        None => RangeSetBy::Unpaired(pair.0, pair.1),
+                    };
+                }
+            }
+        }
+        if range.is_finite() {
+            (range, set_by)
+        } else {
+            (self.table.fallback.max_ionic_strength, set_by)
+        }
+    }
+
+    /// How each ion present and each neutral gas was treated.
+    pub(super) fn detail(&self, terms: &[Term]) -> ActivityDetail {
+        let i = self.ionic_strength().max(f64::MIN_POSITIVE);
+        let mut detail = ActivityDetail {
+            ion_interaction: Vec::new(),
+            extended_debye_huckel: Vec::new(),
+            salting_own: Vec::new(),
+            salting_estimated: Vec::new(),
+            range_set_by: self.validated_range().1,
+        };
+        for (k, f) in self.formulas.iter().enumerate() {
+            let z2 = self.charge_squared(k);
+            // Ions that carry at least a thousandth of the ionic strength.
+            if z2 == 0.0 || 0.5 * self.molalities[k] * z2 < 1e-3 * i {
+                continue;
+            }
+            let list = match self.interactions.treatment(k) {
+                IonTreatment::IonInteraction => &mut detail.ion_interaction,
+                IonTreatment::ExtendedDebyeHuckel => &mut detail.extended_debye_huckel,
+            };
+            if !list.iter().any(|x| x == f) {
+                list.push(f.to_string());
+            }
+        }
+        for (t, nf) in terms.iter().zip(&self.neutrals) {
+            let Some(nf) = nf else { continue };
+            let formula = self.cat.family(t.family).species[nf.species]
+                .formula
+                .clone();
+            if nf.own_salting {
+                detail.salting_own.push(formula);
+            } else {
+                detail.salting_estimated.push(formula);
+            }
+        }
+        detail
+    }
+
+    /// Sets every ion's molality from the composition at x; returns each term's neutral
+    /// form's molality.
+    fn read_composition(
+        &mut self,
+        terms: &[Term],
+        x: f64,
+        h_mol_per_l: f64,
+        oh_mol_per_l: f64,
+    ) -> SmallVec<[f64; INLINE_TERMS]> {
+        let molal = self.molal;
+        self.molalities[self.h_slot] = h_mol_per_l * molal;
+        self.molalities[self.oh_slot] = oh_mol_per_l * molal;
+        let mut w = [0.0; MAX_STEPS + 1];
+        let mut neutral_molality = SmallVec::new();
+        for (t, slots) in terms.iter().zip(&self.term_slots) {
+            let d = weights(t, x, &mut w);
+            let c_aq = liquid_total(t, w[t.volatile] / d);
+            for j in 0..=t.n {
+                if slots[j] != NO_SLOT {
+                    self.molalities[slots[j] as usize] = w[j] / d * c_aq * molal;
+                }
+            }
+            neutral_molality.push(w[t.volatile] / d * c_aq * molal);
+        }
+        neutral_molality
+    }
+
+    /// Holds the coefficients, from here on, at their value at the ionic strength up to which
+    /// the model is validated for the composition at x (read once, from the dilute root, so
+    /// that the hold cannot move while the coefficients settle), and no lower than where the
+    /// model has wholly taken over from Davies.
+    pub(super) fn hold_at_range(
+        &mut self,
+        terms: &[Term],
+        x: f64,
+        h_mol_per_l: f64,
+        oh_mol_per_l: f64,
+    ) {
+        self.read_composition(terms, x, h_mol_per_l, oh_mol_per_l);
+        self.hold = self.hold_range().max(2.0 * self.dilute_below);
+    }
+
+    /// The highest ionic strength (mol/kg) that any pair of the major ions' parameters was
+    /// fitted to (the extended form's range where none has parameters): past it no part of
+    /// the mixture is within a fit, and the coefficients are held.
+    fn hold_range(&self) -> f64 {
+        let n = self.molalities.len();
+        let major = self.major_ions();
+        let mut hold = self.table.fallback.max_ionic_strength;
+        for (c, a, p) in self.interactions.pairs() {
+            if c < n && a < n && major[c] && major[a] {
+                hold = hold.max(p.max_ionic_strength());
+            }
+        }
+        hold
+    }
+
+    /// Which ions hold at least a tenth of their sign's charge.
+    fn major_ions(&self) -> SmallVec<[bool; INLINE_SLOTS]> {
+        let n = self.molalities.len();
+        let charge = |k: usize| self.interactions.charge(k);
+        let equivalents = |k: usize| self.molalities[k].max(0.0) * charge(k).abs() as f64;
+        let (mut pos, mut neg) = (0.0, 0.0);
+        for k in 0..n {
+            if charge(k) > 0 {
+                pos += equivalents(k);
+            } else if charge(k) < 0 {
+                neg += equivalents(k);
+            }
+        }
+        (0..n)
+            .map(|k| {
+                let total = if charge(k) > 0 { pos } else { neg };
+                charge(k) != 0 && total > 0.0 && equivalents(k) >= MAJOR_SHARE * total
+            })
+            .collect()
+    }
+
+    /// The ionic strength of the real amounts (not held), mol/kg.
+    pub(super) fn ionic_strength(&self) -> f64 {
+        0.5 * self
+            .molalities
+            .iter()
+            .enumerate()
+            .map(|(k, m)| m * self.charge_squared(k))
+            .sum::<f64>()
+    }
+
+    /// How the model treated each ion present: the treatment of slot k.
+    #[allow(dead_code)]
+    pub(super) fn treatment(&self, k: usize) -> IonTreatment {
+        self.interactions.treatment(k)
+    }
+}
+
+/// What sets the ionic strength up to which a concentrated mixture's coefficients hold.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum RangeSetBy {
+    /// The fitted range of a pair of major ions' parameters (cation, anion).
+    Pair(String, String),
+    /// A pair of major ions with no parameters of its own (cation, anion): the extended
+    /// Debye–Hückel form's range.
+    Unpaired(String, String),
+    /// No major pair: the extended form's range.
+    Extended(String),
+}
+
+/// How the model for concentrated mixtures treated a solution.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct ActivityDetail {
+    /// Ions (holding at least a thousandth of the ionic strength) given Pitzer's equations.
+    pub ion_interaction: Vec<String>,
+    /// Ions the parameters do not name, given the extended Debye–Hückel form.
+    pub extended_debye_huckel: Vec<String>,
+    /// Neutral gases salted out by their own parameters.
+    pub salting_own: Vec<String>,
+    /// Neutral gases with no parameters of their own, salted out by the upper estimate.
+    pub salting_estimated: Vec<String>,
+    pub range_set_by: RangeSetBy,
+}
+
+/// An upper bound on a mixture's ionic strength in mol/L: every strong ion, and every
+/// family at its most highly charged species, each counted twice for its counter-ions.
+pub(super) fn ionic_strength_bound(
+    cat: &Catalog,
+    ions: &[(IonId, f64)],
+    families: &[(FamilyId, f64)],
+    liquid_l: f64,
+) -> f64 {
+    let mut sum = 0.0;
+    for &(id, n) in ions {
+        let z = cat.ion(id).charge as f64;
+        sum += z * z * n;
+    }
+    for &(fid, n) in families {
+        if fid == cat.water {
+            continue;
+        }
+        let z_max = cat
+            .family(fid)
+            .species
+            .iter()
+            .map(|s| s.charge.abs())
+            .max()
+            .unwrap_or(0) as f64;
+        sum += z_max * z_max * n;
+    }
+    sum / liquid_l
+}
