@@ -139,3 +139,68 @@ proptest! {
         prop_assert!((e1.temperature_k - e2.temperature_k).abs() < 1e-7);
     }
 }
+
+prop_compose! {
+    /// Concentrated mixtures: families and strong ions up to 6 mol per kg of water, in a
+    /// liquid that is 60-100 % water by mass.
+    fn arb_concentrated()(
+        fams in proptest::collection::vec((0..FAMILIES.len(), -3.0f64..0.778), 1..6),
+        ions in proptest::collection::vec((0..IONS.len(), -3.0f64..0.778), 0..3),
+        water_per_l in 0.6f64..1.0,
+        head in 0.0f64..2.0,
+        t_c in 0.0f64..100.0,
+        closure in prop_oneof![Just(Closure::Sealed), Just(Closure::Vented), Just(Closure::Open)],
+    ) -> Mixture {
+        let parts: Vec<(&str, f64)> = fams.iter().map(|&(i, lm)| (FAMILIES[i], 10f64.powf(lm) * water_per_l))
+            .chain(ions.iter().map(|&(i, lm)| (IONS[i], 10f64.powf(lm) * water_per_l)))
+            .collect();
+        let mut m = mix(&parts, 1.0, head, t_c, closure);
+        m.water_kg = Some(water_per_l);
+        m
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(300))]
+
+    #[test]
+    fn concentrated_mixtures_solve_with_balances_that_hold(m in arb_concentrated()) {
+        let eq = solve(catalog(), &m, &settings()).expect("solves");
+        check_balances(&m, &eq);
+        prop_assert!(eq.water_activity.is_finite() && eq.water_activity > 0.0 && eq.water_activity <= 1.0 + 1e-12);
+        prop_assert!(eq.molal_ionic_strength.is_finite());
+    }
+
+    /// In a concentrated mixture a single ion's activity need not rise with its amount: added
+    /// HCl can raise the pH a little where the salt it forms lifts OH-'s coefficient (strong
+    /// caustic) or sulfate takes up its protons (measured mean activity coefficients do this).
+    /// What thermodynamic stability requires is that the chemical potential of what is added
+    /// rises: the HCl pressure over the liquid, a(H+) a(Cl-) / K, never falls.
+    #[test]
+    fn adding_hcl_to_a_concentrated_mixture_never_lowers_its_hcl_pressure(m in arb_concentrated(), extra in -3.0f64..0.5) {
+        let cat = catalog();
+        let hcl = |eq: &Equilibrium| eq.gases.iter().find(|g| g.gas == "HCl").map_or(0.0, |g| g.partial_pressure_pa);
+        let chloride = cat.family_by_id("chloride").unwrap();
+        let mut base = m.clone();
+        base.add_family(chloride, 1e-3 * m.liquid_l);
+        let before = solve(cat, &base, &settings()).unwrap();
+        let mut more = base.clone();
+        more.add_family(chloride, 10f64.powf(extra) * m.liquid_l);
+        let after = solve(cat, &more, &settings()).unwrap();
+        prop_assert!(hcl(&after) >= hcl(&before) * (1.0 - 1e-9), "p(HCl) {} → {} (pH {} → {})", hcl(&before), hcl(&after), before.ph, after.ph);
+    }
+
+    #[test]
+    fn concentrated_a_plus_b_equals_b_plus_a(a in arb_concentrated(), b in arb_concentrated()) {
+        let cap = a.liquid_l + b.liquid_l + 5.0;
+        let ab = a.pour(&b, 1.0, cap);
+        let mut ba = b.pour(&a, 1.0, cap);
+        ba.closure = ab.closure;
+        let e1 = solve(catalog(), &ab, &settings()).unwrap();
+        let e2 = solve(catalog(), &ba, &settings()).unwrap();
+        prop_assert!((e1.ph - e2.ph).abs() < 1e-7, "{} vs {}", e1.ph, e2.ph);
+        for (g1, g2) in e1.gases.iter().zip(e2.gases.iter()) {
+            prop_assert!((g1.partial_pressure_pa - g2.partial_pressure_pa).abs() <= 1e-6 * g1.partial_pressure_pa.max(1e-30));
+        }
+    }
+}

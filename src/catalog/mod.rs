@@ -846,7 +846,10 @@ impl Catalog {
                 max_ionic_strength: x.max_ionic_strength,
             },
             dilute_below: model.dilute_below_ionic_strength,
-        };
+            ions: Vec::new(),
+            pair_of_ids: Vec::new(),
+        }
+        .index();
 
         Ok(Catalog {
             pitzer,

@@ -95,9 +95,12 @@ pub struct PitzerTable {
     pub b: f64,
     pub pairs: Vec<PitzerPair>,
     pub fallback: ExtendedDebyeHuckel,
-    /// Below this ionic strength (mol/kg, an upper bound over the mixture) the solver keeps
-    /// the cheaper Davies equation.
+    /// Below this ionic strength (mol/kg) the solver keeps the cheaper Davies equation.
     pub dilute_below: f64,
+    /// Every ion some pair names, by formula; an ion's id is its place here.
+    pub ions: Vec<String>,
+    /// The pair of ion ids (i, j) at i × ions.len() + j: its index into `pairs`.
+    pub pair_of_ids: Vec<Option<u16>>,
 }
 
 impl PitzerTable {
@@ -109,9 +112,42 @@ impl PitzerTable {
 
     /// True when some pair's parameters name the ion.
     pub fn names(&self, formula: &str) -> bool {
-        self.pairs
+        self.ion_id(formula).is_some()
+    }
+
+    /// The ion's id, if some pair names it.
+    pub fn ion_id(&self, formula: &str) -> Option<u16> {
+        self.ions
             .iter()
-            .any(|p| p.cation == formula || p.anion == formula)
+            .position(|f| f == formula)
+            .map(|i| i as u16)
+    }
+
+    /// The parameters of the pair of ions with ids `cation` and `anion`.
+    pub fn pair_by_ids(&self, cation: u16, anion: u16) -> Option<&PitzerPair> {
+        let n = self.ions.len();
+        self.pair_of_ids[cation as usize * n + anion as usize].map(|k| &self.pairs[k as usize])
+    }
+
+    /// Fills in the ion ids and the table of pairs by id from `pairs`.
+    pub fn index(mut self) -> Self {
+        let mut ions: Vec<String> = Vec::new();
+        for p in &self.pairs {
+            for f in [&p.cation, &p.anion] {
+                if !ions.contains(f) {
+                    ions.push(f.clone());
+                }
+            }
+        }
+        let n = ions.len();
+        let mut pair_of_ids = vec![None; n * n];
+        let id = |f: &str| ions.iter().position(|x| x == f).unwrap();
+        for (k, p) in self.pairs.iter().enumerate() {
+            pair_of_ids[id(&p.cation) * n + id(&p.anion)] = Some(k as u16);
+        }
+        self.ions = ions;
+        self.pair_of_ids = pair_of_ids;
+        self
     }
 }
 

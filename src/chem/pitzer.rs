@@ -143,13 +143,26 @@ impl<'t> Interactions<'t> {
         ions: impl IntoIterator<Item = (&'f str, i32)>,
         a_phi: f64,
     ) -> Self {
-        let ions: SmallVec<[(&str, i32); INLINE_IONS]> = ions.into_iter().collect();
+        Self::with_ids(
+            table,
+            ions.into_iter().map(|(f, z)| (table.ion_id(f), z)),
+            a_phi,
+        )
+    }
+
+    /// The same, with each ion given by its id in the table (None where no pair names it).
+    pub fn with_ids(
+        table: &'t PitzerTable,
+        ions: impl IntoIterator<Item = (Option<u16>, i32)>,
+        a_phi: f64,
+    ) -> Self {
+        let ions: SmallVec<[(Option<u16>, i32); INLINE_IONS]> = ions.into_iter().collect();
         let mut out = Interactions {
             charges: ions.iter().map(|i| i.1).collect(),
             treatment: ions
                 .iter()
-                .map(|(f, z)| {
-                    if *z != 0 && table.names(f) {
+                .map(|(id, z)| {
+                    if *z != 0 && id.is_some() {
                         IonTreatment::IonInteraction
                     } else {
                         IonTreatment::ExtendedDebyeHuckel
@@ -164,11 +177,13 @@ impl<'t> Interactions<'t> {
             // A_φ is a third of the Debye–Hückel A on the natural-log basis.
             debye_huckel_a: 3.0 * a_phi / std::f64::consts::LN_10,
         };
-        for (c, (cf, _)) in ions.iter().enumerate().filter(|(_, i)| i.1 > 0) {
-            for (a, (af, _)) in ions.iter().enumerate().filter(|(_, i)| i.1 < 0) {
-                let both_named = out.treatment[c] == IonTreatment::IonInteraction
-                    && out.treatment[a] == IonTreatment::IonInteraction;
-                match table.pair(cf, af).filter(|_| both_named) {
+        for (c, (cid, _)) in ions.iter().enumerate().filter(|(_, i)| i.1 > 0) {
+            for (a, (aid, _)) in ions.iter().enumerate().filter(|(_, i)| i.1 < 0) {
+                let pair = match (cid, aid) {
+                    (Some(ci), Some(ai)) => table.pair_by_ids(*ci, *ai),
+                    _ => None,
+                };
+                match pair {
                     Some(p) => out.pairs.push((c as u16, a as u16, p)),
                     None => out.unpaired.push((c as u16, a as u16)),
                 }

@@ -196,6 +196,8 @@ struct Term {
     /// Molecules of water each step takes up (CO2 + H2O → HCO3- + H+ takes one), so that
     /// its constant carries water's activity where that is followed.
     water_taken: [f64; MAX_STEPS],
+    /// What the model for concentrated mixtures needs of each species, looked up once.
+    activity_data: concentrated::SpeciesData,
 }
 
 /// A combined species prepared for evaluation: parents are indices into `terms`.
@@ -617,6 +619,7 @@ fn term_at(cat: &Catalog, fid: FamilyId, t_k: f64) -> Term {
         henry: 1.0,
         ln_gamma: [0.0; MAX_STEPS + 1],
         water_taken: water_taken(fam, steps),
+        activity_data: concentrated::SpeciesData::of(cat, fam, steps, t_k),
         lambda: fam
             .volatile
             .as_ref()
@@ -832,7 +835,6 @@ fn solve_with(
             &p.terms,
             molal,
             molal_scale,
-            t_k,
             constants.a_phi,
             constants.debye_huckel_a,
         ));

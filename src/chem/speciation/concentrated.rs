@@ -31,6 +31,47 @@ struct NeutralForm {
     lambda: Option<f64>,
 }
 
+/// What the model needs of a family's species, looked up once per catalog and temperature:
+/// each species' ion id among the pair parameters, its salting-out parameter, and the
+/// neutral volatile form's gas parameter at the temperature.
+#[derive(Clone, Copy)]
+pub(super) struct SpeciesData {
+    pitzer_id: [Option<u16>; MAX_STEPS + 1],
+    salting_h: [f64; MAX_STEPS + 1],
+    /// (species index, true when the gas has parameters of its own, h_G at the temperature).
+    neutral: Option<(usize, bool, f64)>,
+}
+
+impl SpeciesData {
+    pub(super) fn of(
+        cat: &Catalog,
+        fam: &crate::catalog::species::Family,
+        steps: usize,
+        t_k: f64,
+    ) -> Self {
+        let mut out = SpeciesData {
+            pitzer_id: [None; MAX_STEPS + 1],
+            salting_h: [0.0; MAX_STEPS + 1],
+            neutral: None,
+        };
+        for (j, sp) in fam.species.iter().enumerate().take(steps + 1) {
+            out.pitzer_id[j] = cat.pitzer.ion_id(&sp.formula);
+            out.salting_h[j] = cat.salting.ion_h(&sp.formula).unwrap_or(0.0);
+        }
+        if let (Some(v), Some(k)) = (fam.volatile.as_ref(), fam.volatile_index()) {
+            if fam.species[k].charge == 0 {
+                let own = cat.salting.gas(&v.species).is_some();
+                let h_gas = cat
+                    .salting
+                    .gas_or_unlisted(&v.species)
+                    .h_g(t_k, cat.physical.t_ref);
+                out.neutral = Some((k, own, h_gas));
+            }
+        }
+        out
+    }
+}
+
 pub(super) struct Concentrated<'c> {
     table: &'c PitzerTable,
     cat: &'c Catalog,
@@ -83,7 +124,6 @@ impl<'c> Concentrated<'c> {
         terms: &[Term],
         molal: f64,
         molal_scale: f64,
-        t_k: f64,
         a_phi: f64,
         debye_huckel_a: f64,
     ) -> Self {
@@ -99,39 +139,42 @@ impl<'c> Concentrated<'c> {
         formulas.push(("H+", 1));
         formulas.push(("OH-", -1));
         molalities.extend([0.0, 0.0]);
+        let mut ids: SmallVec<[(Option<u16>, i32); INLINE_SLOTS]> = formulas
+            .iter()
+            .map(|(f, z)| (table.ion_id(f), *z))
+            .collect();
+        let mut salting_h: SmallVec<[f64; INLINE_SLOTS]> = formulas
+            .iter()
+            .map(|(f, _)| cat.salting.ion_h(f).unwrap_or(0.0))
+            .collect();
         let mut term_slots = SmallVec::new();
         let mut neutrals = SmallVec::new();
         for t in terms {
             let fam = cat.family(t.family);
+            let data = &t.activity_data;
             let mut slots = [NO_SLOT; MAX_STEPS + 1];
             for (j, sp) in fam.species.iter().enumerate().take(t.n + 1) {
                 if sp.charge != 0 {
                     slots[j] = formulas.len() as u16;
                     formulas.push((sp.formula.as_str(), sp.charge));
+                    ids.push((data.pitzer_id[j], sp.charge));
+                    salting_h.push(data.salting_h[j]);
                     molalities.push(0.0);
                 }
             }
             term_slots.push(slots);
-            neutrals.push(fam.volatile.as_ref().and_then(|v| {
-                let species = fam.volatile_index()?;
-                (fam.species[species].charge == 0).then(|| NeutralForm {
-                    species,
-                    own_salting: cat.salting.gas(&v.species).is_some(),
-                    h_gas: Some(
-                        cat.salting
-                            .gas_or_unlisted(&v.species)
-                            .h_g(t_k, cat.physical.t_ref),
-                    ),
-                    lambda: t.lambda,
-                })
-            }));
+            neutrals.push(
+                data.neutral
+                    .map(|(species, own_salting, h_gas)| NeutralForm {
+                        species,
+                        own_salting,
+                        h_gas: Some(h_gas),
+                        lambda: t.lambda,
+                    }),
+            );
         }
-        let salting_h = formulas
-            .iter()
-            .map(|(f, _)| cat.salting.ion_h(f).unwrap_or(0.0))
-            .collect();
         let n = formulas.len();
-        let interactions = Interactions::new(table, formulas.iter().copied(), a_phi);
+        let interactions = Interactions::with_ids(table, ids, a_phi);
         Concentrated {
             table,
             cat,
