@@ -1036,7 +1036,7 @@ fn assumptions(
         "Constants adjusted to the mixture temperature by the van 't Hoff equation with each step's ionization enthalpy; Kw from its temperature equation.".to_string(),
         "Heat: proton transfers by Hess's law from each step's ionization enthalpy (25 °C values, no heat-capacity change), plus each concentrated reagent's heat of dilution from the water it had to the water of the mixture (integral heats of dilution); the mixture's mass from the density tables, warming as water does (4.18 J/(g K)) from the volume-weighted mean of the two temperatures, re-solved at the temperature it reaches.".to_string(),
         format!(
-            "Boiling: the liquid boils where its vapour pressure (water by Raoult's law, dissolved gases from the speciation, solvents by Henry's law or as a layer of their own) reaches the {} kPa over it; close to boiling within {} K of that.",
+            "Boiling: the liquid boils where its vapour pressure (water by its activity from the ions, Raoult's law in dilute mixtures; dissolved gases from the speciation; solvents by Henry's law or as a layer of their own) reaches the {} kPa over it; close to boiling within {} K of that.",
             crate::text::fixed(cat.physical.p_std / 1e3, 1),
             th.heat.boiling_margin_k
         ),
