@@ -23,21 +23,38 @@ pub fn overpressure_kpa(eq: &Equilibrium) -> f64 {
 /// How bad a state is: the highest ratio of a gas to its review level, or of a sealed
 /// vessel's overpressure to its review level. 1 or more means at least review.
 pub fn score(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> f64 {
-    let mut worst: f64 = 0.0;
-    for g in &eq.gases {
-        // An asphyxiant is judged by the pressure it builds and by the room, not by ppm.
-        if cat.asphyxiant_only(&g.gas) {
-            continue;
-        }
-        let c = ppm(cat, g.partial_pressure_pa);
-        let ratio = match cat.judged_levels(&g.gas) {
-            Some(l) => c / (l.review_ppm * th.gas.review_fraction_of_short_term),
-            None if th.gas.unknown_level_floor_ppm > 0.0 => c / th.gas.unknown_level_floor_ppm,
-            None => 0.0,
-        };
-        worst = worst.max(ratio);
-    }
+    let worst = eq
+        .gases
+        .iter()
+        .map(|g| gas_ratio(cat, th, &g.gas, ppm(cat, g.partial_pressure_pa)))
+        .fold(0.0, f64::max);
     worst.max(overpressure_kpa(eq) / th.sealed_overpressure.review_kpa)
+}
+
+/// One gas's headspace level against the level its review starts at (0 for a gas judged
+/// only as an asphyxiant: by the pressure it builds and by the room, not by ppm).
+pub fn gas_ratio(cat: &Catalog, th: &Thresholds, gas: &str, headspace_ppm: f64) -> f64 {
+    if cat.asphyxiant_only(gas) {
+        return 0.0;
+    }
+    match cat.judged_levels(gas) {
+        Some(l) => headspace_ppm / (l.review_ppm * th.gas.review_fraction_of_short_term),
+        None if th.gas.unknown_level_floor_ppm > 0.0 => {
+            headspace_ppm / th.gas.unknown_level_floor_ppm
+        }
+        None => 0.0,
+    }
+}
+
+/// Each gas of a state with its `gas_ratio`.
+pub fn gas_ratios(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> Vec<(String, f64)> {
+    eq.gases
+        .iter()
+        .map(|g| {
+            let r = gas_ratio(cat, th, &g.gas, ppm(cat, g.partial_pressure_pa));
+            (g.gas.to_string(), r)
+        })
+        .collect()
 }
 
 /// A gas at its own worst point along a pour, against its levels.

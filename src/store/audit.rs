@@ -128,8 +128,9 @@ struct Profile {
     /// Litres the contents fill (a dry solid: the litre it is taken to dissolve in).
     volume_l: f64,
     dry: bool,
-    /// How bad the contents are on their own, as an open puddle (ratio to review levels).
-    alone_score: f64,
+    /// How bad each gas the contents give off on their own is, as an open puddle (ratio to
+    /// its review level).
+    alone_gases: Vec<(String, f64)>,
 }
 
 /// Amounts that differ by less than this factor share a result (the larger one is used).
@@ -219,10 +220,10 @@ fn profile(cat: &Catalog, th: &Thresholds, c: &StoredContainer) -> Profile {
     m.closure = Closure::Open;
     m.headspace_l = 0.0;
     let eq = solve(cat, &m, &settings(th)).ok();
-    let alone_score = eq
+    let alone_gases = eq
         .as_ref()
-        .map(|e| crate::assess::score(cat, th, e))
-        .unwrap_or(0.0);
+        .map(|e| crate::assess::gas_ratios(cat, th, e))
+        .unwrap_or_default();
     let mut acid_volatile = false;
     let mut base_volatile = false;
     for &(f, _) in &m.families {
@@ -256,7 +257,7 @@ fn profile(cat: &Catalog, th: &Thresholds, c: &StoredContainer) -> Profile {
         strong,
         present,
         dry,
-        alone_score,
+        alone_gases,
     }
 }
 
@@ -344,12 +345,50 @@ fn is_gas_finding(code: &str) -> bool {
 }
 
 /// A mixture's gas counts against the pair only when it is clearly worse than what either
-/// container gives off on its own (a fuming acid fumes whatever it meets).
+/// container gives off of that same gas on its own (a fuming acid fumes whatever it meets;
+/// the HCN it frees from a cyanide is the pair's, however much HCl it gives off alone).
 const PAIR_ADDS_FACTOR: f64 = 2.0;
+
+/// The gases of a pair's check, each at its worst over the orders scanned, as (gas, ratio
+/// to its review level), with what the two containers give off of it on their own.
+fn pair_gases(
+    cat: &Catalog,
+    th: &Thresholds,
+    r: &CheckReport,
+    both_orders: bool,
+    alone: &[(String, f64)],
+) -> Vec<(String, f64, f64)> {
+    let mut peaks: Vec<&crate::report::GasPeak> = r.poured_as_written.gas_peaks.iter().collect();
+    if both_orders {
+        if let Some(o) = &r.poured_other_way {
+            peaks.extend(o.gas_peaks.iter());
+        }
+    }
+    let mut out: Vec<(String, f64, f64)> = Vec::new();
+    for p in peaks {
+        let ratio = crate::assess::gas_ratio(cat, th, &p.formula, p.headspace_ppm);
+        let alone_ratio = alone
+            .iter()
+            .filter(|(g, _)| *g == p.formula)
+            .map(|(_, a)| *a)
+            .fold(0.0, f64::max);
+        match out.iter_mut().find(|(g, _, _)| *g == p.formula) {
+            Some(e) => e.1 = e.1.max(ratio),
+            None => out.push((p.formula.clone(), ratio, alone_ratio)),
+        }
+    }
+    out
+}
 
 /// `both_orders` is false when one partner is a dry solid: it dissolves into the liquid,
 /// and pouring the liquid onto it first is not a state the model can describe.
-fn outcome_of(r: &CheckReport, alone: f64, both_orders: bool) -> PairOutcome {
+fn outcome_of(
+    cat: &Catalog,
+    th: &Thresholds,
+    r: &CheckReport,
+    alone: &[(String, f64)],
+    both_orders: bool,
+) -> PairOutcome {
     let other = if both_orders {
         r.poured_other_way
             .as_ref()
@@ -366,7 +405,23 @@ fn outcome_of(r: &CheckReport, alone: f64, both_orders: bool) -> PairOutcome {
         .first()
         .filter(|g| g.limit_ratio.unwrap_or(1.0) >= 1.0)
         .map(|g| g.formula.clone());
-    let pair_adds_gas = worst_ratio > PAIR_ADDS_FACTOR * alone.max(0.0) && worst_ratio >= 1.0;
+    // The gases the meeting makes clearly worse than either container does on its own.
+    let added: Vec<(String, f64)> = pair_gases(cat, th, r, both_orders, alone)
+        .into_iter()
+        .filter(|(_, ratio, by_itself)| *ratio > PAIR_ADDS_FACTOR * by_itself.max(0.0))
+        .map(|(g, ratio, _)| (g, ratio))
+        .collect();
+    let added_ratio = added.iter().map(|a| a.1).fold(0.0, f64::max);
+    let pair_adds_gas = added_ratio >= 1.0;
+    let gas = gas
+        .filter(|g| added.iter().any(|(a, r)| a == g && *r >= 1.0))
+        .or_else(|| {
+            added
+                .iter()
+                .filter(|a| a.1 >= 1.0)
+                .max_by(|a, b| a.1.total_cmp(&b.1))
+                .map(|a| a.0.clone())
+        });
     let top: Vec<&crate::report::Finding> = r
         .findings
         .iter()
@@ -375,10 +430,7 @@ fn outcome_of(r: &CheckReport, alone: f64, both_orders: bool) -> PairOutcome {
         .filter(|f| f.scope == crate::report::Scope::Pour)
         .filter(|f| pair_adds_gas || !is_gas_finding(&f.code))
         // Rough activity figures matter only where the meeting brings a gas near a level.
-        .filter(|f| {
-            f.code != "outside-activity-model"
-                || (worst_ratio >= 0.1 && worst_ratio > PAIR_ADDS_FACTOR * alone.max(0.0))
-        })
+        .filter(|f| f.code != "outside-activity-model" || added_ratio >= 0.1)
         .collect();
     let severity = top
         .iter()
@@ -455,7 +507,15 @@ fn evaluate(
     vessel.capacity_l = Some(vessel.volume_l + stream.volume_l);
     vessel.closure = Closure::Open;
     match check(cat, th, rules, &vessel, &stream, opts) {
-        Ok(r) => outcome_of(&r, pa.alone_score.max(pb.alone_score), !(pa.dry || pb.dry)),
+        Ok(r) => {
+            let alone: Vec<(String, f64)> = pa
+                .alone_gases
+                .iter()
+                .chain(&pb.alone_gases)
+                .cloned()
+                .collect();
+            outcome_of(cat, th, &r, &alone, !(pa.dry || pb.dry))
+        }
         Err(e) => fail(&e),
     }
 }
