@@ -579,31 +579,28 @@ fn overpressure_finding(th: &Thresholds, p: &PourStates) -> Option<Finding> {
 /// What the activity model did for one state, in words, where it went past Davies.
 pub fn activity_assumption(a: &crate::report::ActivityReport, when: &str) -> Option<String> {
     let d = a.detail.as_ref()?;
-    let mut parts = Vec::new();
-    if !d.ion_interaction.is_empty() {
-        parts.push(format!(
-            "ion-interaction equations for {}",
-            d.ion_interaction.join(", ")
-        ));
-    }
-    if !d.extended_debye_huckel.is_empty() {
-        parts.push(format!(
-            "the extended Debye–Hückel form for {} (no ion-interaction parameters)",
-            d.extended_debye_huckel.join(", ")
-        ));
-    }
-    if !d.salting_own.is_empty() {
-        parts.push(format!(
-            "salting-out by their own parameters for {}",
-            d.salting_own.join(", ")
-        ));
-    }
-    if !d.salting_estimated.is_empty() {
-        parts.push(format!(
-            "salting-out by the upper estimate for {} (no published parameters)",
-            d.salting_estimated.join(", ")
-        ));
-    }
+    let parts: Vec<String> = [
+        ("ion-interaction equations for ", &d.ion_interaction, ""),
+        (
+            "the extended Debye–Hückel form for ",
+            &d.extended_debye_huckel,
+            " (no ion-interaction parameters)",
+        ),
+        (
+            "salting-out by their own parameters for ",
+            &d.salting_own,
+            "",
+        ),
+        (
+            "salting-out by the upper estimate for ",
+            &d.salting_estimated,
+            " (no published parameters)",
+        ),
+    ]
+    .into_iter()
+    .filter(|(_, list, _)| !list.is_empty())
+    .map(|(what, list, why)| format!("{what}{}{why}", list.join(", ")))
+    .collect();
     Some(format!(
         "Activity {when} ({} mol/kg, water activity {}): {}; the model holds here to {} mol/kg.",
         crate::text::fixed(a.ionic_strength_mol_kg, 2),

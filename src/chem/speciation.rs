@@ -554,14 +554,7 @@ thread_local! {
     /// temperature, so each family's van 't Hoff and Henry factors are worked out once per
     /// temperature rather than once per solve.
     static CONSTANTS: std::cell::RefCell<TemperatureConstants> =
-        const { std::cell::RefCell::new(TemperatureConstants {
-            stamp: None,
-            t_bits: u64::MAX,
-            kw: 0.0,
-            debye_huckel_a: 0.0,
-            a_phi: 0.0,
-            families: Vec::new(),
-        }) };
+        const { std::cell::RefCell::new(TemperatureConstants::empty()) };
 }
 
 impl TemperatureConstants {
@@ -685,7 +678,7 @@ pub fn solve_from(
 }
 
 impl TemperatureConstants {
-    fn empty() -> Self {
+    const fn empty() -> Self {
         TemperatureConstants {
             stamp: None,
             t_bits: u64::MAX,
