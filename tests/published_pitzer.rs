@@ -96,8 +96,16 @@ const NAOH_GAMMA: &[(f64, f64)] = &[
     (5.0, 1.077),
     (6.0, 1.299),
 ];
-/// CaCl2 to 2 mol/kg: the parameters are fitted to 2.5 mol/kg.
-const CACL2_GAMMA: &[(f64, f64)] = &[(0.1, 0.518), (0.5, 0.448), (1.0, 0.500), (2.0, 0.792)];
+/// CaCl2 to 5 mol/kg: the CRC Handbook's table of mean activity coefficients at 25 °C (after
+/// B. R. Staples, J. Phys. Chem. Ref. Data 6, 385 (1977); table page read).
+const CACL2_GAMMA: &[(f64, f64)] = &[
+    (0.1, 0.517),
+    (0.2, 0.469),
+    (0.5, 0.444),
+    (1.0, 0.495),
+    (2.0, 0.784),
+    (5.0, 5.907),
+];
 
 /// (molality, φ) from Hamer & Wu 1972 (memory); a_w = exp(−ν m φ M_w).
 const NACL_PHI: &[(f64, f64)] = &[
@@ -152,12 +160,13 @@ fn mean_activity_coefficients_of_one_one_salts_hold_to_six_molal() {
 }
 
 #[test]
-fn calcium_chloride_holds_within_its_fitted_range() {
+fn calcium_chloride_holds_to_five_molal() {
     let t = table();
     let worst = worst_gamma(&t, CA, CL2, CACL2_GAMMA);
+    println!("CaCl2: worst deviation {:.2} %", 100.0 * worst);
     assert!(worst < 0.05, "CaCl2: γ± off by {:.1} %", 100.0 * worst);
     let p = t.pair("Ca^2+", "Cl-").expect("CaCl2 parameters");
-    assert!(p.max_molality < 3.0, "the data say how far the fit goes");
+    assert!(p.max_molality <= 6.0, "the data say how far the fit goes");
 }
 
 #[test]
@@ -261,4 +270,93 @@ fn an_ion_pair_without_parameters_is_named() {
     let r = ion_activities(&t, t.a_phi_25, &ions);
     assert_eq!(r.without_parameters, vec![(0, 1)]);
     assert!(r.ln_gamma.iter().all(|g| g.is_finite()));
+}
+
+/// (molality, stoichiometric γ±) of sulfuric acid at 25 °C: Robinson & Stokes appendix 8.10
+/// and the CRC Handbook's table of mean activity coefficients, which agree (memory).
+const H2SO4_GAMMA: &[(f64, f64)] = &[
+    (0.1, 0.265),
+    (0.5, 0.154),
+    (1.0, 0.130),
+    (2.0, 0.124),
+    (3.0, 0.141),
+    (4.0, 0.171),
+    (5.0, 0.212),
+    (6.0, 0.264),
+];
+
+/// Sulfuric acid at stoichiometric molality m, with the bisulfate step at equilibrium under
+/// the model's coefficients: the stoichiometric γ±, from a(H2SO4) = a(H+)² a(SO4²⁻) = 4 m³ γ±³.
+fn sulfuric_acid_gamma(t: &PitzerTable, k2: f64, m: f64) -> f64 {
+    let state = |alpha: f64| {
+        let ions = [
+            Ion {
+                formula: "H+",
+                charge: 1,
+                molality: m * (1.0 + alpha),
+            },
+            Ion {
+                formula: "HSO4-",
+                charge: -1,
+                molality: m * (1.0 - alpha),
+            },
+            Ion {
+                formula: "SO4^2-",
+                charge: -2,
+                molality: m * alpha,
+            },
+        ];
+        let r = ion_activities(t, a_phi_25(t), &ions);
+        assert!(r.without_parameters.is_empty(), "H2SO4 ions have pairs");
+        let a: Vec<f64> = ions
+            .iter()
+            .zip(&r.ln_gamma)
+            .map(|(ion, g)| ion.molality * g.exp())
+            .collect();
+        (a[0], a[1], a[2])
+    };
+    // The share of bisulfate dissociated, by bisection on the mass-action quotient.
+    let (mut lo, mut hi) = (1e-9, 1.0 - 1e-9);
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        let (h, hso4, so4) = state(mid);
+        if h * so4 / hso4 > k2 {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    let (h, _, so4) = state(0.5 * (lo + hi));
+    (h * h * so4 / (4.0 * m * m * m)).cbrt()
+}
+
+#[test]
+fn sulfuric_acid_holds_to_six_molal_with_its_bisulfate_step() {
+    // The model's γ± of sulfuric acid comes from three ions and the bisulfate step between
+    // them (pKa 1.99 from the species data), so it tests the parameters of H+ with HSO4-
+    // and with SO4²⁻ together with the speciation. The model runs 3 to 12 % low, worst at
+    // 6 mol/kg. That is the parameter set's, not the code's: PHREEQC with its pitzer.dat,
+    // which carries the same four values, gives 0.242 at 0.1 mol/kg and 0.233 at 6 (run on
+    // 2026-12-02; ours 0.243 and 0.232). Limit 13 %, against the one-one salts' 5 %.
+    let cat = offgas::embedded::catalog().expect("catalog");
+    let sulfate = cat.family(cat.family_by_id("sulfate").expect("sulfate family"));
+    let step = sulfate
+        .species
+        .iter()
+        .position(|s| s.formula == "HSO4-")
+        .expect("bisulfate in the sulfate family");
+    let k2 = 10f64.powf(-sulfate.steps[step].pka);
+    let t = table();
+    let mut worst: f64 = 0.0;
+    for &(m, published) in H2SO4_GAMMA {
+        let g = sulfuric_acid_gamma(&t, k2, m);
+        let dev = g / published - 1.0;
+        println!(
+            "H2SO4: m {m}: γ± {g:.4} against {published} ({:+.2} %)",
+            100.0 * dev
+        );
+        worst = worst.max(dev.abs());
+    }
+    println!("H2SO4: worst deviation {:.2} %", 100.0 * worst);
+    assert!(worst < 0.13, "H2SO4: γ± off by {:.1} %", 100.0 * worst);
 }
