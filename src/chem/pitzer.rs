@@ -116,9 +116,6 @@ pub struct Interactions<'t> {
     treatment: SmallVec<[IonTreatment; INLINE_IONS]>,
     /// (cation index, anion index, parameters) of every pair with parameters.
     pairs: SmallVec<[(u16, u16, &'t PitzerPair); INLINE_IONS]>,
-    /// Cation–anion pairs with no parameters of their own (or an ion the parameters do not
-    /// name): they interact only through the Debye–Hückel terms.
-    unpaired: SmallVec<[(u16, u16); 4]>,
     a_phi: f64,
     b: f64,
     fallback: ExtendedDebyeHuckel,
@@ -170,7 +167,6 @@ impl<'t> Interactions<'t> {
                 })
                 .collect(),
             pairs: SmallVec::new(),
-            unpaired: SmallVec::new(),
             a_phi,
             b: table.b,
             fallback: table.fallback,
@@ -179,13 +175,10 @@ impl<'t> Interactions<'t> {
         };
         for (c, (cid, _)) in ions.iter().enumerate().filter(|(_, i)| i.1 > 0) {
             for (a, (aid, _)) in ions.iter().enumerate().filter(|(_, i)| i.1 < 0) {
-                let pair = match (cid, aid) {
-                    (Some(ci), Some(ai)) => table.pair_by_ids(*ci, *ai),
-                    _ => None,
-                };
-                match pair {
-                    Some(p) => out.pairs.push((c as u16, a as u16, p)),
-                    None => out.unpaired.push((c as u16, a as u16)),
+                if let (Some(ci), Some(ai)) = (cid, aid) {
+                    if let Some(p) = table.pair_by_ids(*ci, *ai) {
+                        out.pairs.push((c as u16, a as u16, p));
+                    }
                 }
             }
         }
@@ -202,17 +195,43 @@ impl<'t> Interactions<'t> {
 
     /// ln γ of an ion of charge `z` by the extended Debye–Hückel form at `ionic_strength`.
     pub fn extended_ln_gamma(&self, z: i32, ionic_strength: f64) -> f64 {
-        let fb = &self.fallback;
-        let sqrt_i = ionic_strength.max(0.0).sqrt();
-        let log10 = -self.debye_huckel_a * (z * z) as f64 * sqrt_i
-            / (1.0 + fb.b_per_angstrom * fb.ion_size_angstrom * sqrt_i)
-            + fb.b_dot * ionic_strength;
-        std::f64::consts::LN_10 * log10
+        let (per_z2, shared) = self.extended_terms(ionic_strength);
+        (z * z) as f64 * per_z2 + shared
     }
 
-    /// Cation–anion pairs with no parameters for the pair.
-    pub fn unpaired(&self) -> impl Iterator<Item = (usize, usize)> + '_ {
-        self.unpaired.iter().map(|&(c, a)| (c as usize, a as usize))
+    /// The extended form as ln γ = z² · (first) + (second) at `ionic_strength`.
+    fn extended_terms(&self, ionic_strength: f64) -> (f64, f64) {
+        let fb = &self.fallback;
+        let sqrt_i = ionic_strength.max(0.0).sqrt();
+        let ln_10 = std::f64::consts::LN_10;
+        (
+            -ln_10 * self.debye_huckel_a * sqrt_i
+                / (1.0 + fb.b_per_angstrom * fb.ion_size_angstrom * sqrt_i),
+            ln_10 * fb.b_dot * ionic_strength,
+        )
+    }
+
+    /// Cation–anion pairs with no parameters of their own (or an ion the parameters do not
+    /// name): they interact only through the Debye–Hückel terms.
+    pub fn unpaired(&self) -> Vec<(usize, usize)> {
+        let n = self.charges.len();
+        let mut out = Vec::new();
+        for c in (0..n).filter(|&c| self.charges[c] > 0) {
+            for a in (0..n).filter(|&a| self.charges[a] < 0) {
+                if self.pair(c, a).is_none() {
+                    out.push((c, a));
+                }
+            }
+        }
+        out
+    }
+
+    /// The parameters of the pair of ions c and a, when they have their own.
+    pub fn pair(&self, c: usize, a: usize) -> Option<&'t PitzerPair> {
+        self.pairs
+            .iter()
+            .find(|&&(pc, pa, _)| (pc as usize, pa as usize) == (c, a))
+            .map(|&(_, _, p)| p)
     }
 
     /// The pairs with parameters, as (cation index, anion index, parameters).
@@ -270,13 +289,15 @@ impl<'t> Interactions<'t> {
             ln_gamma[c] += ma * v;
             ln_gamma[a] += mc * v;
         }
+        let (extended_per_z2, extended_shared) = self.extended_terms(ionic_strength);
         for ((g, &z), treatment) in ln_gamma.iter_mut().zip(&self.charges).zip(&self.treatment) {
             if z == 0 {
                 continue;
             }
+            let z2 = (z * z) as f64;
             *g = match treatment {
-                IonTreatment::IonInteraction => *g + (z * z) as f64 * f + z.abs() as f64 * sum_mmc,
-                IonTreatment::ExtendedDebyeHuckel => self.extended_ln_gamma(z, ionic_strength),
+                IonTreatment::IonInteraction => *g + z2 * f + z.abs() as f64 * sum_mmc,
+                IonTreatment::ExtendedDebyeHuckel => z2 * extended_per_z2 + extended_shared,
             };
         }
         // Ions the parameters do not name count as ideal in the osmotic coefficient, and
@@ -319,6 +340,7 @@ pub fn ion_activities(table: &PitzerTable, a_phi: f64, ions: &[Ion]) -> IonActiv
         water_activity: s.water_activity,
         without_parameters: model
             .unpaired()
+            .into_iter()
             .filter(|&(c, a)| present(c) && present(a))
             .collect(),
     }

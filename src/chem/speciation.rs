@@ -547,6 +547,16 @@ struct TemperatureConstants {
     a_phi: f64,
     /// Each family's term at the temperature, before the mixture's amounts and volumes.
     families: Vec<Option<Term>>,
+    /// What of each family does not depend on the temperature, kept while the catalog is
+    /// the same (a pour and its heat move the temperature from solve to solve).
+    fixed: Vec<Option<FamilyFixed>>,
+}
+
+/// What a family's term takes from the catalog that no temperature changes.
+#[derive(Clone, Copy)]
+struct FamilyFixed {
+    water_taken: [f64; MAX_STEPS],
+    activity_data: concentrated::SpeciesData,
 }
 
 thread_local! {
@@ -563,6 +573,10 @@ impl TemperatureConstants {
         if self.stamp == Some(cat.stamp()) && self.t_bits == t_k.to_bits() {
             return;
         }
+        if self.stamp != Some(cat.stamp()) {
+            self.fixed.clear();
+            self.fixed.resize(cat.families.len(), None);
+        }
         let phys = &cat.physical;
         self.stamp = Some(cat.stamp());
         self.t_bits = t_k.to_bits();
@@ -578,12 +592,20 @@ impl TemperatureConstants {
     }
 
     fn family(&mut self, cat: &Catalog, fid: FamilyId, t_k: f64) -> &Term {
-        self.families[fid.0].get_or_insert_with(|| term_at(cat, fid, t_k))
+        let fixed = *self.fixed[fid.0].get_or_insert_with(|| {
+            let fam = cat.family(fid);
+            let steps = fam.steps.len().min(MAX_STEPS);
+            FamilyFixed {
+                water_taken: water_taken(fam, steps),
+                activity_data: concentrated::SpeciesData::of(cat, fam, steps),
+            }
+        });
+        self.families[fid.0].get_or_insert_with(|| term_at(cat, fid, t_k, fixed))
     }
 }
 
 /// A family's term at one temperature, with no amount in it yet.
-fn term_at(cat: &Catalog, fid: FamilyId, t_k: f64) -> Term {
+fn term_at(cat: &Catalog, fid: FamilyId, t_k: f64, fixed: FamilyFixed) -> Term {
     let fam = cat.family(fid);
     let phys = &cat.physical;
     let steps = fam.steps.len().min(MAX_STEPS);
@@ -611,8 +633,8 @@ fn term_at(cat: &Catalog, fid: FamilyId, t_k: f64) -> Term {
         volatile: fam.volatile_index().unwrap_or(0),
         henry: 1.0,
         ln_gamma: [0.0; MAX_STEPS + 1],
-        water_taken: water_taken(fam, steps),
-        activity_data: concentrated::SpeciesData::of(cat, fam, steps, t_k),
+        water_taken: fixed.water_taken,
+        activity_data: fixed.activity_data,
         lambda: fam
             .volatile
             .as_ref()
@@ -686,6 +708,7 @@ impl TemperatureConstants {
             debye_huckel_a: 0.0,
             a_phi: 0.0,
             families: Vec::new(),
+            fixed: Vec::new(),
         }
     }
 }
@@ -830,6 +853,7 @@ fn solve_with(
             molal_scale,
             constants.a_phi,
             constants.debye_huckel_a,
+            t_k,
         ));
         let dilute_iterations = root.iterations;
         let h = root.x * p.inv_gamma_h;
@@ -845,8 +869,9 @@ fn solve_with(
     if let Some(conc) = &p.concentrated {
         eq.activity_model = ActivityModelUsed::IonInteraction;
         eq.molal_ionic_strength = conc.ionic_strength();
-        eq.activity_range = conc.validated_range().0;
-        eq.activity_detail = Some(Box::new(conc.detail(&p.terms)));
+        let (range, set_by) = conc.validated_range();
+        eq.activity_range = range;
+        eq.activity_detail = Some(Box::new(conc.detail(&p.terms, set_by)));
         eq.activity_limited = eq.molal_ionic_strength > eq.activity_range;
         eq.water_activity = conc.summary.water_activity;
     }
@@ -909,7 +934,16 @@ fn find_root_concentrated(
         let r = find_root(p, ln_x, 0.0, s, a)?;
         iterations += r.iterations;
         ln_x = r.x.ln();
+        let full_step = step == 1.0;
         let change = p.set_concentrated_activity(r.x, step);
+        // Taken the whole way, the rounds converge geometrically: the next change is about
+        // this one times the ratio of this one to the last. Where that is already below the
+        // settled level, another round would not move the root.
+        let next_change = if full_step && last_change.is_finite() && change < 0.5 * last_change {
+            change * (change / last_change)
+        } else {
+            change
+        };
         if change >= 0.95 * last_change {
             step = (step * 0.5).max(MIN_COEFFICIENT_STEP);
         } else if change > 0.5 * last_change {
@@ -917,7 +951,7 @@ fn find_root_concentrated(
             step = (step * 1.5).min(1.0);
         }
         last_change = change;
-        if change <= COEFFICIENTS_SETTLED {
+        if next_change <= COEFFICIENTS_SETTLED {
             // One more search with the coefficients that hold at the root.
             let last = find_root(p, ln_x, 0.0, s, a)?;
             return Ok(Root {

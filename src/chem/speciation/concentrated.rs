@@ -7,6 +7,7 @@ use smallvec::SmallVec;
 
 use super::{liquid_total, weights, Link, Term, INLINE_TERMS, MAX_STEPS};
 use crate::catalog::pitzer::PitzerTable;
+use crate::catalog::salting::GasSalting;
 use crate::catalog::{Catalog, FamilyId, IonId};
 use crate::chem::pitzer::{Interactions, IonTreatment, Summary};
 
@@ -31,24 +32,19 @@ struct NeutralForm {
     lambda: Option<f64>,
 }
 
-/// What the model needs of a family's species, looked up once per catalog and temperature:
-/// each species' ion id among the pair parameters, its salting-out parameter, and the
-/// neutral volatile form's gas parameter at the temperature.
+/// What the model needs of a family's species, looked up once per catalog: each species' ion
+/// id among the pair parameters, its salting-out parameter, and the neutral volatile form's
+/// gas parameters.
 #[derive(Clone, Copy)]
 pub(super) struct SpeciesData {
     pitzer_id: [Option<u16>; MAX_STEPS + 1],
     salting_h: [f64; MAX_STEPS + 1],
-    /// (species index, true when the gas has parameters of its own, h_G at the temperature).
-    neutral: Option<(usize, bool, f64)>,
+    /// (species index, true when the gas has parameters of its own, its parameters).
+    neutral: Option<(usize, bool, GasSalting)>,
 }
 
 impl SpeciesData {
-    pub(super) fn of(
-        cat: &Catalog,
-        fam: &crate::catalog::species::Family,
-        steps: usize,
-        t_k: f64,
-    ) -> Self {
+    pub(super) fn of(cat: &Catalog, fam: &crate::catalog::species::Family, steps: usize) -> Self {
         let mut out = SpeciesData {
             pitzer_id: [None; MAX_STEPS + 1],
             salting_h: [0.0; MAX_STEPS + 1],
@@ -61,11 +57,7 @@ impl SpeciesData {
         if let (Some(v), Some(k)) = (fam.volatile.as_ref(), fam.volatile_index()) {
             if fam.species[k].charge == 0 {
                 let own = cat.salting.gas(&v.species).is_some();
-                let h_gas = cat
-                    .salting
-                    .gas_or_unlisted(&v.species)
-                    .h_g(t_k, cat.physical.t_ref);
-                out.neutral = Some((k, own, h_gas));
+                out.neutral = Some((k, own, *cat.salting.gas_or_unlisted(&v.species)));
             }
         }
         out
@@ -126,8 +118,10 @@ impl<'c> Concentrated<'c> {
         molal_scale: f64,
         a_phi: f64,
         debye_huckel_a: f64,
+        t_k: f64,
     ) -> Self {
         let table = &cat.pitzer;
+        let t_ref = cat.physical.t_ref;
         let mut formulas: SmallVec<[(&str, i32); INLINE_SLOTS]> = SmallVec::new();
         let mut molalities: SmallVec<[f64; INLINE_SLOTS]> = SmallVec::new();
         for &(id, n) in ions {
@@ -163,15 +157,12 @@ impl<'c> Concentrated<'c> {
                 }
             }
             term_slots.push(slots);
-            neutrals.push(
-                data.neutral
-                    .map(|(species, own_salting, h_gas)| NeutralForm {
-                        species,
-                        own_salting,
-                        h_gas: Some(h_gas),
-                        lambda: t.lambda,
-                    }),
-            );
+            neutrals.push(data.neutral.map(|(species, own_salting, gas)| NeutralForm {
+                species,
+                own_salting,
+                h_gas: Some(gas.h_g(t_k, t_ref)),
+                lambda: t.lambda,
+            }));
         }
         let n = formulas.len();
         let interactions = Interactions::with_ids(table, ids, a_phi);
@@ -350,11 +341,7 @@ impl<'c> Concentrated<'c> {
         let mut set_by = RangeSetBy::Extended(String::new());
         for c in (0..n).filter(|&k| charge(k) > 0 && major(k)) {
             for a in (0..n).filter(|&k| charge(k) < 0 && major(k)) {
-                let fitted = self
-                    .interactions
-                    .pairs()
-                    .find(|&(pc, pa, _)| pc == c && pa == a)
-                    .map(|(_, _, p)| p.max_ionic_strength());
+                let fitted = self.interactions.pair(c, a).map(|p| p.max_ionic_strength());
                 let this = fitted.unwrap_or(self.table.fallback.max_ionic_strength);
                 if this < range {
                     range = this;
@@ -373,15 +360,16 @@ impl<'c> Concentrated<'c> {
         }
     }
 
-    /// How each ion present and each neutral gas was treated.
-    pub(super) fn detail(&self, terms: &[Term]) -> ActivityDetail {
+    /// How each ion present and each neutral gas was treated; `range_set_by` is what
+    /// `validated_range` gave.
+    pub(super) fn detail(&self, terms: &[Term], range_set_by: RangeSetBy) -> ActivityDetail {
         let i = self.ionic_strength().max(f64::MIN_POSITIVE);
         let mut detail = ActivityDetail {
             ion_interaction: Vec::new(),
             extended_debye_huckel: Vec::new(),
             salting_own: Vec::new(),
             salting_estimated: Vec::new(),
-            range_set_by: self.validated_range().1,
+            range_set_by,
         };
         for (k, f) in self.formulas.iter().enumerate() {
             let z2 = self.charge_squared(k);
