@@ -46,6 +46,18 @@ pub fn gas_ratio(cat: &Catalog, th: &Thresholds, gas: &str, headspace_ppm: f64) 
     }
 }
 
+/// A gas's stop level on the scale of `gas_ratio` (where its review level is 1), when the
+/// data give it levels.
+pub fn stop_ratio(cat: &Catalog, th: &Thresholds, gas: &str) -> Option<f64> {
+    if cat.asphyxiant_only(gas) {
+        return None;
+    }
+    cat.judged_levels(gas).map(|l| {
+        (l.stop_ppm * th.gas.stop_fraction_of_idlh)
+            / (l.review_ppm * th.gas.review_fraction_of_short_term)
+    })
+}
+
 /// Each gas of a state with its `gas_ratio`.
 pub fn gas_ratios(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> Vec<(String, f64)> {
     eq.gases

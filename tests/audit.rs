@@ -186,3 +186,66 @@ fn bad_inventories_are_refused_with_the_line() {
         "{e}"
     );
 }
+
+/// The verdict for two containers alone on one tray: (substance, amount, size) each.
+fn pair_verdict(a: (&str, &str, &str), b: (&str, &str, &str)) -> (Severity, String) {
+    let text = format!(
+        "name: pair\nlevels:\n  spill_zone: 2\n  cabinet: 1\nlocations:\n  - path: \"Cabinet / Tray\"\n    capacity: 4\ncontainers:\n  - id: A\n    location: \"Cabinet / Tray\"\n    size: \"{}\"\n    substance: \"{}\"\n    amount: \"{}\"\n  - id: B\n    location: \"Cabinet / Tray\"\n    size: \"{}\"\n    substance: \"{}\"\n    amount: \"{}\"\n",
+        a.2, a.0, a.1, b.2, b.0, b.1
+    );
+    let r = run(&store(&text));
+    let headline = r
+        .findings
+        .first()
+        .map_or(String::new(), |f| f.headline.to_string());
+    (r.severity, headline)
+}
+
+#[test]
+fn a_neighbour_that_barely_moves_a_liquid_s_own_fumes_is_not_the_pair_s_hazard() {
+    // Strong ammonia and glacial acetic acid give off their gas past its stop level on
+    // their own; a salt beside them moves it a few-fold at most (salting-out), which changes
+    // nothing a technician would do: these pairs stand together in every storeroom.
+    for (a, b) in [
+        (
+            ("ammonia solution 25%", "80 mL", "0.5 L"),
+            ("sodium sulfate", "943 g", "1 L"),
+        ),
+        (
+            ("ammonia solution 25%", "1000 mL", "1 L"),
+            ("sodium chloride", "250 g", "1 L"),
+        ),
+        (
+            ("acetic acid", "1000 mL", "1 L"),
+            ("potassium chloride", "1000 g", "1 L"),
+        ),
+    ] {
+        let (severity, headline) = pair_verdict(a, b);
+        assert_eq!(severity, Severity::Clear, "{a:?} with {b:?}: {headline}");
+    }
+}
+
+#[test]
+fn what_the_meeting_makes_is_still_the_pair_s_hazard() {
+    // A dry salt's own figure is for it dissolved in water, so its gas keeps the ordinary
+    // test: sulfuric acid on metabisulfite is an SO2 cloud. Formic acid with concentrated
+    // sulfuric acid gives carbon monoxide, which only a rule can say.
+    let (severity, headline) = pair_verdict(
+        ("sulfuric acid", "295 mL", "0.5 L"),
+        ("sodium metabisulfite", "2151 g", "2.5 L"),
+    );
+    assert_eq!(severity, Severity::Stop, "{headline}");
+    assert!(headline.contains("SO2"), "{headline}");
+    let (severity, headline) = pair_verdict(
+        ("sulfuric acid, concentrated", "1000 mL", "1 L"),
+        ("formic acid 85%", "185 mL", "0.5 L"),
+    );
+    assert_eq!(severity, Severity::Stop, "{headline}");
+    assert!(headline.contains("carbon monoxide"), "{headline}");
+    let (severity, headline) = pair_verdict(
+        ("sulfuric acid, concentrated", "500 mL", "0.5 L"),
+        ("sodium cyanide", "100 g", "1 L"),
+    );
+    assert_eq!(severity, Severity::Stop, "{headline}");
+    assert!(headline.contains("HCN"), "{headline}");
+}

@@ -339,9 +339,20 @@ fn dry_as_stream(
     }
 }
 
+/// True when `message` names one of the gases as a word of its own.
+fn names_any(message: &str, gases: &[(String, f64)]) -> bool {
+    message
+        .split(|c: char| !c.is_ascii_alphanumeric())
+        .any(|word| gases.iter().any(|(g, r)| *r >= 1.0 && word == g))
+}
+
+fn is_boiling_finding(code: &str) -> bool {
+    code == "mixture-boils" || code == "mixture-near-boiling"
+}
+
 /// Findings about the gas over the puddle or in the room.
 fn is_gas_finding(code: &str) -> bool {
-    code.starts_with("gas-") || code.starts_with("room-")
+    code.starts_with("gas-") || code.starts_with("room-") || code == "flammable-headspace"
 }
 
 /// A mixture's gas counts against the pair only when it is clearly worse than what either
@@ -349,14 +360,35 @@ fn is_gas_finding(code: &str) -> bool {
 /// the HCN it frees from a cyanide is the pair's, however much HCl it gives off alone).
 const PAIR_ADDS_FACTOR: f64 = 2.0;
 
+/// Where a liquid on its own already gives off a gas past its stop level, it is a danger
+/// when spilt whatever stands beside it; a neighbour counts against the pair only where it
+/// raises that gas tenfold. Salts and bases beside strong ammonia, or a salt beside glacial
+/// acetic acid, move it by a few-fold, which is within the model's reach in such
+/// concentrated mixtures and changes nothing a technician would do; an acid on a cyanide
+/// salt moves it a thousandfold. A dry solid's own figure is for it dissolved in a litre of
+/// water, not as it stands on the shelf, so it keeps the ordinary factor (metabisulfite
+/// dissolved gives off SO2, but the acid that meets it is what makes the cloud).
+const PAIR_ADDS_FACTOR_PAST_STOP: f64 = 10.0;
+
+/// The ratio (on the scale of `gas_ratio`) above which a gas counts against a pair, for
+/// one container that gives off `alone` of it on its own.
+fn pair_adds_above(cat: &Catalog, th: &Thresholds, gas: &str, alone: f64, dry: bool) -> f64 {
+    let factor = match crate::assess::stop_ratio(cat, th, gas) {
+        Some(stop) if alone >= stop && !dry => PAIR_ADDS_FACTOR_PAST_STOP,
+        _ => PAIR_ADDS_FACTOR,
+    };
+    factor * alone.max(0.0)
+}
+
 /// The gases of a pair's check, each at its worst over the orders scanned, as (gas, ratio
-/// to its review level), with what the two containers give off of it on their own.
+/// to its review level), with the ratio it must pass to count against the pair (`above`,
+/// from what the two containers give off of it on their own).
 fn pair_gases(
     cat: &Catalog,
     th: &Thresholds,
     r: &CheckReport,
     both_orders: bool,
-    alone: &[(String, f64)],
+    above: &[(String, f64)],
 ) -> Vec<(String, f64, f64)> {
     let mut peaks: Vec<&crate::report::GasPeak> = r.poured_as_written.gas_peaks.iter().collect();
     if both_orders {
@@ -367,26 +399,28 @@ fn pair_gases(
     let mut out: Vec<(String, f64, f64)> = Vec::new();
     for p in peaks {
         let ratio = crate::assess::gas_ratio(cat, th, &p.formula, p.headspace_ppm);
-        let alone_ratio = alone
+        let bar = above
             .iter()
             .filter(|(g, _)| *g == p.formula)
             .map(|(_, a)| *a)
             .fold(0.0, f64::max);
         match out.iter_mut().find(|(g, _, _)| *g == p.formula) {
             Some(e) => e.1 = e.1.max(ratio),
-            None => out.push((p.formula.clone(), ratio, alone_ratio)),
+            None => out.push((p.formula.clone(), ratio, bar)),
         }
     }
     out
 }
 
-/// `both_orders` is false when one partner is a dry solid: it dissolves into the liquid,
-/// and pouring the liquid onto it first is not a state the model can describe.
+/// `above` holds, per gas, the ratio it must pass to count against the pair
+/// (`pair_adds_above`). `both_orders` is false when one partner is a dry solid: it dissolves
+/// into the liquid, and pouring the liquid onto it first is not a state the model can
+/// describe.
 fn outcome_of(
     cat: &Catalog,
     th: &Thresholds,
     r: &CheckReport,
-    alone: &[(String, f64)],
+    above: &[(String, f64)],
     both_orders: bool,
 ) -> PairOutcome {
     let other = if both_orders {
@@ -406,9 +440,9 @@ fn outcome_of(
         .filter(|g| g.limit_ratio.unwrap_or(1.0) >= 1.0)
         .map(|g| g.formula.clone());
     // The gases the meeting makes clearly worse than either container does on its own.
-    let added: Vec<(String, f64)> = pair_gases(cat, th, r, both_orders, alone)
+    let added: Vec<(String, f64)> = pair_gases(cat, th, r, both_orders, above)
         .into_iter()
-        .filter(|(_, ratio, by_itself)| *ratio > PAIR_ADDS_FACTOR * by_itself.max(0.0))
+        .filter(|(_, ratio, bar)| *ratio > *bar)
         .map(|(g, ratio, _)| (g, ratio))
         .collect();
     let added_ratio = added.iter().map(|a| a.1).fold(0.0, f64::max);
@@ -422,13 +456,21 @@ fn outcome_of(
                 .max_by(|a, b| a.1.total_cmp(&b.1))
                 .map(|a| a.0.clone())
         });
+    // Boiling that the pair neither heats into nor adds a gas to is a volatile container's
+    // own (strong ammonia beside a salt boils a little sooner, as it would anyway).
+    let pair_heats = r
+        .findings
+        .iter()
+        .any(|f| f.code == "mixture-heats-up" && f.severity >= Severity::Review);
     let top: Vec<&crate::report::Finding> = r
         .findings
         .iter()
         .filter(|f| f.severity >= Severity::Review)
         // A component's own hazard and a container's own state are not the pair's.
         .filter(|f| f.scope == crate::report::Scope::Pour)
-        .filter(|f| pair_adds_gas || !is_gas_finding(&f.code))
+        // A gas finding is the pair's only when it is about a gas the meeting adds.
+        .filter(|f| !is_gas_finding(&f.code) || names_any(&f.message, &added))
+        .filter(|f| pair_adds_gas || pair_heats || !is_boiling_finding(&f.code))
         // Rough activity figures matter only where the meeting brings a gas near a level.
         .filter(|f| f.code != "outside-activity-model" || added_ratio >= 0.1)
         .collect();
@@ -508,13 +550,14 @@ fn evaluate(
     vessel.closure = Closure::Open;
     match check(cat, th, rules, &vessel, &stream, opts) {
         Ok(r) => {
-            let alone: Vec<(String, f64)> = pa
-                .alone_gases
-                .iter()
-                .chain(&pb.alone_gases)
-                .cloned()
-                .collect();
-            outcome_of(cat, th, &r, &alone, !(pa.dry || pb.dry))
+            let bars = |p: &Profile| {
+                p.alone_gases
+                    .iter()
+                    .map(|(g, a)| (g.clone(), pair_adds_above(cat, th, g, *a, p.dry)))
+                    .collect::<Vec<_>>()
+            };
+            let above = [bars(pa), bars(pb)].concat();
+            outcome_of(cat, th, &r, &above, !(pa.dry || pb.dry))
         }
         Err(e) => fail(&e),
     }
@@ -953,6 +996,7 @@ fn audit_assumptions(a: &Auditor, inv: &Inventory) -> Vec<String> {
         "A dry solid dissolves whole into a liquid partner; two dry containers are judged by the rules alone, with any pH condition taken as possible.".to_string(),
         "Screening: a pair is checked in full only if a gas could form (a family whose volatile form appears on the partner's side of the pH), the pH gap of concentrated contents could release heat, a rule applies, or a container could not be screened; the rest are cleared without solving.".into(),
         "Containers with the same substances in amounts within a factor of about 2.2 share one result, computed for the fullest of them.".into(),
+        "A gas counts against a pair only where the meeting gives off more than twice as much of it as either container does on its own, or ten times as much where a liquid on its own already gives it off past its stop level (strong ammonia, glacial acetic acid and fuming acids are a danger when spilt whatever stands beside them); boiling counts only where the meeting heats the liquid or adds a gas.".into(),
     ]);
     out
 }
