@@ -254,6 +254,9 @@ pub fn fmt_ppm(v: f64) -> String {
 
 /// "HCN reaches 227 ppm in the headspace {place}", or, where its partial pressure passes
 /// the pressure over the liquid, what that means: the headspace would be the gas itself.
+/// How far past the atmosphere's pressure an open liquid's gas is said in words only.
+const FAR_PAST_ATMOSPHERE: f64 = 10.0;
+
 pub fn gas_reaches(g: &GasReport, sealed: bool, place: &str) -> String {
     let place = if place.is_empty() {
         String::new()
@@ -268,6 +271,14 @@ pub fn gas_reaches(g: &GasReport, sealed: bool, place: &str) -> String {
         );
     }
     let kpa = crate::text::fixed(g.partial_pressure_kpa, 0);
+    if !sealed && g.partial_pressure_kpa >= FAR_PAST_ATMOSPHERE * ATMOSPHERE_KPA {
+        // An equilibrium figure this far past the atmosphere's pressure cannot build up over
+        // a liquid open to the air; printed, it reads as nonsense.
+        return format!(
+            "{}'s partial pressure would be more than {FAR_PAST_ATMOSPHERE} times the pressure over the liquid{place}: the headspace would be essentially pure {}, which boils off",
+            g.formula, g.formula
+        );
+    }
     if sealed {
         format!(
             "{} reaches {kpa} kPa in the sealed headspace{place}, more than atmospheric pressure: the headspace would be essentially pure {} under pressure",
@@ -505,12 +516,23 @@ fn toxic_finding(p: &PourStates, sev: Severity, g: &GasReport, place: &str) -> F
         _ => String::new(),
     };
     let reaches = gas_reaches(g, p.sealed, place);
+    // Over an open liquid nothing passes the pure gas: past the atmosphere's pressure the
+    // multiple is the pure gas's.
+    let pure = !p.sealed && g.partial_pressure_kpa >= ATMOSPHERE_KPA && g.headspace_ppm > 0.0;
+    let times = |ratio: Option<f64>| {
+        let r = ratio.unwrap_or(0.0);
+        if pure {
+            fmt_times(r * 1e6 / g.headspace_ppm)
+        } else {
+            fmt_times(r)
+        }
+    };
     let (code, message, caution) = match (sev, &g.idlh_ppm, &g.limit_ppm) {
         (Severity::Stop, Some(idlh), _) => (
             "gas-at-danger-level",
             format!(
                 "{reaches}, {} its stop level of {} ({}){end_note}.",
-                fmt_times(g.idlh_ratio.unwrap_or(0.0)),
+                times(g.idlh_ratio),
                 fmt_ppm(*idlh),
                 g.idlh_basis.clone().unwrap_or_default()
             ),
@@ -520,7 +542,7 @@ fn toxic_finding(p: &PourStates, sev: Severity, g: &GasReport, place: &str) -> F
             "gas-over-short-term-level",
             format!(
                 "{reaches}, {} its short-term level of {} ({}){end_note}.",
-                fmt_times(g.limit_ratio.unwrap_or(0.0)),
+                times(g.limit_ratio),
                 fmt_ppm(*limit),
                 g.limit_basis.clone().unwrap_or_default()
             ),
@@ -693,12 +715,17 @@ fn activity_model_note(th: &Thresholds, p: &PourStates) -> Option<Finding> {
             }
         }
     }
+    // Past a hundredfold the estimate says only that the figures cannot be relied on.
+    let off_by = if factor > 100.0 {
+        "more than 100 ×".to_string()
+    } else {
+        format!("up to about {}", fmt_times(factor))
+    };
     let range = format!(
-        "The ionic strength reaches {} mol/kg, past the {} mol/kg up to which the activity model holds for this mixture ({}); computed partial pressures may be off by up to about {} there ({}).",
+        "The ionic strength reaches {} mol/kg, past the {} mol/kg up to which the activity model holds for this mixture ({}); computed partial pressures may be off by {off_by} there ({}).",
         crate::text::fixed(i, 2),
         crate::text::fixed(limit, 1),
         range_reason(worst),
-        fmt_times(factor),
         am.uncertainty_basis
     );
     Some(if could_cross.is_empty() {

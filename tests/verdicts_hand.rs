@@ -504,6 +504,13 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
         words.contains("essentially pure HCN, which boils off"),
         "{words}"
     );
+    // An equilibrium pressure far past the atmosphere's is said in words, not as a number
+    // no open liquid could hold.
+    hcn.partial_pressure_kpa = 1_079_135.0;
+    hcn.headspace_ppm = 1.065e10;
+    let words = offgas::assess::gas_reaches(&hcn, false, "when the pour is complete");
+    assert!(!words.contains("1079135"), "{words}");
+    assert!(words.contains("more than 10 times the pressure"), "{words}");
     assert!(!words.contains("ppm"), "{words}");
     let _ = text;
     let calm = run(
