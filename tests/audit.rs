@@ -219,6 +219,11 @@ fn a_neighbour_that_barely_moves_a_liquid_s_own_fumes_is_not_the_pair_s_hazard()
             ("acetic acid", "1000 mL", "1 L"),
             ("potassium chloride", "1000 g", "1 L"),
         ),
+        // Past what glacial acetic acid's little water can dissolve: not a 37 mol/kg brine.
+        (
+            ("acetic acid", "1790 mL", "2.5 L"),
+            ("potassium chloride", "2500 g", "2.5 L"),
+        ),
     ] {
         let (severity, headline) = pair_verdict(a, b);
         assert_eq!(severity, Severity::Clear, "{a:?} with {b:?}: {headline}");
@@ -248,4 +253,17 @@ fn what_the_meeting_makes_is_still_the_pair_s_hazard() {
     );
     assert_eq!(severity, Severity::Stop, "{headline}");
     assert!(headline.contains("HCN"), "{headline}");
+    // A salt held to its solubility still meets what frees its gas, and an oxidiser meets a
+    // solvent whether it dissolves or not.
+    let (severity, headline) = pair_verdict(
+        ("sulfuric acid", "500 mL", "1 L"),
+        ("sodium chloride", "200 g", "1 L"),
+    );
+    assert_eq!(severity, Severity::Stop, "{headline}");
+    assert!(headline.contains("HCl"), "{headline}");
+    let (severity, headline) = pair_verdict(
+        ("ethanol", "500 mL", "1 L"),
+        ("potassium permanganate", "100 g", "1 L"),
+    );
+    assert_eq!(severity, Severity::Stop, "{headline}");
 }

@@ -310,6 +310,73 @@ fn rule_context(a: &Profile, b: &Profile, ph_min: f64, ph_max: f64) -> RuleConte
 }
 
 /// A dry container poured into a liquid partner: a small stream that dissolves whole.
+/// Classes of a salt that does nothing in a spill but dissolve (sodium chloride, potassium
+/// chloride, sodium sulfate): only such a salt is held to its solubility below.
+const INERT_SALT_CLASSES: [&str; 2] = ["neutral_salt", "inert"];
+
+/// Moles of a dry solid that dissolve in a liquid partner. An inert salt dissolves up to its
+/// solubility in the water the partner and its own crystal water bring (as `check` refuses a
+/// batch past it), so that a salt beside glacial acetic acid or a solvent is not counted as a
+/// brine no water could hold, past every activity model. Every other solid is counted whole:
+/// an oxidiser meets a solvent whether it dissolves or not, a base heats whatever it meets,
+/// and acid takes up a cyanide or a sulfide whatever water there is; so is an inert salt
+/// whose gas the partner frees (a chloride on neat sulfuric acid gives hydrogen chloride).
+fn dissolves(
+    cat: &Catalog,
+    substance: SubstanceId,
+    moles: f64,
+    partner: &Batch,
+    partner_ph: Option<f64>,
+) -> f64 {
+    let s = cat.substance(substance);
+    let inert = !s.classes.is_empty()
+        && s.classes
+            .iter()
+            .all(|c| INERT_SALT_CLASSES.contains(&c.as_str()));
+    let (Some(solubility), Some(molar_mass), true) = (s.solubility_g_per_l, s.molar_mass, inert)
+    else {
+        return moles;
+    };
+    if partner_ph.is_none_or(|ph| frees_a_gas(cat, s, ph)) {
+        return moles;
+    }
+    let partner_water_kg = partner
+        .to_mixture(cat, partner.volume_l)
+        .water_kg
+        .unwrap_or(partner.volume_l * cat.water_density);
+    let crystal_water_kg = s
+        .formula
+        .as_deref()
+        .map_or(0.0, crate::catalog::density::crystal_water)
+        * moles
+        * crate::catalog::WATER_MOLAR_MASS
+        / 1e3;
+    // Solubility is per litre of solution; per litre of water is near enough for a cap.
+    let limit = solubility * (partner_water_kg + crystal_water_kg) / cat.water_density / molar_mass;
+    moles.min(limit.max(0.0))
+}
+
+/// True when a liquid at `ph` holds a real share of one of the substance's families in its
+/// volatile form: within two pH units of the step that makes it, on its side; or, for a
+/// strong acid's anion, when the liquid is itself a strong acid (neat and concentrated acids
+/// drive hydrogen chloride out of a chloride, which no aqueous pH describes).
+fn frees_a_gas(cat: &Catalog, s: &crate::catalog::Substance, ph: f64) -> bool {
+    const WITHIN: f64 = 2.0;
+    const STRONG_ACID_PH: f64 = 1.0;
+    s.families.iter().any(|&(f, _)| {
+        let fam = cat.family(f);
+        let Some(v) = fam.volatile_index() else {
+            return false;
+        };
+        let acid_side = fam
+            .steps
+            .get(v)
+            .is_some_and(|st| ph < (st.pka + WITHIN).max(STRONG_ACID_PH));
+        let base_side = v > 0 && fam.steps.get(v - 1).is_some_and(|st| ph > st.pka - WITHIN);
+        acid_side || base_side
+    })
+}
+
 fn dry_as_stream(
     cat: &Catalog,
     id: &str,
@@ -514,11 +581,23 @@ fn evaluate(
         (Contents::Liquid(x), Contents::Liquid(y)) => (x.clone(), y.clone()),
         (Contents::Liquid(x), Contents::Dry { substance, moles }) => (
             x.clone(),
-            dry_as_stream(cat, &b.id, *substance, *moles, x.volume_l),
+            dry_as_stream(
+                cat,
+                &b.id,
+                *substance,
+                dissolves(cat, *substance, *moles, x, pa.ph),
+                x.volume_l,
+            ),
         ),
         (Contents::Dry { substance, moles }, Contents::Liquid(y)) => (
             y.clone(),
-            dry_as_stream(cat, &a.id, *substance, *moles, y.volume_l),
+            dry_as_stream(
+                cat,
+                &a.id,
+                *substance,
+                dissolves(cat, *substance, *moles, y, pb.ph),
+                y.volume_l,
+            ),
         ),
         (Contents::Dry { .. }, Contents::Dry { .. }) => {
             // Two dry containers: only the rules can say what they do together.
@@ -993,7 +1072,7 @@ fn audit_assumptions(a: &Auditor, inv: &Inventory) -> Vec<String> {
         }
     }
     out.extend([
-        "A dry solid dissolves whole into a liquid partner; two dry containers are judged by the rules alone, with any pH condition taken as possible.".to_string(),
+        "A dry solid dissolves whole into a liquid partner, except a salt that only dissolves (sodium chloride, sodium sulfate, ...), which dissolves up to its solubility in the water there is unless the partner frees its gas; two dry containers are judged by the rules alone, with any pH condition taken as possible.".to_string(),
         "Screening: a pair is checked in full only if a gas could form (a family whose volatile form appears on the partner's side of the pH), the pH gap of concentrated contents could release heat, a rule applies, or a container could not be screened; the rest are cleared without solving.".into(),
         "Containers with the same substances in amounts within a factor of about 2.2 share one result, computed for the fullest of them.".into(),
         "A gas counts against a pair only where the meeting gives off more than twice as much of it as either container does on its own, or ten times as much where a liquid on its own already gives it off past its stop level (strong ammonia, glacial acetic acid and fuming acids are a danger when spilt whatever stands beside them); boiling counts only where the meeting heats the liquid or adds a gas.".into(),
