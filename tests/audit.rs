@@ -235,35 +235,37 @@ fn what_the_meeting_makes_is_still_the_pair_s_hazard() {
     // A dry salt's own figure is for it dissolved in water, so its gas keeps the ordinary
     // test: sulfuric acid on metabisulfite is an SO2 cloud. Formic acid with concentrated
     // sulfuric acid gives carbon monoxide, which only a rule can say.
-    let (severity, headline) = pair_verdict(
-        ("sulfuric acid", "295 mL", "0.5 L"),
-        ("sodium metabisulfite", "2151 g", "2.5 L"),
-    );
-    assert_eq!(severity, Severity::Stop, "{headline}");
-    assert!(headline.contains("SO2"), "{headline}");
-    let (severity, headline) = pair_verdict(
-        ("sulfuric acid, concentrated", "1000 mL", "1 L"),
-        ("formic acid 85%", "185 mL", "0.5 L"),
-    );
-    assert_eq!(severity, Severity::Stop, "{headline}");
-    assert!(headline.contains("carbon monoxide"), "{headline}");
-    let (severity, headline) = pair_verdict(
-        ("sulfuric acid, concentrated", "500 mL", "0.5 L"),
-        ("sodium cyanide", "100 g", "1 L"),
-    );
-    assert_eq!(severity, Severity::Stop, "{headline}");
-    assert!(headline.contains("HCN"), "{headline}");
     // A salt held to its solubility still meets what frees its gas, and an oxidiser meets a
-    // solvent whether it dissolves or not.
-    let (severity, headline) = pair_verdict(
-        ("sulfuric acid", "500 mL", "1 L"),
-        ("sodium chloride", "200 g", "1 L"),
-    );
-    assert_eq!(severity, Severity::Stop, "{headline}");
-    assert!(headline.contains("HCl"), "{headline}");
-    let (severity, headline) = pair_verdict(
-        ("ethanol", "500 mL", "1 L"),
-        ("potassium permanganate", "100 g", "1 L"),
-    );
-    assert_eq!(severity, Severity::Stop, "{headline}");
+    // solvent whether it dissolves or not. (pair, a word the headline must hold)
+    for (a, b, word) in [
+        (
+            ("sulfuric acid", "295 mL", "0.5 L"),
+            ("sodium metabisulfite", "2151 g", "2.5 L"),
+            "SO2",
+        ),
+        (
+            ("sulfuric acid, concentrated", "1000 mL", "1 L"),
+            ("formic acid 85%", "185 mL", "0.5 L"),
+            "carbon monoxide",
+        ),
+        (
+            ("sulfuric acid, concentrated", "500 mL", "0.5 L"),
+            ("sodium cyanide", "100 g", "1 L"),
+            "HCN",
+        ),
+        (
+            ("sulfuric acid", "500 mL", "1 L"),
+            ("sodium chloride", "200 g", "1 L"),
+            "HCl",
+        ),
+        (
+            ("ethanol", "500 mL", "1 L"),
+            ("potassium permanganate", "100 g", "1 L"),
+            "oxidiser",
+        ),
+    ] {
+        let (severity, headline) = pair_verdict(a, b);
+        assert_eq!(severity, Severity::Stop, "{a:?} with {b:?}: {headline}");
+        assert!(headline.contains(word), "{a:?} with {b:?}: {headline}");
+    }
 }
