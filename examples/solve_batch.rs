@@ -80,6 +80,17 @@ fn main() -> anyhow::Result<()> {
                 "gases_atm": eq.gases.iter()
                     .map(|g| (g.gas.clone(), g.partial_pressure_pa / cat.physical.p_std))
                     .collect::<BTreeMap<_, _>>(),
+                "complexes": eq.complexes.iter()
+                    .filter(|c| c.concentration > 0.0)
+                    .map(|c| (c.formula.clone(), c.concentration))
+                    .collect::<BTreeMap<_, _>>(),
+                "species": eq.families.iter()
+                    .flat_map(|f| {
+                        let fam = cat.family(f.family);
+                        fam.species.iter().zip(&f.concentrations)
+                            .map(|(s, c)| (s.formula.clone(), *c)).collect::<Vec<_>>()
+                    })
+                    .collect::<BTreeMap<_, _>>(),
             }),
             Err(e) => serde_json::json!({"id": c.id, "error": e.to_string()}),
         })

@@ -18,6 +18,7 @@ pub const CLASSES: &str = include_str!("../data/classes.yaml");
 pub const LIMITS: &str = include_str!("../data/limits.yaml");
 pub const PHYSICAL: &str = include_str!("../data/physical.yaml");
 pub const COMBINED: &str = include_str!("../data/combined.yaml");
+pub const COMPLEXES: &str = include_str!("../data/complexes.yaml");
 pub const RELEASES: &str = include_str!("../data/gas-release.yaml");
 pub const HEAT: &str = include_str!("../data/heat.yaml");
 pub const DENSITY: &str = include_str!("../data/density.yaml");
@@ -52,6 +53,7 @@ pub fn sources() -> DataSources<'static> {
         limits: ("data/limits.yaml", LIMITS),
         physical: ("data/physical.yaml", PHYSICAL),
         combined: ("data/combined.yaml", COMBINED),
+        complexes: ("data/complexes.yaml", COMPLEXES),
         releases: ("data/gas-release.yaml", RELEASES),
         heat: ("data/heat.yaml", HEAT),
         density: ("data/density.yaml", DENSITY),

@@ -8,7 +8,7 @@ use proptest::prelude::*;
 
 /// Families and ions the generator draws from: every volatile family offgas reports a gas for,
 /// polyprotic ones, amines, metal ions, and the strong ions that set the balance.
-const FAMILIES: [&str; 16] = [
+const FAMILIES: [&str; 19] = [
     "cyanide",
     "sulfide",
     "ammonia",
@@ -25,8 +25,11 @@ const FAMILIES: [&str; 16] = [
     "sulfate",
     "iron3",
     "borate",
+    "copper2",
+    "zinc",
+    "nickel",
 ];
-const IONS: [&str; 4] = ["Na+", "K+", "Ca^2+", "Br-"];
+const IONS: [&str; 6] = ["Na+", "K+", "Ca^2+", "Br-", "Cu+", "Ag+"];
 
 fn settings() -> SolverSettings {
     SolverSettings::default()
@@ -48,8 +51,8 @@ prop_compose! {
     }
 }
 
-/// Moles of a family outside its own dissolved species: its own gas, and every combined
-/// species (dissolved chlorine and its gas) that it is a parent of.
+/// Moles of a family outside its own dissolved species: its own gas, every combined species
+/// (dissolved chlorine and its gas) that it is a parent of, and what metal complexes hold.
 fn moles_elsewhere(eq: &Equilibrium, fam: offgas::catalog::FamilyId, liquid_l: f64) -> f64 {
     let own_gas: f64 = eq
         .gases
@@ -63,7 +66,8 @@ fn moles_elsewhere(eq: &Equilibrium, fam: offgas::catalog::FamilyId, liquid_l: f
         .filter(|c| c.parents.0 == fam || c.parents.1 == fam)
         .map(|c| c.concentration * liquid_l + c.moles_in_gas)
         .sum();
-    own_gas + combined
+    let bound = eq.family_bound_mol_per_l(catalog(), fam) * liquid_l;
+    own_gas + combined + bound
 }
 
 /// A poured into B and B into A end alike: pH within `ph_tol`, temperature within 1e-9 K,

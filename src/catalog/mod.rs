@@ -5,6 +5,7 @@
 //! engine can index without checking again. It never reads files itself.
 
 pub mod combined;
+pub mod complexes;
 pub mod density;
 pub mod dilution;
 pub mod gas_name;
@@ -43,6 +44,7 @@ pub struct DataSources<'a> {
     pub limits: (&'a str, &'a str),
     pub physical: (&'a str, &'a str),
     pub combined: (&'a str, &'a str),
+    pub complexes: (&'a str, &'a str),
     pub releases: (&'a str, &'a str),
     pub heat: (&'a str, &'a str),
     pub density: (&'a str, &'a str),
@@ -246,6 +248,12 @@ pub struct Catalog {
     pub physical: physical::Physical,
     /// Species formed from two families, with their parents resolved.
     pub combined: Vec<CombinedSpecies>,
+    /// Metal complexes computed in the speciation, grouped by metal.
+    pub complexes: Vec<complexes::Complex>,
+    /// Each metal that forms complexes, with the indexes of its complexes.
+    pub complexes_of_metal: Vec<(complexes::Part, Vec<usize>)>,
+    /// Complexes counted as they are (strong ions), with the reason.
+    pub inert_complexes: Vec<complexes::InertComplex>,
     /// Stoichiometric gas releases (hydrogen from metals and hydrides).
     pub releases: Vec<(SubstanceId, Release)>,
     /// Density of pure water, g/mL, at the density tables' temperature.
@@ -343,6 +351,7 @@ impl Catalog {
         let limits: LimitsFile = parse(src.limits)?;
         let physical: physical::PhysicalFile = parse(src.physical)?;
         let combined: combined::CombinedFile = parse(src.combined)?;
+        let complexes_file: complexes::ComplexesFile = parse(src.complexes)?;
         let releases: ReleasesFile = parse(src.releases)?;
         let heat_file: heat::HeatFile = parse(src.heat)?;
         let density_file: density::DensityFile = parse(src.density)?;
@@ -593,6 +602,13 @@ impl Catalog {
                 data: c,
             });
         }
+
+        let (complexes, complexes_of_metal, inert_complexes) = load_complexes(
+            complexes_file,
+            Src::new(src.complexes),
+            &species,
+            &ion_index,
+        )?;
 
         let mut resolved_releases = Vec::new();
         let releases_src = Src::new(src.releases);
@@ -861,6 +877,9 @@ impl Catalog {
             limits,
             physical: physical.into(),
             combined: linked,
+            complexes,
+            complexes_of_metal,
+            inert_complexes,
             releases: resolved_releases,
             water_density,
             density_tables,
@@ -1016,6 +1035,177 @@ impl Catalog {
 }
 
 /// A formula's written charge must be its charge, in the one ASCII form (`CO3^2-`).
+type LoadedComplexes = (
+    Vec<complexes::Complex>,
+    Vec<(complexes::Part, Vec<usize>)>,
+    Vec<complexes::InertComplex>,
+);
+
+/// Resolves every complex's metal and ligand to a family species or a strong ion, and checks
+/// that its charge balances, its formula carries that charge and its sources are listed.
+fn load_complexes(
+    file: complexes::ComplexesFile,
+    src: Src<'_>,
+    species: &species::SpeciesFile,
+    ion_index: &HashMap<String, IonId>,
+) -> Result<LoadedComplexes, CatalogError> {
+    use complexes::Part;
+    let find = |formula: &str| -> Option<(Part, i32)> {
+        if let Some(&id) = ion_index.get(formula) {
+            return Some((Part::Ion(id), species.strong_ions[id.0].charge));
+        }
+        species.families.iter().enumerate().find_map(|(f, fam)| {
+            fam.species
+                .iter()
+                .position(|s| s.formula == formula)
+                .map(|j| (Part::Family(FamilyId(f), j), fam.species[j].charge))
+        })
+    };
+    let at = |section: &str, formula: &str, m: String| {
+        let needle = format!("formula: \"{formula}\"");
+        let start = src
+            .text
+            .lines()
+            .position(|l| l.starts_with(&format!("{section}:")));
+        let line = start.and_then(|s| {
+            src.text
+                .lines()
+                .enumerate()
+                .skip(s)
+                .find(|(_, l)| l.contains(&needle))
+                .map(|(i, _)| i + 1)
+        });
+        src.err_line(line, format!("complex `{formula}`: {m}"))
+    };
+    let known_source = |key: &str| file.sources.get(key).cloned();
+    let mut out: Vec<complexes::Complex> = Vec::with_capacity(file.complexes.len());
+    for e in &file.complexes {
+        let bad = |m: String| at("complexes", &e.formula, m);
+        let (metal, z_metal) = find(&e.metal).filter(|(_, z)| *z > 0).ok_or_else(|| {
+            bad(format!(
+                "metal `{}` is not a cation of data/species.yaml",
+                e.metal
+            ))
+        })?;
+        let (ligand, z_ligand) = if e.ligand == "H2O" {
+            if e.protons != -i32::from(e.n) {
+                return Err(bad(
+                    "a hydroxo complex (ligand H2O) releases one H+ per water: protons must be -n"
+                        .into(),
+                ));
+            }
+            (None, 0)
+        } else {
+            let (part, z) = find(&e.ligand)
+                .filter(|(p, _)| matches!(p, Part::Family(..)))
+                .ok_or_else(|| {
+                    bad(format!(
+                        "ligand `{}` is not a species of a family in data/species.yaml",
+                        e.ligand
+                    ))
+                })?;
+            (Some(part), z)
+        };
+        if let (Part::Family(fm, _), Some(Part::Family(fl, _))) = (metal, ligand) {
+            if fm == fl {
+                return Err(bad("metal and ligand belong to the same family".into()));
+            }
+        }
+        if e.n == 0 || usize::from(e.n) > MAX_LIGANDS {
+            return Err(bad(format!("n must be 1 to {MAX_LIGANDS}")));
+        }
+        let z = z_metal + i32::from(e.n) * z_ligand + e.protons;
+        if z != e.charge {
+            return Err(bad(format!(
+                "charges do not balance ({z} on the left, {} stated)",
+                e.charge
+            )));
+        }
+        check_formula_charge(&e.formula, e.charge).map_err(&bad)?;
+        if !e.log_beta.is_finite() || e.dh.is_some_and(|d| !d.is_finite()) {
+            return Err(bad("log_beta and dh must be numbers".into()));
+        }
+        let source = known_source(&e.source).ok_or_else(|| {
+            bad(format!(
+                "source `{}` is not listed under `sources`",
+                e.source
+            ))
+        })?;
+        let dh_source = match (&e.dh, &e.dh_source) {
+            (None, _) => None,
+            (Some(_), None) => Some(source.clone()),
+            (Some(_), Some(k)) => Some(
+                known_source(k)
+                    .ok_or_else(|| bad(format!("dh_source `{k}` is not listed under `sources`")))?,
+            ),
+        };
+        if out.iter().any(|c| c.formula == e.formula) {
+            return Err(bad("listed twice".into()));
+        }
+        out.push(complexes::Complex {
+            formula: e.formula.clone(),
+            metal,
+            ligand,
+            n: e.n,
+            protons: e.protons,
+            charge: e.charge,
+            log_beta: e.log_beta,
+            dh: e.dh,
+            source,
+            dh_source,
+            note: e.note.clone(),
+        });
+    }
+    let mut by_metal: Vec<(Part, Vec<usize>)> = Vec::new();
+    for (i, c) in out.iter().enumerate() {
+        match by_metal.iter_mut().find(|(m, _)| *m == c.metal) {
+            Some((_, v)) => v.push(i),
+            None => by_metal.push((c.metal, vec![i])),
+        }
+    }
+    let mut inert = Vec::with_capacity(file.inert.len());
+    for e in &file.inert {
+        let bad = |m: String| at("inert", &e.formula, m);
+        let ion = *ion_index.get(&e.formula).ok_or_else(|| {
+            bad("an inert complex is counted as a strong ion: list it under strong_ions in data/species.yaml".into())
+        })?;
+        if out.iter().any(|c| c.formula == e.formula) {
+            return Err(bad(
+                "also listed as a complex computed at equilibrium".into()
+            ));
+        }
+        let source = match &e.source {
+            Some(k) => Some(
+                known_source(k)
+                    .ok_or_else(|| bad(format!("source `{k}` is not listed under `sources`")))?,
+            ),
+            None if e.log_beta.is_some() => {
+                return Err(bad("a constant needs a source".into()));
+            }
+            None => None,
+        };
+        inert.push(complexes::InertComplex {
+            ion,
+            metal: e.metal.clone(),
+            ligand: e.ligand.clone(),
+            n: e.n,
+            log_beta: e.log_beta,
+            source,
+            inert_source: known_source(&e.inert_source).ok_or_else(|| {
+                bad(format!(
+                    "inert_source `{}` is not listed under `sources`",
+                    e.inert_source
+                ))
+            })?,
+            note: e.note.clone(),
+        });
+    }
+    Ok((out, by_metal, inert))
+}
+
+/// Most ligands one complex may hold.
+pub const MAX_LIGANDS: usize = 6;
+
 fn check_formula_charge(formula: &str, charge: i32) -> Result<(), String> {
     let (body, written) = crate::notation::split_charge(formula);
     if written != charge || crate::notation::with_charge(body, charge) != formula {

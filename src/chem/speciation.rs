@@ -11,8 +11,10 @@
 use arrayvec::ArrayVec;
 use smallvec::SmallVec;
 
+mod complexation;
 mod concentrated;
 
+use complexation::{Bound, Complexation};
 use concentrated::{ionic_strength_bound, Concentrated};
 pub use concentrated::{ActivityDetail, RangeSetBy};
 
@@ -95,6 +97,16 @@ pub struct CombinedState {
     pub moles_in_gas: f64,
 }
 
+/// A metal complex in the liquid.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ComplexState {
+    /// Index into the catalog's complexes.
+    pub catalog_index: usize,
+    pub formula: String,
+    /// mol/L in the liquid.
+    pub concentration: f64,
+}
+
 /// A volatile species in the headspace.
 #[derive(Debug, Clone, PartialEq)]
 pub struct GasState {
@@ -120,6 +132,9 @@ pub struct Equilibrium {
     pub families: Vec<FamilyState>,
     /// Species formed from two families (dissolved chlorine), present when both are.
     pub combined: Vec<CombinedState>,
+    /// Metal complexes (cyanide, ammine, chelate, hydroxo), present when a metal and what it
+    /// binds are.
+    pub complexes: Vec<ComplexState>,
     pub gases: Vec<GasState>,
     /// Charge balance residual over the sum of absolute charge concentrations.
     pub relative_charge_residual: f64,
@@ -154,6 +169,31 @@ pub enum ActivityModelUsed {
 impl Equilibrium {
     pub fn family(&self, id: FamilyId) -> Option<&FamilyState> {
         self.families.iter().find(|f| f.family == id)
+    }
+    /// mol/L of a metal or ligand (a family species or a strong ion) held in complexes.
+    pub fn bound_mol_per_l(&self, cat: &Catalog, part: crate::catalog::complexes::Part) -> f64 {
+        use crate::catalog::complexes::Part;
+        let same = |p: Part| match (p, part) {
+            (Part::Family(a, _), Part::Family(b, _)) => a == b,
+            (Part::Ion(a), Part::Ion(b)) => a == b,
+            _ => false,
+        };
+        self.complexes
+            .iter()
+            .map(|cs| {
+                let c = &cat.complexes[cs.catalog_index];
+                let as_metal = if same(c.metal) { 1.0 } else { 0.0 };
+                let as_ligand = match c.ligand {
+                    Some(l) if same(l) => f64::from(c.n),
+                    _ => 0.0,
+                };
+                (as_metal + as_ligand) * cs.concentration
+            })
+            .sum()
+    }
+    /// mol/L of a family held in complexes (as metal or as ligand).
+    pub fn family_bound_mol_per_l(&self, cat: &Catalog, id: FamilyId) -> f64 {
+        self.bound_mol_per_l(cat, crate::catalog::complexes::Part::Family(id, 0))
     }
     pub fn total_gas_pressure_pa(&self) -> f64 {
         self.gases.iter().map(|g| g.partial_pressure_pa).sum()
@@ -244,6 +284,8 @@ struct Prepared<'c> {
     molal: f64,
     terms: SmallVec<[Term; INLINE_TERMS]>,
     links: SmallVec<[Link; 2]>,
+    /// The metal complexes the mixture can form.
+    complexation: Option<Box<Complexation>>,
     strong_charge: f64,
     strong_ionic: f64,
     kw: f64,
@@ -271,6 +313,14 @@ impl Prepared<'_> {
             return 0.0;
         };
         let c = conc.update(&mut self.terms, &mut self.links, x, h, oh, step);
+        if let Some(cx) = self.complexation.as_mut() {
+            cx.set_concentrated(
+                &self.terms,
+                |slot| conc.ion_ln_gamma(slot),
+                |z| conc.fallback_ln_gamma(z),
+                conc.ln_water(),
+            );
+        }
         let (ln_h, ln_oh) = (self.inv_gamma_h.ln(), self.inv_gamma_oh.ln());
         let ln_kw = (self.kw_eff / self.kw).ln();
         let (to_h, to_oh, to_kw) = (
@@ -323,11 +373,14 @@ impl Prepared<'_> {
                 t.beta[j + 1] = t.beta[j] * t.ka[j] * powers[t.gamma_power[j]];
             }
         }
+        if let Some(cx) = self.complexation.as_mut() {
+            cx.set_davies(self.gamma1);
+        }
     }
 
     /// Charge balance, its slope in ln x, and the ionic strength, at x.
     fn eval(&self, x: f64) -> Point {
-        if !self.links.is_empty() {
+        if !self.links.is_empty() || self.complexation.is_some() {
             // The coupling makes the analytic slope long; a central difference is exact
             // enough for a Newton step that the bracket guards anyway.
             let d: f64 = 1e-6;
@@ -394,8 +447,9 @@ impl Prepared<'_> {
         2.0 * kappa * a * b / (s + disc.sqrt())
     }
 
-    /// Each term's total after the links have taken their share of it, at x.
-    fn linked_totals(&self, x: f64) -> SmallVec<[f64; INLINE_TERMS]> {
+    /// Each term's free total after the links and then the metal complexes have taken their
+    /// share of it, at x, with the complexes.
+    fn linked_totals(&self, x: f64) -> (SmallVec<[f64; INLINE_TERMS]>, Option<Bound>) {
         let mut totals: SmallVec<[f64; INLINE_TERMS]> =
             self.terms.iter().map(|t| t.c_total).collect();
         for l in &self.links {
@@ -403,19 +457,30 @@ impl Prepared<'_> {
             totals[l.first.0] -= y;
             totals[l.second.0] -= y;
         }
-        totals
+        let bound = self.complexation.as_ref().map(|cx| {
+            let b = cx.solve_at(&self.terms, &totals, x);
+            for (t, taken) in totals.iter_mut().zip(&b.taken) {
+                *t -= taken;
+            }
+            b
+        });
+        (totals, bound)
     }
 
-    /// Each term as it stands after the links have taken their share of its total, at x.
-    fn linked_terms(&self, x: f64) -> SmallVec<[Term; INLINE_TERMS]> {
-        self.terms
+    /// Each term as it stands after the links and the complexes have taken their share of its
+    /// total, at x, with the complexes.
+    fn linked_terms(&self, x: f64) -> (SmallVec<[Term; INLINE_TERMS]>, Option<Bound>) {
+        let (totals, bound) = self.linked_totals(x);
+        let terms = self
+            .terms
             .iter()
-            .zip(&self.linked_totals(x))
+            .zip(&totals)
             .map(|(t, &total)| Term {
                 c_total: total.max(0.0),
                 ..*t
             })
-            .collect()
+            .collect();
+        (terms, bound)
     }
 
     /// The charge balance and the ionic strength at x, with the links taking their share.
@@ -424,10 +489,15 @@ impl Prepared<'_> {
         let oh = self.kw_eff * self.inv_gamma_oh / x;
         let mut f = h - oh + self.strong_charge;
         let mut ionic = self.strong_ionic + h + oh;
-        for (t, &total) in self.terms.iter().zip(&self.linked_totals(x)) {
+        let (totals, bound) = self.linked_totals(x);
+        for (t, &total) in self.terms.iter().zip(&totals) {
             let c = term_charge_of(t, total.max(0.0), x);
             f += c.charge;
             ionic += c.ionic;
+        }
+        if let Some(b) = bound {
+            f += b.charge;
+            ionic += b.ionic;
         }
         for l in &self.links {
             if l.charge != 0 {
@@ -756,6 +826,7 @@ fn solve_with(
         molal,
         terms: SmallVec::new(),
         links: SmallVec::new(),
+        complexation: None,
         strong_charge,
         strong_ionic,
         kw: constants.kw,
@@ -818,6 +889,8 @@ fn solve_with(
             });
         }
     }
+
+    p.complexation = Complexation::new(cat, &p.terms, &m.ions, vl, t_k).map(Box::new);
 
     // Only a mixture whose ionic strength could pass the dilute range may need the model for
     // concentrated mixtures; whether it does is read off the dilute solve.
@@ -1081,9 +1154,9 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
     let mut gases = Vec::with_capacity(volatile_terms + p.links.len());
     let mut charge = h - oh + p.strong_charge;
     let mut scale = h + oh + p.strong_ionic;
-    // Only a linked family's total changes with x; the common case needs no copy.
-    let linked = (!p.links.is_empty()).then(|| p.linked_terms(x));
-    let terms = linked.as_ref().unwrap_or(&p.terms);
+    // Only a linked or complexed family's total changes with x; the common case needs no copy.
+    let linked = (!p.links.is_empty() || p.complexation.is_some()).then(|| p.linked_terms(x));
+    let terms = linked.as_ref().map_or(&p.terms, |l| &l.0);
     let totals_mol = m
         .families
         .iter()
@@ -1147,6 +1220,20 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
             moles_in_gas,
         });
     }
+    let mut complexes = Vec::new();
+    if let (Some(cx), Some((_, Some(b)))) = (&p.complexation, &linked) {
+        complexes.reserve(b.concentrations.len());
+        // The complexes' charge, with a strong-ion metal's bound share taken off its own.
+        charge += b.charge;
+        for (ci, &c) in cx.catalog_indexes().zip(&b.concentrations) {
+            scale += f64::from(cat.complexes[ci].charge.abs()) * c;
+            complexes.push(ComplexState {
+                catalog_index: ci,
+                formula: cat.complexes[ci].formula.clone(),
+                concentration: c,
+            });
+        }
+    }
     Equilibrium {
         ph: -x.log10(),
         ionic_strength: root.ionic,
@@ -1158,6 +1245,7 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
         oh_mol_per_l: oh,
         families,
         combined,
+        complexes,
         gases,
         relative_charge_residual: if scale > 0.0 {
             charge.abs() / scale

@@ -305,6 +305,16 @@ impl<'c> Concentrated<'c> {
         }
     }
 
+    /// ln γ of the strong ion in `slot` (its place among the mixture's ions).
+    pub(super) fn ion_ln_gamma(&self, slot: usize) -> f64 {
+        self.ln_gamma[slot]
+    }
+
+    /// ln of water's activity as the constants take it.
+    pub(super) fn ln_water(&self) -> f64 {
+        self.ln_water
+    }
+
     /// The model's share in the coefficients at ionic strength `i` (mol/kg).
     fn weight(&self, i: f64) -> f64 {
         if self.dilute_below <= 0.0 {
@@ -320,7 +330,7 @@ impl<'c> Concentrated<'c> {
 
     /// ln γ of an ion of charge z by the extended Debye–Hückel form, at the held ionic
     /// strength.
-    fn fallback_ln_gamma(&self, z: i32) -> f64 {
+    pub(super) fn fallback_ln_gamma(&self, z: i32) -> f64 {
         if z == 0 {
             return 0.0;
         }

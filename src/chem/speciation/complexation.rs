@@ -1,0 +1,415 @@
+//! Metal complexes in the speciation: at each a(H+) the free ligand concentrations that close
+//! every ligand's mass balance, and from them each complex and each metal's free share.
+//!
+//! A metal m of total T_m is free or bound: T_m = M·(P_m + Σ_c q_c), with P_m the metal's
+//! total over its free aquo ion (its own hydrolysis) and q_c = K'_c · x^h_c · L^n_c for each
+//! complex c. A ligand k of total T_k is free (over its protonated forms and the headspace,
+//! P_k per unit free ligand) or bound: T_k = L_k P_k + Σ_c n_c T_m q_c / S_m. Each ligand's
+//! balance rises monotonically with ln L_k (its slope is L_k P_k plus a variance of bound
+//! counts), so a bracketed Newton search per ligand, taken in turns while the ligands share
+//! a metal, converges.
+
+use std::cell::Cell;
+
+use smallvec::SmallVec;
+
+use super::{liquid_species_fraction, Term, INLINE_TERMS};
+use crate::catalog::complexes::Part;
+use crate::catalog::{Catalog, IonId};
+
+/// Convergence of each ln L.
+const LN_TOLERANCE: f64 = 1e-12;
+/// Span of ln L below its ceiling (the whole total free) that the search brackets.
+const LN_SPAN: f64 = 200.0;
+/// Most rounds of turns over the ligands, and Newton steps in one search.
+const MAX_ROUNDS: usize = 200;
+const MAX_STEPS_1D: usize = 200;
+
+/// Where a metal's free ion is.
+#[derive(Clone, Copy)]
+enum MetalAt {
+    /// A family's species: index into the solver's terms and the species.
+    Term(usize, usize),
+    /// A strong ion: its mol/L and its slot among the mixture's ions.
+    Ion { total: f64, slot: usize },
+}
+
+#[derive(Clone, Copy)]
+struct Metal {
+    at: MetalAt,
+    charge: i32,
+    /// This metal's complexes: a range of `forms`.
+    forms: (usize, usize),
+}
+
+struct Ligand {
+    term: usize,
+    species: usize,
+    charge: i32,
+    /// ln L at the last solve: where the next one starts.
+    guess: Cell<f64>,
+}
+
+#[derive(Clone, Copy)]
+struct Form {
+    catalog_index: usize,
+    metal: usize,
+    /// Index into `ligands`; None for a hydroxo complex.
+    ligand: Option<usize>,
+    n: i32,
+    protons: i32,
+    charge: i32,
+    /// Thermodynamic constant at the temperature.
+    k: f64,
+    /// With the activity coefficients (and water's activity) folded in.
+    k_eff: f64,
+}
+
+/// The complexes a mixture can form, prepared for one temperature.
+pub(super) struct Complexation {
+    metals: SmallVec<[Metal; 4]>,
+    ligands: SmallVec<[Ligand; 4]>,
+    forms: SmallVec<[Form; 24]>,
+}
+
+/// The complexes at one a(H+).
+pub(super) struct Bound {
+    /// mol/L each term gives to complexes (metal families and ligand families).
+    pub taken: SmallVec<[f64; INLINE_TERMS]>,
+    /// The complexes' charge, less the bound share of strong-ion metals, mol/L.
+    pub charge: f64,
+    /// The same for Σ z² c.
+    pub ionic: f64,
+    /// mol/L of each complex, in the order of `forms`.
+    pub concentrations: SmallVec<[f64; 24]>,
+}
+
+impl Complexation {
+    /// The complexes of `cat` that the mixture's metals and ligands can form, or None.
+    pub(super) fn new(
+        cat: &Catalog,
+        terms: &[Term],
+        ions: &[(IonId, f64)],
+        liquid_l: f64,
+        t_k: f64,
+    ) -> Option<Self> {
+        if cat.complexes.is_empty() {
+            return None;
+        }
+        let term_of = |p: Part| match p {
+            Part::Family(f, j) => terms
+                .iter()
+                .position(|t| t.family == f && j <= t.n)
+                .map(|i| (i, j)),
+            Part::Ion(_) => None,
+        };
+        let phys = &cat.physical;
+        let mut out = Complexation {
+            metals: SmallVec::new(),
+            ligands: SmallVec::new(),
+            forms: SmallVec::new(),
+        };
+        for (metal, list) in &cat.complexes_of_metal {
+            let at = match *metal {
+                Part::Family(..) => term_of(*metal).map(|(i, j)| MetalAt::Term(i, j)),
+                Part::Ion(id) => ions
+                    .iter()
+                    .position(|&(i, n)| i == id && n > 0.0)
+                    .map(|slot| MetalAt::Ion {
+                        total: ions[slot].1 / liquid_l,
+                        slot,
+                    }),
+            };
+            let Some(at) = at else { continue };
+            let start = out.forms.len();
+            for &ci in list {
+                let c = &cat.complexes[ci];
+                let ligand = match c.ligand {
+                    None => None,
+                    Some(p) => {
+                        let Some((term, species)) = term_of(p) else {
+                            continue;
+                        };
+                        let k = match out
+                            .ligands
+                            .iter()
+                            .position(|l| l.term == term && l.species == species)
+                        {
+                            Some(k) => k,
+                            None => {
+                                let t = &terms[term];
+                                out.ligands.push(Ligand {
+                                    term,
+                                    species,
+                                    charge: t.z0 - species as i32,
+                                    guess: Cell::new(f64::NAN),
+                                });
+                                out.ligands.len() - 1
+                            }
+                        };
+                        Some(k)
+                    }
+                };
+                let log_k = c.log_beta
+                    - c.dh.unwrap_or(0.0) * 1e3 / (phys.r * std::f64::consts::LN_10)
+                        * (1.0 / t_k - 1.0 / phys.t_ref);
+                let k = (log_k * std::f64::consts::LN_10).exp();
+                out.forms.push(Form {
+                    catalog_index: ci,
+                    metal: out.metals.len(),
+                    ligand,
+                    n: i32::from(c.n),
+                    protons: c.protons,
+                    charge: c.charge,
+                    k,
+                    k_eff: k,
+                });
+            }
+            if out.forms.len() > start {
+                let charge = match *metal {
+                    Part::Family(f, j) => cat.family(f).species[j].charge,
+                    Part::Ion(id) => cat.ion(id).charge,
+                };
+                out.metals.push(Metal {
+                    at,
+                    charge,
+                    forms: (start, out.forms.len()),
+                });
+            }
+        }
+        (!out.forms.is_empty()).then_some(out)
+    }
+
+    /// Folds Davies' coefficients (γ(z) = γ(1)^(z²)) into each constant.
+    pub(super) fn set_davies(&mut self, gamma1: f64) {
+        let ln1 = gamma1.ln();
+        let metals = &self.metals;
+        let ligands = &self.ligands;
+        for f in &mut self.forms {
+            let zm = metals[f.metal].charge;
+            let zl = f.ligand.map_or(0, |k| ligands[k].charge);
+            let z2 = |z: i32| f64::from(z * z);
+            let ln_ratio = ln1 * (z2(zm) + f64::from(f.n) * z2(zl) - z2(f.charge));
+            f.k_eff = f.k * ln_ratio.exp();
+        }
+    }
+
+    /// Folds the concentrated model's coefficients into each constant: `ln_gamma_metal(slot)`
+    /// for strong-ion metals, the terms' own ln γ for family species, `ln_gamma_of(z)` for the
+    /// complex, and water's activity for hydroxo complexes.
+    pub(super) fn set_concentrated(
+        &mut self,
+        terms: &[Term],
+        ln_gamma_ion: impl Fn(usize) -> f64,
+        ln_gamma_of: impl Fn(i32) -> f64,
+        ln_water: f64,
+    ) {
+        for f in &mut self.forms {
+            let metal = &self.metals[f.metal];
+            let ln_metal = match metal.at {
+                MetalAt::Term(t, j) => terms[t].ln_gamma[j],
+                MetalAt::Ion { slot, .. } => ln_gamma_ion(slot),
+            };
+            let ln_ligand = match f.ligand {
+                Some(k) => {
+                    let l = &self.ligands[k];
+                    f64::from(f.n) * terms[l.term].ln_gamma[l.species]
+                }
+                None => f64::from(f.n) * ln_water,
+            };
+            f.k_eff = f.k * (ln_metal + ln_ligand - ln_gamma_of(f.charge)).exp();
+        }
+    }
+
+    /// The complexes at x, for family totals `totals` (mol/L, after any combined species took
+    /// their share).
+    pub(super) fn solve_at(&self, terms: &[Term], totals: &[f64], x: f64) -> Bound {
+        // Per metal: its total and its total over its free ion (1 for a strong ion).
+        let metal_totals: SmallVec<[(f64, f64); 4]> = self
+            .metals
+            .iter()
+            .map(|m| match m.at {
+                MetalAt::Term(t, j) => {
+                    let share = liquid_species_fraction(&terms[t], x, j);
+                    (totals[t].max(0.0), 1.0 / share)
+                }
+                MetalAt::Ion { total, .. } => (total, 1.0),
+            })
+            .collect();
+        let ligand_totals: SmallVec<[(f64, f64); 4]> = self
+            .ligands
+            .iter()
+            .map(|l| {
+                let share = liquid_species_fraction(&terms[l.term], x, l.species);
+                (totals[l.term].max(0.0), 1.0 / share)
+            })
+            .collect();
+        // Each complex's weight per free metal, without its ligand's power: K' x^h.
+        let base: SmallVec<[f64; 24]> = self
+            .forms
+            .iter()
+            .map(|f| f.k_eff * x.powi(f.protons))
+            .collect();
+        let mut ln_l: SmallVec<[f64; 4]> = self
+            .ligands
+            .iter()
+            .zip(&ligand_totals)
+            .map(|(l, &(total, p))| {
+                let ceiling = (total / p).ln();
+                let g = l.guess.get();
+                if g.is_finite() {
+                    g.min(ceiling)
+                } else {
+                    ceiling
+                }
+            })
+            .collect();
+        let fill_weights = |ln_l: &[f64], q: &mut SmallVec<[f64; 24]>| {
+            q.clear();
+            for (f, b) in self.forms.iter().zip(&base) {
+                q.push(match f.ligand {
+                    Some(k) => b * (f64::from(f.n) * ln_l[k]).exp(),
+                    None => *b,
+                });
+            }
+        };
+        let mut q: SmallVec<[f64; 24]> = SmallVec::new();
+        if !self.ligands.is_empty() {
+            for _ in 0..MAX_ROUNDS {
+                let mut moved: f64 = 0.0;
+                for k in 0..self.ligands.len() {
+                    let (total, p) = ligand_totals[k];
+                    if total <= 0.0 {
+                        ln_l[k] = f64::NEG_INFINITY;
+                        continue;
+                    }
+                    let before = ln_l[k];
+                    ln_l[k] = self.solve_ligand(k, &ln_l, total, p, &base, &metal_totals);
+                    if before.is_finite() {
+                        moved = moved.max((ln_l[k] - before).abs());
+                    } else {
+                        moved = f64::INFINITY;
+                    }
+                }
+                if self.ligands.len() == 1 || moved < LN_TOLERANCE {
+                    break;
+                }
+            }
+            for (l, &v) in self.ligands.iter().zip(&ln_l) {
+                l.guess.set(v);
+            }
+        }
+        fill_weights(&ln_l, &mut q);
+        let mut bound = Bound {
+            taken: SmallVec::from_elem(0.0, terms.len()),
+            charge: 0.0,
+            ionic: 0.0,
+            concentrations: SmallVec::from_elem(0.0, self.forms.len()),
+        };
+        for (mi, m) in self.metals.iter().enumerate() {
+            let (total, p) = metal_totals[mi];
+            let (a, b) = m.forms;
+            let free_metal = total / (p + q[a..b].iter().sum::<f64>());
+            let mut held = 0.0;
+            for (fi, f) in self.forms[a..b].iter().enumerate() {
+                let c = free_metal * q[a + fi];
+                bound.concentrations[a + fi] = c;
+                held += c;
+                let z = f64::from(f.charge);
+                bound.charge += z * c;
+                bound.ionic += z * z * c;
+                if let Some(k) = f.ligand {
+                    bound.taken[self.ligands[k].term] += f64::from(f.n) * c;
+                }
+            }
+            match m.at {
+                MetalAt::Term(t, _) => bound.taken[t] += held,
+                MetalAt::Ion { .. } => {
+                    let z = f64::from(m.charge);
+                    bound.charge -= z * held;
+                    bound.ionic -= z * z * held;
+                }
+            }
+        }
+        bound
+    }
+
+    /// ln L of ligand `k` that closes its balance with the other ligands held.
+    fn solve_ligand(
+        &self,
+        k: usize,
+        ln_l: &[f64],
+        total: f64,
+        p: f64,
+        base: &[f64],
+        metal_totals: &[(f64, f64)],
+    ) -> f64 {
+        let ceiling = (total / p).ln();
+        let (mut lo, mut hi) = (ceiling - LN_SPAN, ceiling);
+        let mut u = ln_l[k].clamp(lo, hi);
+        let mut trial: SmallVec<[f64; 4]> = ln_l.iter().copied().collect();
+        for _ in 0..MAX_STEPS_1D {
+            trial[k] = u;
+            let (f, slope) = self.ligand_balance(k, &trial, total, p, base, metal_totals);
+            if f > 0.0 {
+                hi = u;
+            } else {
+                lo = u;
+            }
+            let newton = u - f / slope;
+            let next = if newton.is_finite() && newton > lo && newton < hi {
+                newton
+            } else {
+                0.5 * (lo + hi)
+            };
+            if (next - u).abs() < LN_TOLERANCE || hi - lo < LN_TOLERANCE {
+                return next;
+            }
+            u = next;
+        }
+        u
+    }
+
+    /// Ligand k's balance (bound + free − total, mol/L) at `ln_l`, and its slope in ln L_k.
+    fn ligand_balance(
+        &self,
+        k: usize,
+        ln_l: &[f64],
+        total: f64,
+        p: f64,
+        base: &[f64],
+        metal_totals: &[(f64, f64)],
+    ) -> (f64, f64) {
+        let free = ln_l[k].exp() * p;
+        let (mut f, mut slope) = (free - total, free);
+        for (mi, m) in self.metals.iter().enumerate() {
+            let (a, b) = m.forms;
+            let (mut s, mut s1, mut s2) = (metal_totals[mi].1, 0.0, 0.0);
+            let mut touches = false;
+            for (f_, b_) in self.forms[a..b].iter().zip(&base[a..b]) {
+                let q = match f_.ligand {
+                    Some(j) => b_ * (f64::from(f_.n) * ln_l[j]).exp(),
+                    None => *b_,
+                };
+                s += q;
+                if f_.ligand == Some(k) {
+                    let n = f64::from(f_.n);
+                    s1 += n * q;
+                    s2 += n * n * q;
+                    touches = true;
+                }
+            }
+            if touches {
+                let t = metal_totals[mi].0;
+                f += t * s1 / s;
+                slope += t * (s2 / s - (s1 / s) * (s1 / s));
+            }
+        }
+        (f, slope)
+    }
+
+    /// Each complex's catalog index, in the order of `Bound::concentrations`.
+    pub(super) fn catalog_indexes(&self) -> impl Iterator<Item = usize> + '_ {
+        self.forms.iter().map(|f| f.catalog_index)
+    }
+}
