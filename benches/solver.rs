@@ -1,7 +1,8 @@
 //! Speed of one speciation solve of a 12-family mixture: as it stands (about 0.5 mol/kg,
 //! where the model for concentrated solutions has taken over), diluted ten times (the Davies
-//! path), and in a 3 mol/kg brine; and of one whole `check` computation in-process (mixing
-//! path both ways, pairs, findings).
+//! path), and in a 3 mol/kg brine; the same with four complexing metals (copper(I), silver,
+//! zinc, nickel) that bind its cyanide, ammonia and citrate; and one whole `check` computation
+//! in-process (mixing path both ways, pairs, findings).
 
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 use offgas::batch::Batch;
@@ -54,6 +55,24 @@ fn bench(c: &mut Criterion) {
         ("solve 12-family mixture in 3 mol/kg brine", 1.0, 3.0),
     ] {
         let m = twelve_family_mixture(&cat, scale, brine);
+        c.bench_function(name, |b| b.iter(|| solve(&cat, black_box(&m), &s).unwrap()));
+    }
+    for (name, scale) in [
+        ("solve 12-family mixture with 4 complexing metals", 1.0),
+        (
+            "solve 12-family mixture with 4 complexing metals, diluted tenfold (Davies)",
+            0.1,
+        ),
+    ] {
+        let mut m = twelve_family_mixture(&cat, scale, 0.0);
+        for (ion, c) in [("Cu+", 0.003), ("Ag+", 0.001)] {
+            m.add_ion(cat.ion_by_formula(ion).unwrap(), c * scale * 10.0);
+        }
+        for (family, c) in [("zinc", 0.002), ("nickel", 0.002)] {
+            m.add_family(cat.family_by_id(family).unwrap(), c * scale * 10.0);
+        }
+        let eq = solve(&cat, &m, &s).unwrap();
+        assert!(eq.complexes.len() > 8, "the metals form their complexes");
         c.bench_function(name, |b| b.iter(|| solve(&cat, black_box(&m), &s).unwrap()));
     }
     let container = Batch::parse(

@@ -1,6 +1,6 @@
 //! The one place where a computed state becomes numbers against limits, and findings.
 
-use crate::catalog::{Catalog, GasKind};
+use crate::catalog::{Catalog, FamilyId, GasKind};
 use crate::chem::{Closure, Equilibrium};
 use crate::report::{Finding, GasReport, Scope, Severity, StateReport};
 use crate::thresholds::Thresholds;
@@ -212,8 +212,65 @@ pub fn state_report(
             holds_to_mol_kg: eq.activity_range,
             detail: eq.activity_detail.as_deref().cloned(),
         },
+        bound_ligands: bound_ligands(cat, eq),
         gases,
     }
+}
+
+/// Least share of a ligand a complex must hold to be named.
+const NAMED_SHARE_PERCENT: f64 = 1.0;
+
+/// For each ligand family that complexes hold any of: its total, bound share, free species
+/// and the complexes that hold it.
+fn bound_ligands(cat: &Catalog, eq: &Equilibrium) -> Vec<crate::report::BoundLigand> {
+    use crate::catalog::complexes::Part;
+    let mut out: Vec<crate::report::BoundLigand> = Vec::new();
+    let mut seen: Vec<FamilyId> = Vec::new();
+    for cs in &eq.complexes {
+        let Some(Part::Family(fid, species)) = cat.complexes[cs.catalog_index].ligand else {
+            continue;
+        };
+        if seen.contains(&fid) {
+            continue;
+        }
+        seen.push(fid);
+        let Some(fs) = eq.family(fid) else { continue };
+        let total = fs.total_mol / eq.liquid_l;
+        if total.is_nan() || total <= 0.0 {
+            continue;
+        }
+        let share = |n: f64, c: f64| 100.0 * n * c / total;
+        let mut held_by: Vec<crate::report::HeldBy> = eq
+            .complexes
+            .iter()
+            .filter_map(|c| {
+                let data = &cat.complexes[c.catalog_index];
+                match data.ligand {
+                    Some(Part::Family(f, _)) if f == fid => Some(crate::report::HeldBy {
+                        complex: data.formula.clone(),
+                        metal: match data.metal {
+                            Part::Family(mf, j) => cat.family(mf).species[j].formula.clone(),
+                            Part::Ion(id) => cat.ion(id).formula.clone(),
+                        },
+                        percent: share(f64::from(data.n), c.concentration),
+                    }),
+                    _ => None,
+                }
+            })
+            .collect();
+        held_by.sort_by(|a, b| b.percent.total_cmp(&a.percent));
+        let bound_percent = held_by.iter().map(|h| h.percent).sum::<f64>();
+        held_by.retain(|h| h.percent >= NAMED_SHARE_PERCENT);
+        out.push(crate::report::BoundLigand {
+            family: cat.family(fid).id.clone(),
+            species: cat.family(fid).species[species].formula.clone(),
+            total_mol_per_l: total,
+            bound_percent,
+            free_mol_per_l: fs.concentrations[species],
+            held_by,
+        });
+    }
+    out
 }
 
 /// Severity of a toxic gas at its headspace level (asphyxiants are judged elsewhere).

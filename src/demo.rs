@@ -46,6 +46,14 @@ const FILES: &[(&str, &str)] = &[
         "stream-caustic-wash.yaml",
         include_str!("../data/demo/stream-caustic-wash.yaml"),
     ),
+    (
+        "stream-copper-cyanide-rinse.yaml",
+        include_str!("../data/demo/stream-copper-cyanide-rinse.yaml"),
+    ),
+    (
+        "stream-ferrocyanide-rinse.yaml",
+        include_str!("../data/demo/stream-ferrocyanide-rinse.yaml"),
+    ),
 ];
 
 #[derive(Deserialize)]

@@ -379,6 +379,9 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     }
     let _ = writeln!(out, "{t}");
 
+    for line in bound_lines(r) {
+        let _ = writeln!(out, "  {line}");
+    }
     out.push_str(&heat_and_room_text(r, ListStyle::Terminal));
 
     let pairs = shown_pairs(r, v.all_pairs);
@@ -401,6 +404,44 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
         &r.cautions,
         ListStyle::Terminal,
     ));
+    out
+}
+
+/// What metal complexes hold of each ligand, at the end and (where it differs) at the worst
+/// point of the pour: "End: cyanide 97 % held by metals (Cu(CN)3^2- 96 %), free CN- 0.30 mM".
+pub fn bound_lines(r: &CheckReport) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut add = |label: &str, s: &StateReport| {
+        for b in &s.bound_ligands {
+            let held: Vec<String> = b
+                .held_by
+                .iter()
+                .map(|h| format!("{} {:.0} %", h.complex, h.percent))
+                .collect();
+            out.push(format!(
+                "{label}: {} {:.0} % held by metals{}, free {} {}",
+                b.family,
+                b.bound_percent,
+                if held.is_empty() {
+                    String::new()
+                } else {
+                    format!(" ({})", held.join(", "))
+                },
+                b.species,
+                crate::text::molar(b.free_mol_per_l)
+            ));
+        }
+    };
+    add("End", &r.end_state);
+    if r.worst_state.fraction_added < 1.0 {
+        add(
+            &format!(
+                "Worst point ({:.0} % added)",
+                r.worst_state.fraction_added * 100.0
+            ),
+            &r.worst_state.state,
+        );
+    }
     out
 }
 
@@ -575,6 +616,13 @@ pub fn check_markdown(r: &CheckReport, v: View) -> String {
             o.worst_state.fraction_added,
             &o.worst_state.state,
         );
+    }
+    let bound = bound_lines(r);
+    if !bound.is_empty() {
+        out.push('\n');
+        for line in bound {
+            let _ = writeln!(out, "- {line}");
+        }
     }
     let _ = writeln!(
         out,

@@ -137,6 +137,34 @@ pub struct StateReport {
     /// How the activity coefficients were found for this state.
     pub activity: ActivityReport,
     pub gases: Vec<GasReport>,
+    /// How much of each ligand (cyanide, ammonia, EDTA, citrate) metal complexes hold.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub bound_ligands: Vec<BoundLigand>,
+}
+
+/// A ligand in one state: its total, what holds it, and what is left free.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BoundLigand {
+    /// The family's id (e.g. `cyanide`).
+    pub family: String,
+    /// The free ligand species (e.g. `CN-`).
+    pub species: String,
+    /// mol per litre of liquid, liquid and headspace together.
+    pub total_mol_per_l: f64,
+    pub bound_percent: f64,
+    /// mol/L of the free ligand species in the liquid.
+    pub free_mol_per_l: f64,
+    /// The complexes that hold it, the largest first (those holding at least 1 %).
+    pub held_by: Vec<HeldBy>,
+}
+
+/// One complex's share of a ligand.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct HeldBy {
+    pub complex: String,
+    /// The metal ion, as written in the data (e.g. `Cu+`).
+    pub metal: String,
+    pub percent: f64,
 }
 
 /// The activity model behind one state.

@@ -17,6 +17,19 @@ pub fn litres(l: f64) -> String {
     format!("{} L", if s.is_empty() || s == "-" { "0" } else { s })
 }
 
+/// A concentration as people read it: "0.12 mol/L", "0.30 mM", "4.5 µM", "2.0e-9 mol/L".
+pub fn molar(c: f64) -> String {
+    if c >= 0.1 {
+        format!("{c:.2} mol/L")
+    } else if c >= 1e-4 {
+        format!("{:.2} mM", c * 1e3)
+    } else if c >= 1e-7 {
+        format!("{:.2} µM", c * 1e6)
+    } else {
+        format!("{c:.1e} mol/L")
+    }
+}
+
 /// `s` with its first letter in capitals, to open a sentence.
 pub fn sentence_start(s: &str) -> String {
     let mut c = s.chars();

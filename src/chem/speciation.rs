@@ -381,13 +381,12 @@ impl Prepared<'_> {
     /// Charge balance, its slope in ln x, and the ionic strength, at x.
     fn eval(&self, x: f64) -> Point {
         if !self.links.is_empty() || self.complexation.is_some() {
-            // The coupling makes the analytic slope long; a central difference is exact
-            // enough for a Newton step that the bracket guards anyway.
+            // The coupling makes the analytic slope long; a forward difference is exact
+            // enough for a Newton step that the bracket guards anyway (the root is where the
+            // balance itself vanishes, whatever the slope's last digits).
             let d: f64 = 1e-6;
             let (f, ionic) = self.balance_linked(x);
-            let slope = (self.balance_linked(x * d.exp()).0
-                - self.balance_linked(x * (-d).exp()).0)
-                / (2.0 * d);
+            let slope = (self.balance_linked(x * d.exp()).0 - f) / d;
             return Point {
                 f,
                 dfdlnx: slope,
@@ -890,7 +889,7 @@ fn solve_with(
         }
     }
 
-    p.complexation = Complexation::new(cat, &p.terms, &m.ions, vl, t_k).map(Box::new);
+    p.complexation = Complexation::new(cat, &p.terms, &m.ions, vl, t_k, near).map(Box::new);
 
     // Only a mixture whose ionic strength could pass the dilute range may need the model for
     // concentrated mixtures; whether it does is read off the dilute solve.

@@ -4,10 +4,11 @@
 //! A metal m of total T_m is free or bound: T_m = M·(P_m + Σ_c q_c), with P_m the metal's
 //! total over its free aquo ion (its own hydrolysis) and q_c = K'_c · x^h_c · L^n_c for each
 //! complex c. A ligand k of total T_k is free (over its protonated forms and the headspace,
-//! P_k per unit free ligand) or bound: T_k = L_k P_k + Σ_c n_c T_m q_c / S_m. Each ligand's
-//! balance rises monotonically with ln L_k (its slope is L_k P_k plus a variance of bound
-//! counts), so a bracketed Newton search per ligand, taken in turns while the ligands share
-//! a metal, converges.
+//! P_k per unit free ligand) or bound: T_k = L_k P_k + Σ_c n_c T_m q_c / S_m. One ligand's
+//! balance rises monotonically with ln L (its slope is L P plus a variance of bound counts):
+//! a bracketed Newton search closes it. Several ligands sharing metals are solved together:
+//! their balances are the gradient of one convex function of the ln L, which a Newton
+//! search with a backtracking line search minimises from any start.
 
 use std::cell::Cell;
 
@@ -15,13 +16,66 @@ use smallvec::SmallVec;
 
 use super::{liquid_species_fraction, Term, INLINE_TERMS};
 use crate::catalog::complexes::Part;
-use crate::catalog::{Catalog, IonId};
+use crate::catalog::{Catalog, IonId, MAX_LIGANDS};
+
+/// Solves H d = −g over the active ligands (H symmetric positive definite there) by
+/// Gaussian elimination; inactive ligands get no step.
+fn newton_direction(hess: &[f64], grad: &[f64], active: &[bool]) -> SmallVec<[f64; 4]> {
+    let idx: SmallVec<[usize; 4]> = (0..grad.len()).filter(|&k| active[k]).collect();
+    let m = idx.len();
+    let mut a: SmallVec<[f64; 25]> = SmallVec::from_elem(0.0, m * (m + 1));
+    for (r, &k) in idx.iter().enumerate() {
+        for (c, &j) in idx.iter().enumerate() {
+            a[r * (m + 1) + c] = hess[k * grad.len() + j];
+        }
+        a[r * (m + 1) + m] = -grad[k];
+    }
+    for col in 0..m {
+        let pivot = (col..m)
+            .max_by(|&x, &y| {
+                a[x * (m + 1) + col]
+                    .abs()
+                    .total_cmp(&a[y * (m + 1) + col].abs())
+            })
+            .unwrap_or(col);
+        if pivot != col {
+            for c in 0..=m {
+                a.swap(pivot * (m + 1) + c, col * (m + 1) + c);
+            }
+        }
+        let d = a[col * (m + 1) + col];
+        if d.abs() < f64::MIN_POSITIVE {
+            continue;
+        }
+        for r in 0..m {
+            if r != col {
+                let factor = a[r * (m + 1) + col] / d;
+                for c in col..=m {
+                    a[r * (m + 1) + c] -= factor * a[col * (m + 1) + c];
+                }
+            }
+        }
+    }
+    let mut out: SmallVec<[f64; 4]> = SmallVec::from_elem(0.0, grad.len());
+    for (r, &k) in idx.iter().enumerate() {
+        let d = a[r * (m + 1) + r];
+        out[k] = if d.abs() < f64::MIN_POSITIVE {
+            0.0
+        } else {
+            a[r * (m + 1) + m] / d
+        };
+    }
+    out
+}
 
 /// Convergence of each ln L.
 const LN_TOLERANCE: f64 = 1e-12;
+/// A joint Newton step below this in every ln L is taken as the last (the next would be of
+/// its square's order).
+const NEWTON_DONE: f64 = 1e-7;
 /// Span of ln L below its ceiling (the whole total free) that the search brackets.
 const LN_SPAN: f64 = 200.0;
-/// Most rounds of turns over the ligands, and Newton steps in one search.
+/// Most Newton steps of the joint search, and of one ligand's search.
 const MAX_ROUNDS: usize = 200;
 const MAX_STEPS_1D: usize = 200;
 
@@ -92,6 +146,7 @@ impl Complexation {
         ions: &[(IonId, f64)],
         liquid_l: f64,
         t_k: f64,
+        near: Option<&super::Equilibrium>,
     ) -> Option<Self> {
         if cat.complexes.is_empty() {
             return None;
@@ -138,11 +193,18 @@ impl Complexation {
                             Some(k) => k,
                             None => {
                                 let t = &terms[term];
+                                // A neighbouring state's free ligand is where the search
+                                // starts; the result does not depend on it.
+                                let guess = near
+                                    .and_then(|e| e.family(t.family))
+                                    .and_then(|fs| fs.concentrations.get(species).copied())
+                                    .filter(|c| *c > 0.0)
+                                    .map_or(f64::NAN, f64::ln);
                                 out.ligands.push(Ligand {
                                     term,
                                     species,
                                     charge: t.z0 - species as i32,
-                                    guess: Cell::new(f64::NAN),
+                                    guess: Cell::new(guess),
                                 });
                                 out.ligands.len() - 1
                             }
@@ -268,33 +330,23 @@ impl Complexation {
             q.clear();
             for (f, b) in self.forms.iter().zip(&base) {
                 q.push(match f.ligand {
-                    Some(k) => b * (f64::from(f.n) * ln_l[k]).exp(),
+                    Some(k) => b * ln_l[k].exp().powi(f.n),
                     None => *b,
                 });
             }
         };
         let mut q: SmallVec<[f64; 24]> = SmallVec::new();
+        if self.ligands.len() == 1 {
+            let (total, p) = ligand_totals[0];
+            ln_l[0] = if total > 0.0 {
+                self.solve_ligand(0, &ln_l, total, p, &base, &metal_totals)
+            } else {
+                f64::NEG_INFINITY
+            };
+        } else if !self.ligands.is_empty() {
+            self.solve_ligands_jointly(&mut ln_l, &ligand_totals, &base, &metal_totals);
+        }
         if !self.ligands.is_empty() {
-            for _ in 0..MAX_ROUNDS {
-                let mut moved: f64 = 0.0;
-                for k in 0..self.ligands.len() {
-                    let (total, p) = ligand_totals[k];
-                    if total <= 0.0 {
-                        ln_l[k] = f64::NEG_INFINITY;
-                        continue;
-                    }
-                    let before = ln_l[k];
-                    ln_l[k] = self.solve_ligand(k, &ln_l, total, p, &base, &metal_totals);
-                    if before.is_finite() {
-                        moved = moved.max((ln_l[k] - before).abs());
-                    } else {
-                        moved = f64::INFINITY;
-                    }
-                }
-                if self.ligands.len() == 1 || moved < LN_TOLERANCE {
-                    break;
-                }
-            }
             for (l, &v) in self.ligands.iter().zip(&ln_l) {
                 l.guess.set(v);
             }
@@ -370,6 +422,165 @@ impl Complexation {
         u
     }
 
+    /// Every ligand's ln L at once, where several share the mixture's metals: the balances
+    /// are the gradient of a convex function of ln L (Φ = Σ_k (L_k P_k − T_k ln L_k) +
+    /// Σ_m T_m ln S_m), so Newton steps with a backtracking search on Φ converge from any
+    /// start.
+    fn solve_ligands_jointly(
+        &self,
+        ln_l: &mut [f64],
+        ligand_totals: &[(f64, f64)],
+        base: &[f64],
+        metal_totals: &[(f64, f64)],
+    ) {
+        let n = self.ligands.len();
+        let active: SmallVec<[bool; 4]> = ligand_totals.iter().map(|&(t, _)| t > 0.0).collect();
+        let ceiling: SmallVec<[f64; 4]> = ligand_totals
+            .iter()
+            .map(|&(t, p)| {
+                if t > 0.0 {
+                    (t / p).ln()
+                } else {
+                    f64::NEG_INFINITY
+                }
+            })
+            .collect();
+        for k in 0..n {
+            if !active[k] {
+                ln_l[k] = f64::NEG_INFINITY;
+            }
+        }
+        let mut grad: SmallVec<[f64; 4]> = SmallVec::from_elem(0.0, n);
+        let mut hess: SmallVec<[f64; 16]> = SmallVec::from_elem(0.0, n * n);
+        let mut phi = self.potential(
+            ln_l,
+            ligand_totals,
+            base,
+            metal_totals,
+            &mut grad,
+            &mut hess,
+        );
+        for _ in 0..MAX_ROUNDS {
+            let mut step = newton_direction(&hess, &grad, &active);
+            // Newton converges quadratically here: a step this short is the last one, and
+            // the potential need not be evaluated after it.
+            if step.iter().all(|d| d.abs() < NEWTON_DONE) {
+                for k in 0..n {
+                    if active[k] {
+                        ln_l[k] += step[k];
+                    }
+                }
+                return;
+            }
+            // Long steps are cut to a factor e^20 in any concentration: beyond the exponent's
+            // range the potential would overflow before the search could shorten them.
+            let longest = step.iter().fold(0.0f64, |a, d| a.max(d.abs()));
+            if longest > 20.0 {
+                step.iter_mut().for_each(|d| *d *= 20.0 / longest);
+            }
+            let slope: f64 = step.iter().zip(&grad).map(|(d, g)| d * g).sum();
+            let mut t = 1.0;
+            let mut trial: SmallVec<[f64; 4]> = SmallVec::from_slice(ln_l);
+            let mut accepted = false;
+            for _ in 0..60 {
+                for k in 0..n {
+                    if active[k] {
+                        trial[k] =
+                            (ln_l[k] + t * step[k]).clamp(ceiling[k] - LN_SPAN, ceiling[k] + 1.0);
+                    }
+                }
+                let (mut g2, mut h2) = (grad.clone(), hess.clone());
+                let next =
+                    self.potential(&trial, ligand_totals, base, metal_totals, &mut g2, &mut h2);
+                if next <= phi + 1e-4 * t * slope || t * longest < LN_TOLERANCE {
+                    phi = next;
+                    grad = g2;
+                    hess = h2;
+                    accepted = true;
+                    break;
+                }
+                t *= 0.5;
+            }
+            let moved = (0..n)
+                .filter(|&k| active[k])
+                .fold(0.0f64, |a, k| a.max((trial[k] - ln_l[k]).abs()));
+            ln_l.copy_from_slice(&trial);
+            if !accepted || moved < LN_TOLERANCE {
+                return;
+            }
+        }
+    }
+
+    /// Φ at `ln_l`, with its gradient (each ligand's balance) and Hessian written into
+    /// `grad` and `hess` (row-major).
+    fn potential(
+        &self,
+        ln_l: &[f64],
+        ligand_totals: &[(f64, f64)],
+        base: &[f64],
+        metal_totals: &[(f64, f64)],
+        grad: &mut [f64],
+        hess: &mut [f64],
+    ) -> f64 {
+        let n = self.ligands.len();
+        hess.iter_mut().for_each(|h| *h = 0.0);
+        let mut phi = 0.0;
+        for k in 0..n {
+            let (total, p) = ligand_totals[k];
+            if total > 0.0 {
+                let free = ln_l[k].exp() * p;
+                phi += free - total * ln_l[k];
+                grad[k] = free - total;
+                hess[k * n + k] = free;
+            } else {
+                grad[k] = 0.0;
+            }
+        }
+        // Each ligand's free concentration to the powers 0..=MAX_LIGANDS, by products.
+        let powers: SmallVec<[[f64; MAX_LIGANDS + 1]; 4]> = ln_l
+            .iter()
+            .map(|u| {
+                let l = u.exp();
+                let mut p = [1.0; MAX_LIGANDS + 1];
+                for i in 1..=MAX_LIGANDS {
+                    p[i] = p[i - 1] * l;
+                }
+                p
+            })
+            .collect();
+        let mut s1: SmallVec<[f64; 4]> = SmallVec::from_elem(0.0, n);
+        for (mi, m) in self.metals.iter().enumerate() {
+            let (a, b) = m.forms;
+            let (total, mut s) = (metal_totals[mi].0, metal_totals[mi].1);
+            s1.iter_mut().for_each(|v| *v = 0.0);
+            let mut s2: SmallVec<[f64; 4]> = SmallVec::from_elem(0.0, n);
+            for (f, b_) in self.forms[a..b].iter().zip(&base[a..b]) {
+                let q = match f.ligand {
+                    Some(j) => b_ * powers[j][f.n as usize],
+                    None => *b_,
+                };
+                s += q;
+                if let Some(j) = f.ligand {
+                    let nn = f64::from(f.n);
+                    s1[j] += nn * q;
+                    s2[j] += nn * nn * q;
+                }
+            }
+            if total <= 0.0 {
+                continue;
+            }
+            phi += total * s.ln();
+            for k in 0..n {
+                grad[k] += total * s1[k] / s;
+                hess[k * n + k] += total * s2[k] / s;
+                for j in 0..n {
+                    hess[k * n + j] -= total * s1[k] * s1[j] / (s * s);
+                }
+            }
+        }
+        phi
+    }
+
     /// Ligand k's balance (bound + free − total, mol/L) at `ln_l`, and its slope in ln L_k.
     fn ligand_balance(
         &self,
@@ -380,7 +591,8 @@ impl Complexation {
         base: &[f64],
         metal_totals: &[(f64, f64)],
     ) -> (f64, f64) {
-        let free = ln_l[k].exp() * p;
+        let free_k = ln_l[k].exp();
+        let free = free_k * p;
         let (mut f, mut slope) = (free - total, free);
         for (mi, m) in self.metals.iter().enumerate() {
             let (a, b) = m.forms;
@@ -388,6 +600,7 @@ impl Complexation {
             let mut touches = false;
             for (f_, b_) in self.forms[a..b].iter().zip(&base[a..b]) {
                 let q = match f_.ligand {
+                    Some(j) if j == k => b_ * free_k.powi(f_.n),
                     Some(j) => b_ * (f64::from(f_.n) * ln_l[j]).exp(),
                     None => *b_,
                 };
