@@ -213,7 +213,25 @@ pub fn state_report(
             detail: eq.activity_detail.as_deref().cloned(),
         },
         bound_ligands: bound_ligands(cat, eq),
+        past_saturation: eq
+            .solids
+            .iter()
+            .map(|sd| crate::report::PastSaturation {
+                solid: sd.formula.clone(),
+                metal: metal_formula(cat, cat.solids[sd.catalog_index].metal),
+                excess_mol_per_l: sd.mol_per_l,
+            })
+            .collect(),
         gases,
+    }
+}
+
+/// A metal's formula as the data write it (`Cu^2+`, `Ag+`).
+fn metal_formula(cat: &Catalog, part: crate::catalog::complexes::Part) -> String {
+    use crate::catalog::complexes::Part;
+    match part {
+        Part::Family(f, j) => cat.family(f).species[j].formula.clone(),
+        Part::Ion(id) => cat.ion(id).formula.clone(),
     }
 }
 
@@ -248,10 +266,7 @@ fn bound_ligands(cat: &Catalog, eq: &Equilibrium) -> Vec<crate::report::BoundLig
                 match data.ligand {
                     Some(Part::Family(f, _)) if f == fid => Some(crate::report::HeldBy {
                         complex: data.formula.clone(),
-                        metal: match data.metal {
-                            Part::Family(mf, j) => cat.family(mf).species[j].formula.clone(),
-                            Part::Ion(id) => cat.ion(id).formula.clone(),
-                        },
+                        metal: metal_formula(cat, data.metal),
                         percent: share(f64::from(data.n), c.concentration),
                     }),
                     _ => None,

@@ -186,6 +186,14 @@ fn states_html(r: &CheckReport, out: &mut String) {
         );
     }
     out.push_str("</tbody>\n</table>\n");
+    let bound = crate::render::bound_lines(r);
+    if !bound.is_empty() {
+        out.push_str("<ul>\n");
+        for line in bound {
+            let _ = writeln!(out, "<li>{}</li>", esc(&line));
+        }
+        out.push_str("</ul>\n");
+    }
 }
 
 fn heat_room_html(r: &CheckReport, out: &mut String) {

@@ -92,6 +92,7 @@ fn actors(cat: &Catalog, eq: &Equilibrium, t_k: f64) -> (Vec<Actor>, Vec<Actor>)
         }
     }
     // H3O+ and OH- on the usual scale where pKa(H3O+) = 0 and pKa(H2O) = pKw.
+    acceptors.extend(complex_acceptors(cat, eq, t_k));
     if eq.h_mol_per_l >= WATER_ION_MOL_PER_L {
         donors.push(Actor {
             formula: "H3O+".into(),
@@ -109,6 +110,54 @@ fn actors(cat: &Catalog, eq: &Equilibrium, t_k: f64) -> (Vec<Actor>, Vec<Actor>)
         });
     }
     (donors, acceptors)
+}
+
+/// Metal complexes as acceptors: a proton takes one ligand from ML_n, leaving ML_(n-1) and the
+/// ligand's acid, with log K = pKa(HL) − log(β_n/β_(n−1)). The metal's hold on the ligand is
+/// what the acid has to beat, so a held cyanide is a weaker base than a free one.
+fn complex_acceptors(cat: &Catalog, eq: &Equilibrium, t_k: f64) -> Vec<Actor> {
+    use crate::catalog::complexes::{Complex, Part};
+    let phys = &cat.physical;
+    let log_beta = |c: &Complex| {
+        c.log_beta
+            - c.dh.unwrap_or(0.0) * 1e3 / (phys.r * std::f64::consts::LN_10)
+                * (1.0 / t_k - 1.0 / phys.t_ref)
+    };
+    let mut out = Vec::new();
+    for cs in &eq.complexes {
+        if cs.concentration < PRESENT_MOL_PER_L {
+            continue;
+        }
+        let c = &cat.complexes[cs.catalog_index];
+        let Some(Part::Family(fid, s)) = c.ligand else {
+            continue;
+        };
+        if c.protons != 0 || s == 0 {
+            continue;
+        }
+        let (lower_formula, lower_log_beta) = if c.n == 1 {
+            let metal = match c.metal {
+                Part::Family(f, j) => cat.family(f).species[j].formula.clone(),
+                Part::Ion(id) => cat.ion(id).formula.clone(),
+            };
+            (metal, 0.0)
+        } else {
+            let Some(lower) = cat.complexes.iter().find(|o| {
+                o.metal == c.metal && o.ligand == c.ligand && o.protons == 0 && o.n + 1 == c.n
+            }) else {
+                continue;
+            };
+            (lower.formula.clone(), log_beta(lower))
+        };
+        let fam = cat.family(fid);
+        out.push(Actor {
+            formula: c.formula.clone(),
+            pka: -log_ka(phys, fam, s - 1, t_k) - (log_beta(c) - lower_log_beta),
+            partner: format!("{} + {lower_formula}", fam.species[s - 1].formula),
+            partner_gas: gas_of(cat, fid, s - 1),
+        });
+    }
+    out
 }
 
 /// Every donor of one batch with every acceptor of the other, strongest transfer first.

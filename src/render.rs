@@ -242,7 +242,7 @@ pub fn pair_cells(pairs: &[&Pair]) -> Vec<Vec<String>> {
                 format!(
                     "{} + {}",
                     pretty(&p.produced_base),
-                    pretty(&p.produced_acid)
+                    crate::notation::pretty_words(&p.produced_acid)
                 ),
                 format!("{:.1}", p.log_k),
                 extent_word(p.extent).to_string(),
@@ -407,8 +407,9 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     out
 }
 
-/// What metal complexes hold of each ligand, at the end and (where it differs) at the worst
-/// point of the pour: "End: cyanide 97 % held by metals (Cu(CN)3^2- 96 %), free CN- 0.30 mM".
+/// What metal complexes hold of each ligand, and the solids the liquid is past saturation
+/// with, at the end and (where it differs) at the worst point of the pour: "End: cyanide
+/// 97 % held by metals (Cu(CN)3^2- 96 %), free CN- 0.30 mM".
 pub fn bound_lines(r: &CheckReport) -> Vec<String> {
     let mut out = Vec::new();
     let mut add = |label: &str, s: &StateReport| {
@@ -416,7 +417,7 @@ pub fn bound_lines(r: &CheckReport) -> Vec<String> {
             let held: Vec<String> = b
                 .held_by
                 .iter()
-                .map(|h| format!("{} {:.0} %", h.complex, h.percent))
+                .map(|h| format!("{} {:.0} %", pretty(&h.complex), h.percent))
                 .collect();
             out.push(format!(
                 "{label}: {} {:.0} % held by metals{}, free {} {}",
@@ -427,8 +428,16 @@ pub fn bound_lines(r: &CheckReport) -> Vec<String> {
                 } else {
                     format!(" ({})", held.join(", "))
                 },
-                b.species,
+                pretty(&b.species),
                 crate::text::molar(b.free_mol_per_l)
+            ));
+        }
+        for p in &s.past_saturation {
+            out.push(format!(
+                "{label}: past saturation with {}: about {} of {} would leave as the solid (the figures keep it dissolved)",
+                pretty(&p.solid),
+                crate::text::molar(p.excess_mol_per_l),
+                pretty(&p.metal)
             ));
         }
     };

@@ -21,7 +21,8 @@ fn catalog_with_only(entry: &str) -> Catalog {
     let text = offgas::embedded::COMPLEXES;
     let head = text.split("\ncomplexes:\n").next().unwrap();
     let tail = text.split("\ninert:\n").nth(1).unwrap();
-    let only = format!("{head}\ncomplexes:\n{entry}\n\ninert:\n{tail}");
+    let inert = tail.split("\nsolids:\n").next().unwrap();
+    let only = format!("{head}\ncomplexes:\n{entry}\n\ninert:\n{inert}\nsolids: []\n");
     let mut src = offgas::embedded::sources();
     src.complexes = ("data/complexes.yaml", &only);
     Catalog::load(src).expect("the one-complex catalog loads")

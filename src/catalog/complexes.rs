@@ -16,6 +16,32 @@ pub struct ComplexesFile {
     pub sources: BTreeMap<String, String>,
     pub complexes: Vec<ComplexEntry>,
     pub inert: Vec<InertEntry>,
+    pub solids: Vec<SolidEntry>,
+}
+
+/// solid + z H+ = metal + z H2O, z the metal's charge, per metal atom.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SolidEntry {
+    pub formula: String,
+    pub metal: String,
+    pub log_k: f64,
+    #[serde(default)]
+    pub dh: Option<f64>,
+    pub source: String,
+    #[serde(default)]
+    pub note: Option<String>,
+}
+
+/// A hydroxide or oxide that leaves the liquid where it is saturated.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Solid {
+    pub formula: String,
+    pub metal: Part,
+    pub log_k: f64,
+    pub dh: Option<f64>,
+    pub source: String,
+    pub note: Option<String>,
 }
 
 /// metal + n ligand + protons H+ = complex (for hydroxo complexes: ligand H2O, protons −n).

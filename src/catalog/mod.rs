@@ -254,6 +254,8 @@ pub struct Catalog {
     pub complexes_of_metal: Vec<(complexes::Part, Vec<usize>)>,
     /// Complexes counted as they are (strong ions), with the reason.
     pub inert_complexes: Vec<complexes::InertComplex>,
+    /// Hydroxides and oxides that precipitate, at most one per metal.
+    pub solids: Vec<complexes::Solid>,
     /// Stoichiometric gas releases (hydrogen from metals and hydrides).
     pub releases: Vec<(SubstanceId, Release)>,
     /// Density of pure water, g/mL, at the density tables' temperature.
@@ -603,7 +605,7 @@ impl Catalog {
             });
         }
 
-        let (complexes, complexes_of_metal, inert_complexes) = load_complexes(
+        let (complexes, complexes_of_metal, inert_complexes, solids) = load_complexes(
             complexes_file,
             Src::new(src.complexes),
             &species,
@@ -880,6 +882,7 @@ impl Catalog {
             complexes,
             complexes_of_metal,
             inert_complexes,
+            solids,
             releases: resolved_releases,
             water_density,
             density_tables,
@@ -1039,6 +1042,7 @@ type LoadedComplexes = (
     Vec<complexes::Complex>,
     Vec<(complexes::Part, Vec<usize>)>,
     Vec<complexes::InertComplex>,
+    Vec<complexes::Solid>,
 );
 
 /// Resolves every complex's metal and ligand to a family species or a strong ion, and checks
@@ -1200,7 +1204,42 @@ fn load_complexes(
             note: e.note.clone(),
         });
     }
-    Ok((out, by_metal, inert))
+    let mut solids: Vec<complexes::Solid> = Vec::with_capacity(file.solids.len());
+    for e in &file.solids {
+        let bad = |m: String| at("solids", &e.formula, m);
+        let (metal, _) = find(&e.metal).filter(|(_, z)| *z > 0).ok_or_else(|| {
+            bad(format!(
+                "metal `{}` is not a cation of data/species.yaml",
+                e.metal
+            ))
+        })?;
+        if !by_metal.iter().any(|(m, _)| *m == metal) {
+            return Err(bad(format!(
+                "metal `{}` forms no complex: a solid is computed only for a metal of `complexes`",
+                e.metal
+            )));
+        }
+        if solids.iter().any(|s| s.metal == metal) {
+            return Err(bad(format!("a second solid for `{}`", e.metal)));
+        }
+        if !e.log_k.is_finite() || e.dh.is_some_and(|d| !d.is_finite()) {
+            return Err(bad("log_k and dh must be numbers".into()));
+        }
+        solids.push(complexes::Solid {
+            formula: e.formula.clone(),
+            metal,
+            log_k: e.log_k,
+            dh: e.dh,
+            source: known_source(&e.source).ok_or_else(|| {
+                bad(format!(
+                    "source `{}` is not listed under `sources`",
+                    e.source
+                ))
+            })?,
+            note: e.note.clone(),
+        });
+    }
+    Ok((out, by_metal, inert, solids))
 }
 
 /// Most ligands one complex may hold.

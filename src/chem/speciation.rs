@@ -107,6 +107,17 @@ pub struct ComplexState {
     pub concentration: f64,
 }
 
+/// A hydroxide or oxide the liquid is past saturation with. The equilibrium keeps the metal
+/// dissolved; this says how much would leave as the solid.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SolidState {
+    /// Index into the catalog's solids.
+    pub catalog_index: usize,
+    pub formula: String,
+    /// mol of metal per litre of liquid beyond saturation.
+    pub mol_per_l: f64,
+}
+
 /// A volatile species in the headspace.
 #[derive(Debug, Clone, PartialEq)]
 pub struct GasState {
@@ -135,6 +146,8 @@ pub struct Equilibrium {
     /// Metal complexes (cyanide, ammine, chelate, hydroxo), present when a metal and what it
     /// binds are.
     pub complexes: Vec<ComplexState>,
+    /// Solids the liquid is past saturation with (kept dissolved in the figures).
+    pub solids: Vec<SolidState>,
     pub gases: Vec<GasState>,
     /// Charge balance residual over the sum of absolute charge concentrations.
     pub relative_charge_residual: f64,
@@ -178,7 +191,8 @@ impl Equilibrium {
             (Part::Ion(a), Part::Ion(b)) => a == b,
             _ => false,
         };
-        self.complexes
+        let in_complexes: f64 = self
+            .complexes
             .iter()
             .map(|cs| {
                 let c = &cat.complexes[cs.catalog_index];
@@ -189,7 +203,8 @@ impl Equilibrium {
                 };
                 (as_metal + as_ligand) * cs.concentration
             })
-            .sum()
+            .sum();
+        in_complexes
     }
     /// mol/L of a family held in complexes (as metal or as ligand).
     pub fn family_bound_mol_per_l(&self, cat: &Catalog, id: FamilyId) -> f64 {
@@ -309,15 +324,36 @@ impl Prepared<'_> {
     fn set_concentrated_activity(&mut self, x: f64, step: f64) -> f64 {
         let h = x * self.inv_gamma_h;
         let oh = self.kw_eff * self.inv_gamma_oh / x;
+        if self.concentrated.is_none() {
+            return 0.0;
+        }
+        // The interaction model reads the families' free totals and the complexes as ions of
+        // their own: what metal complexes hold is not there as the free ions.
+        let mut saved: Option<SmallVec<[f64; INLINE_TERMS]>> = None;
+        if self.complexation.is_some() {
+            let (free, bound) = self.linked_totals(x);
+            saved = Some(self.terms.iter().map(|t| t.c_total).collect());
+            for (t, f) in self.terms.iter_mut().zip(&free) {
+                t.c_total = f.max(0.0);
+            }
+            if let (Some(b), Some(conc)) = (bound, self.concentrated.as_mut()) {
+                conc.set_complexes(&b.concentrations, &b.ions_bound);
+            }
+        }
         let Some(conc) = self.concentrated.as_mut() else {
             return 0.0;
         };
         let c = conc.update(&mut self.terms, &mut self.links, x, h, oh, step);
+        if let Some(saved) = saved {
+            for (t, c) in self.terms.iter_mut().zip(saved) {
+                t.c_total = c;
+            }
+        }
         if let Some(cx) = self.complexation.as_mut() {
             cx.set_concentrated(
                 &self.terms,
                 |slot| conc.ion_ln_gamma(slot),
-                |z| conc.fallback_ln_gamma(z),
+                |k| conc.complex_ln_gamma(k),
                 conc.ln_water(),
             );
         }
@@ -926,12 +962,25 @@ fn solve_with(
             constants.a_phi,
             constants.debye_huckel_a,
             t_k,
+            &p.complexation
+                .as_ref()
+                .map(|cx| cx.charges().collect::<SmallVec<[i32; 24]>>())
+                .unwrap_or_default(),
         ));
         let dilute_iterations = root.iterations;
         let h = root.x * p.inv_gamma_h;
         let oh = p.kw_eff * p.inv_gamma_oh / root.x;
+        // The hold is read from the composition at the dilute root, with the complexes (and
+        // the free totals they leave) as the coefficients will read them.
+        let free_terms = p.complexation.is_some().then(|| {
+            let (terms, bound) = p.linked_terms(root.x);
+            if let (Some(b), Some(conc)) = (bound, p.concentrated.as_mut()) {
+                conc.set_complexes(&b.concentrations, &b.ions_bound);
+            }
+            terms
+        });
         if let Some(conc) = p.concentrated.as_mut() {
-            conc.hold_at_range(&p.terms, root.x, h, oh);
+            conc.hold_at_range(free_terms.as_deref().unwrap_or(&p.terms), root.x, h, oh);
         }
         root = find_root_concentrated(&mut p, root.x.ln(), s, &activity)?;
         root.iterations += dilute_iterations;
@@ -1220,7 +1269,15 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
         });
     }
     let mut complexes = Vec::new();
+    let mut solids = Vec::new();
     if let (Some(cx), Some((_, Some(b)))) = (&p.complexation, &linked) {
+        for &(si, amount) in &b.solids {
+            solids.push(SolidState {
+                catalog_index: si,
+                formula: cat.solids[si].formula.clone(),
+                mol_per_l: amount,
+            });
+        }
         complexes.reserve(b.concentrations.len());
         // The complexes' charge, with a strong-ion metal's bound share taken off its own.
         charge += b.charge;
@@ -1245,6 +1302,7 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
         families,
         combined,
         complexes,
+        solids,
         gases,
         relative_charge_residual: if scale > 0.0 {
             charge.abs() / scale

@@ -94,6 +94,26 @@ struct Metal {
     charge: i32,
     /// This metal's complexes: a range of `forms`.
     forms: (usize, usize),
+    /// The hydroxide that caps it, if the data give one.
+    solid: Option<SolidCap>,
+}
+
+/// A solid of one metal: solid + z H+ = metal + z H2O.
+#[derive(Clone, Copy)]
+struct SolidCap {
+    catalog_index: usize,
+    /// Thermodynamic constant at the temperature.
+    k: f64,
+    /// Over the metal's activity coefficient (and water's activity to the z): the free
+    /// metal's saturated concentration is k_eff x^z.
+    k_eff: f64,
+}
+
+/// A metal at one a(H+): its total, and its total over its free ion.
+#[derive(Clone, Copy)]
+struct MetalNow {
+    total: f64,
+    p: f64,
 }
 
 struct Ligand {
@@ -134,8 +154,15 @@ pub(super) struct Bound {
     pub charge: f64,
     /// The same for Σ z² c.
     pub ionic: f64,
+    /// What complexes hold of each strong-ion metal: (its slot among the mixture's ions, mol/L).
+    pub ions_bound: SmallVec<[(usize, f64); 4]>,
     /// mol/L of each complex, in the order of `forms`.
     pub concentrations: SmallVec<[f64; 24]>,
+    /// Each solid the liquid is past saturation with (catalog index), and the mol of metal
+    /// per litre beyond saturation. The solve keeps it dissolved: a solid's phase boundary
+    /// makes the charge balance kink where its coefficients move it, which the search for
+    /// a(H+) does not yet follow reliably.
+    pub solids: SmallVec<[(usize, f64); 2]>,
 }
 
 impl Complexation {
@@ -232,10 +259,27 @@ impl Complexation {
                     Part::Family(f, j) => cat.family(f).species[j].charge,
                     Part::Ion(id) => cat.ion(id).charge,
                 };
+                let solid = cat
+                    .solids
+                    .iter()
+                    .position(|sd| sd.metal == *metal)
+                    .map(|si| {
+                        let sd = &cat.solids[si];
+                        let log_k = sd.log_k
+                            - sd.dh.unwrap_or(0.0) * 1e3 / (phys.r * std::f64::consts::LN_10)
+                                * (1.0 / t_k - 1.0 / phys.t_ref);
+                        let k = (log_k * std::f64::consts::LN_10).exp();
+                        SolidCap {
+                            catalog_index: si,
+                            k,
+                            k_eff: k,
+                        }
+                    });
                 out.metals.push(Metal {
                     at,
                     charge,
                     forms: (start, out.forms.len()),
+                    solid,
                 });
             }
         }
@@ -254,6 +298,11 @@ impl Complexation {
             let ln_ratio = ln1 * (z2(zm) + f64::from(f.n) * z2(zl) - z2(f.charge));
             f.k_eff = f.k * ln_ratio.exp();
         }
+        for m in &mut self.metals {
+            if let Some(sd) = m.solid.as_mut() {
+                sd.k_eff = sd.k * (-ln1 * f64::from(m.charge * m.charge)).exp();
+            }
+        }
     }
 
     /// Folds the concentrated model's coefficients into each constant: `ln_gamma_metal(slot)`
@@ -263,10 +312,10 @@ impl Complexation {
         &mut self,
         terms: &[Term],
         ln_gamma_ion: impl Fn(usize) -> f64,
-        ln_gamma_of: impl Fn(i32) -> f64,
+        ln_gamma_complex: impl Fn(usize) -> f64,
         ln_water: f64,
     ) {
-        for f in &mut self.forms {
+        for (fi, f) in self.forms.iter_mut().enumerate() {
             let metal = &self.metals[f.metal];
             let ln_metal = match metal.at {
                 MetalAt::Term(t, j) => terms[t].ln_gamma[j],
@@ -279,23 +328,37 @@ impl Complexation {
                 }
                 None => f64::from(f.n) * ln_water,
             };
-            f.k_eff = f.k * (ln_metal + ln_ligand - ln_gamma_of(f.charge)).exp();
+            f.k_eff = f.k * (ln_metal + ln_ligand - ln_gamma_complex(fi)).exp();
+        }
+        for m in &mut self.metals {
+            let ln_metal = match m.at {
+                MetalAt::Term(t, j) => terms[t].ln_gamma[j],
+                MetalAt::Ion { slot, .. } => ln_gamma_ion(slot),
+            };
+            if let Some(sd) = m.solid.as_mut() {
+                sd.k_eff = sd.k * (-ln_metal - f64::from(m.charge) * ln_water).exp();
+            }
         }
     }
 
     /// The complexes at x, for family totals `totals` (mol/L, after any combined species took
     /// their share).
     pub(super) fn solve_at(&self, terms: &[Term], totals: &[f64], x: f64) -> Bound {
-        // Per metal: its total and its total over its free ion (1 for a strong ion).
-        let metal_totals: SmallVec<[(f64, f64); 4]> = self
+        // Per metal: its total, its total over its free ion (1 for a strong ion), and the
+        // free ion's saturated concentration.
+        let metal_totals: SmallVec<[MetalNow; 4]> = self
             .metals
             .iter()
-            .map(|m| match m.at {
-                MetalAt::Term(t, j) => {
-                    let share = liquid_species_fraction(&terms[t], x, j);
-                    (totals[t].max(0.0), 1.0 / share)
-                }
-                MetalAt::Ion { total, .. } => (total, 1.0),
+            .map(|m| {
+                let (total, p) = match m.at {
+                    MetalAt::Term(t, j) => {
+                        let share = liquid_species_fraction(&terms[t], x, j);
+                        (totals[t].max(0.0), 1.0 / share)
+                    }
+                    MetalAt::Ion { total, .. } => (total, 1.0),
+                };
+                // The solid does not cap the metal in the solve (see `Bound::solids`).
+                MetalNow { total, p }
             })
             .collect();
         let ligand_totals: SmallVec<[(f64, f64); 4]> = self
@@ -357,11 +420,22 @@ impl Complexation {
             charge: 0.0,
             ionic: 0.0,
             concentrations: SmallVec::from_elem(0.0, self.forms.len()),
+            ions_bound: SmallVec::new(),
+            solids: SmallVec::new(),
         };
         for (mi, m) in self.metals.iter().enumerate() {
-            let (total, p) = metal_totals[mi];
+            let now = metal_totals[mi];
             let (a, b) = m.forms;
-            let free_metal = total / (p + q[a..b].iter().sum::<f64>());
+            let s = now.p + q[a..b].iter().sum::<f64>();
+            let free_metal = now.total / s;
+            // What the liquid holds beyond the solid's saturation: it would precipitate.
+            if let Some(sd) = m.solid {
+                let saturated = (sd.k_eff * x.powi(m.charge)).max(f64::MIN_POSITIVE);
+                let excess = now.total - saturated * s;
+                if free_metal > saturated && excess > 0.0 {
+                    bound.solids.push((sd.catalog_index, excess));
+                }
+            }
             let mut held = 0.0;
             for (fi, f) in self.forms[a..b].iter().enumerate() {
                 let c = free_metal * q[a + fi];
@@ -376,10 +450,11 @@ impl Complexation {
             }
             match m.at {
                 MetalAt::Term(t, _) => bound.taken[t] += held,
-                MetalAt::Ion { .. } => {
+                MetalAt::Ion { slot, .. } => {
                     let z = f64::from(m.charge);
                     bound.charge -= z * held;
                     bound.ionic -= z * z * held;
+                    bound.ions_bound.push((slot, held));
                 }
             }
         }
@@ -394,7 +469,7 @@ impl Complexation {
         total: f64,
         p: f64,
         base: &[f64],
-        metal_totals: &[(f64, f64)],
+        metal_totals: &[MetalNow],
     ) -> f64 {
         let ceiling = (total / p).ln();
         let (mut lo, mut hi) = (ceiling - LN_SPAN, ceiling);
@@ -431,7 +506,7 @@ impl Complexation {
         ln_l: &mut [f64],
         ligand_totals: &[(f64, f64)],
         base: &[f64],
-        metal_totals: &[(f64, f64)],
+        metal_totals: &[MetalNow],
     ) {
         let n = self.ligands.len();
         let active: SmallVec<[bool; 4]> = ligand_totals.iter().map(|&(t, _)| t > 0.0).collect();
@@ -518,7 +593,7 @@ impl Complexation {
         ln_l: &[f64],
         ligand_totals: &[(f64, f64)],
         base: &[f64],
-        metal_totals: &[(f64, f64)],
+        metal_totals: &[MetalNow],
         grad: &mut [f64],
         hess: &mut [f64],
     ) -> f64 {
@@ -551,7 +626,8 @@ impl Complexation {
         let mut s1: SmallVec<[f64; 4]> = SmallVec::from_elem(0.0, n);
         for (mi, m) in self.metals.iter().enumerate() {
             let (a, b) = m.forms;
-            let (total, mut s) = (metal_totals[mi].0, metal_totals[mi].1);
+            let now = metal_totals[mi];
+            let (total, mut s) = (now.total, now.p);
             s1.iter_mut().for_each(|v| *v = 0.0);
             let mut s2: SmallVec<[f64; 4]> = SmallVec::from_elem(0.0, n);
             for (f, b_) in self.forms[a..b].iter().zip(&base[a..b]) {
@@ -589,14 +665,15 @@ impl Complexation {
         total: f64,
         p: f64,
         base: &[f64],
-        metal_totals: &[(f64, f64)],
+        metal_totals: &[MetalNow],
     ) -> (f64, f64) {
         let free_k = ln_l[k].exp();
         let free = free_k * p;
         let (mut f, mut slope) = (free - total, free);
         for (mi, m) in self.metals.iter().enumerate() {
             let (a, b) = m.forms;
-            let (mut s, mut s1, mut s2) = (metal_totals[mi].1, 0.0, 0.0);
+            let now = metal_totals[mi];
+            let (mut s, mut s1, mut s2) = (now.p, 0.0, 0.0);
             let mut touches = false;
             for (f_, b_) in self.forms[a..b].iter().zip(&base[a..b]) {
                 let q = match f_.ligand {
@@ -613,12 +690,17 @@ impl Complexation {
                 }
             }
             if touches {
-                let t = metal_totals[mi].0;
+                let t = now.total;
                 f += t * s1 / s;
                 slope += t * (s2 / s - (s1 / s) * (s1 / s));
             }
         }
         (f, slope)
+    }
+
+    /// Each complex's charge, in the order of `Bound::concentrations`.
+    pub(super) fn charges(&self) -> impl Iterator<Item = i32> + '_ {
+        self.forms.iter().map(|f| f.charge)
     }
 
     /// Each complex's catalog index, in the order of `Bound::concentrations`.

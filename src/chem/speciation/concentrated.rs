@@ -84,6 +84,11 @@ pub(super) struct Concentrated<'c> {
     h_slot: usize,
     oh_slot: usize,
     term_slots: SmallVec<[[u16; MAX_STEPS + 1]; INLINE_TERMS]>,
+    /// Each metal complex's slot (NO_SLOT for a neutral one): complexes are ions of the
+    /// mixture too, with the extended Debye–Hückel form (no pair parameters name them).
+    complex_slots: SmallVec<[u16; 24]>,
+    /// mol/kg of each strong ion as the mixture holds it, before complexes take their share.
+    ion_totals: SmallVec<[f64; INLINE_SLOTS]>,
     neutrals: SmallVec<[Option<NeutralForm>; INLINE_TERMS]>,
     pub(super) summary: Summary,
     /// ln of water's activity as applied to the constants (moved by the same steps as the
@@ -119,6 +124,7 @@ impl<'c> Concentrated<'c> {
         a_phi: f64,
         debye_huckel_a: f64,
         t_k: f64,
+        complex_charges: &[i32],
     ) -> Self {
         let table = &cat.pitzer;
         let t_ref = cat.physical.t_ref;
@@ -164,6 +170,19 @@ impl<'c> Concentrated<'c> {
                 lambda: t.lambda,
             }));
         }
+        let mut complex_slots = SmallVec::new();
+        for &z in complex_charges {
+            if z == 0 {
+                complex_slots.push(NO_SLOT);
+            } else {
+                complex_slots.push(formulas.len() as u16);
+                formulas.push(("", z));
+                ids.push((None, z));
+                salting_h.push(0.0);
+                molalities.push(0.0);
+            }
+        }
+        let ion_totals = molalities[..ions.len()].iter().copied().collect();
         let n = formulas.len();
         let interactions = Interactions::with_ids(table, ids, a_phi);
         Concentrated {
@@ -182,6 +201,8 @@ impl<'c> Concentrated<'c> {
             h_slot,
             oh_slot: h_slot + 1,
             term_slots,
+            complex_slots,
+            ion_totals,
             neutrals,
             summary: Summary {
                 ionic_strength: 0.0,
@@ -302,6 +323,30 @@ impl<'c> Concentrated<'c> {
             inv_gamma_oh: (-self.ln_gamma[self.oh_slot]).exp() * to_molar,
             water_activity: summary.water_activity,
             change,
+        }
+    }
+
+    /// Sets the complexes' molalities (from mol/L) and takes what they hold of each strong-ion
+    /// metal (slot, mol/L) off that ion's own molality.
+    pub(super) fn set_complexes(&mut self, complexes: &[f64], ions_bound: &[(usize, f64)]) {
+        for (k, t) in self.ion_totals.iter().enumerate() {
+            self.molalities[k] = *t;
+        }
+        for &(slot, bound) in ions_bound {
+            self.molalities[slot] = (self.ion_totals[slot] - bound * self.molal).max(0.0);
+        }
+        for (&slot, &c) in self.complex_slots.iter().zip(complexes) {
+            if slot != NO_SLOT {
+                self.molalities[slot as usize] = c * self.molal;
+            }
+        }
+    }
+
+    /// ln γ of complex `k` (in the order the complexes were given; 0 for a neutral one).
+    pub(super) fn complex_ln_gamma(&self, k: usize) -> f64 {
+        match self.complex_slots.get(k) {
+            Some(&slot) if slot != NO_SLOT => self.ln_gamma[slot as usize],
+            _ => 0.0,
         }
     }
 
