@@ -218,20 +218,13 @@ pub fn state_report(
             .iter()
             .map(|sd| crate::report::PastSaturation {
                 solid: sd.formula.clone(),
-                metal: metal_formula(cat, cat.solids[sd.catalog_index].metal),
+                metal: cat
+                    .part_formula(cat.solids[sd.catalog_index].metal)
+                    .to_string(),
                 excess_mol_per_l: sd.mol_per_l,
             })
             .collect(),
         gases,
-    }
-}
-
-/// A metal's formula as the data write it (`Cu^2+`, `Ag+`).
-fn metal_formula(cat: &Catalog, part: crate::catalog::complexes::Part) -> String {
-    use crate::catalog::complexes::Part;
-    match part {
-        Part::Family(f, j) => cat.family(f).species[j].formula.clone(),
-        Part::Ion(id) => cat.ion(id).formula.clone(),
     }
 }
 
@@ -266,7 +259,7 @@ fn bound_ligands(cat: &Catalog, eq: &Equilibrium) -> Vec<crate::report::BoundLig
                 match data.ligand {
                     Some(Part::Family(f, _)) if f == fid => Some(crate::report::HeldBy {
                         complex: data.formula.clone(),
-                        metal: metal_formula(cat, data.metal),
+                        metal: cat.part_formula(data.metal).to_string(),
                         percent: share(f64::from(data.n), c.concentration),
                     }),
                     _ => None,

@@ -136,11 +136,7 @@ fn complex_acceptors(cat: &Catalog, eq: &Equilibrium, t_k: f64) -> Vec<Actor> {
             continue;
         }
         let (lower_formula, lower_log_beta) = if c.n == 1 {
-            let metal = match c.metal {
-                Part::Family(f, j) => cat.family(f).species[j].formula.clone(),
-                Part::Ion(id) => cat.ion(id).formula.clone(),
-            };
-            (metal, 0.0)
+            (cat.part_formula(c.metal).to_string(), 0.0)
         } else {
             let Some(lower) = cat.complexes.iter().find(|o| {
                 o.metal == c.metal && o.ligand == c.ligand && o.protons == 0 && o.n + 1 == c.n

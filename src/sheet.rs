@@ -92,11 +92,14 @@ pub fn procedure_table(r: &ProcedureReport) -> String {
             "\nComputed fixes (each checked by running the procedure with it)"
         );
         for f in &r.fixes {
-            let _ = writeln!(
-                out,
-                "  - {} (the whole procedure is then {})",
-                f.description, f.procedure_severity_with_fix
-            );
+            let _ = match f.outcome() {
+                Some(whole) => writeln!(
+                    out,
+                    "  - {} (the whole procedure is then {whole})",
+                    f.description
+                ),
+                None => writeln!(out, "  - {}", f.description),
+            };
         }
     }
     let mut t = Table::new();
@@ -167,11 +170,14 @@ pub fn procedure_markdown(r: &ProcedureReport) -> String {
     if !r.fixes.is_empty() {
         let _ = writeln!(out, "## Computed fixes\n");
         for f in &r.fixes {
-            let _ = writeln!(
-                out,
-                "- {} The whole procedure is then **{}**.",
-                f.description, f.procedure_severity_with_fix
-            );
+            let _ = match f.outcome() {
+                Some(whole) => writeln!(
+                    out,
+                    "- {} The whole procedure is then **{whole}**.",
+                    f.description
+                ),
+                None => writeln!(out, "- {}", f.description),
+            };
         }
         out.push('\n');
     }
@@ -262,12 +268,14 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
     if !r.fixes.is_empty() {
         let _ = writeln!(out, "<h2>Computed fixes</h2><ul>");
         for f in &r.fixes {
-            let _ = writeln!(
-                out,
-                "<li>{} The whole procedure is then <strong>{}</strong>.</li>",
-                esc(&f.description),
-                f.procedure_severity_with_fix
-            );
+            let _ = match f.outcome() {
+                Some(whole) => writeln!(
+                    out,
+                    "<li>{} The whole procedure is then <strong>{whole}</strong>.</li>",
+                    esc(&f.description)
+                ),
+                None => writeln!(out, "<li>{}</li>", esc(&f.description)),
+            };
         }
         let _ = writeln!(out, "</ul>");
     }

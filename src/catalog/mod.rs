@@ -938,6 +938,13 @@ impl Catalog {
     pub fn ion(&self, id: IonId) -> &StrongIon {
         &self.strong_ions[id.0]
     }
+    /// The formula of a family species or strong ion (a complex's metal or ligand).
+    pub fn part_formula(&self, part: complexes::Part) -> &str {
+        match part {
+            complexes::Part::Family(f, j) => &self.family(f).species[j].formula,
+            complexes::Part::Ion(id) => &self.ion(id).formula,
+        }
+    }
     pub fn ion_by_formula(&self, f: &str) -> Option<IonId> {
         self.ion_index.get(f).copied()
     }

@@ -169,5 +169,25 @@ pub fn fixes(e: &Engine, p: &Procedure, report: &ProcedureReport) -> Vec<FixRepo
             });
         }
     }
+
+    // Where metals hold a ligand in the step, the usual plating-shop pretreatments (oxidising
+    // the cyanide, or a complexing agent) would change what the step releases; offgas does
+    // not compute them, and says so rather than leave the reader to assume they were tried.
+    let holds_ligand = report
+        .steps
+        .get(at - 1)
+        .and_then(|s| s.end_state.as_ref())
+        .is_some_and(|st| !st.bound_ligands.is_empty());
+    if holds_ligand {
+        out.push(FixReport {
+            step: at,
+            kind: "pretreatment_not_computed",
+            description: format!(
+                "Metal complexes hold part of a ligand in step {at}. An oxidising pretreatment (such as alkaline chlorination of cyanide) or a complexing one is not computed: the fixes offered are rinses and pH adjustments, each re-run."
+            ),
+            step_severity_with_fix: problem.severity,
+            procedure_severity_with_fix: report.severity,
+        });
+    }
     out
 }

@@ -56,11 +56,20 @@ pub struct ProblemReport {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct FixReport {
     pub step: usize,
+    /// `rinse`, `adjust_ph`, or `pretreatment_not_computed` (a note, not a fix: what offgas
+    /// cannot compute for the step).
     pub kind: &'static str,
     pub description: String,
     /// The procedure re-run with the fix: the step's verdict, and the whole procedure's.
     pub step_severity_with_fix: Severity,
     pub procedure_severity_with_fix: Severity,
+}
+
+impl FixReport {
+    /// The whole procedure's verdict with the fix, for a fix that was run (None for a note).
+    pub fn outcome(&self) -> Option<Severity> {
+        (self.kind != "pretreatment_not_computed").then_some(self.procedure_severity_with_fix)
+    }
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
