@@ -175,3 +175,54 @@ fn a_complex_with_an_unknown_metal_is_named_at_its_line() {
     );
     assert!(shown.contains("Xq+"), "{shown}");
 }
+
+/// The report says what holds the cyanide, in the JSON and in the terminal text, and names a
+/// hydroxide the liquid is past saturation with.
+#[test]
+fn the_report_says_what_holds_the_ligand_and_what_would_precipitate() {
+    let acid = "name: acid\ncapacity: 20 L\nvolume: 5 L\nclosure: sealed\ncontents:\n  - sulfuric acid: 0.1 mol/L\n";
+    let rinse = "name: rinse\nvolume: 2 L\ncontents:\n  - copper(I) cyanide: 1.8 g/L\n  - sodium cyanide: 2 g/L\n";
+    let r = check_texts(acid, rinse, &Default::default());
+    let b = &r.end_state.bound_ligands;
+    assert_eq!(b.len(), 1, "{b:?}");
+    assert_eq!(b[0].family, "cyanide");
+    assert_eq!(b[0].species, "CN-");
+    // 0.0201 mol/L of Cu+ keeps two cyanides each of 0.0609 mol/L: at most two thirds are
+    // held (a little Cu+ is free at pH 1.3, and the total counts the HCN in the headspace).
+    assert!(
+        (60.0..66.1).contains(&b[0].bound_percent),
+        "{}",
+        b[0].bound_percent
+    );
+    assert_eq!(b[0].held_by[0].complex, "Cu(CN)2-");
+    assert_eq!(b[0].held_by[0].metal, "Cu+");
+    let json = serde_json::to_value(&r).unwrap();
+    assert!(json["end_state"]["bound_ligands"][0]["held_by"][0]["percent"].is_number());
+    let text = offgas::render::check_table(
+        &r,
+        offgas::render::View {
+            color: false,
+            all_pairs: false,
+        },
+    );
+    let line = format!("cyanide {:.0} % held by metals", b[0].bound_percent);
+    assert!(text.contains(&line), "{text}");
+    // A proton takes a cyanide from the complexes in the pair table.
+    assert!(r
+        .pairs
+        .iter()
+        .any(|p| p.acceptor == "Cu(CN)3^2-" && p.produced_acid == "HCN + Cu(CN)2-"));
+
+    let copper = "name: copper\ncapacity: 5 L\nvolume: 2 L\nclosure: sealed\ncontents:\n  - copper(ii) sulfate pentahydrate: 5 g/L\n";
+    let caustic = "name: caustic\nvolume: 0.5 L\ncontents:\n  - sodium hydroxide: 0.2 mol/L\n";
+    let r = check_texts(copper, caustic, &Default::default());
+    let s = &r.end_state.past_saturation;
+    assert_eq!(s.len(), 1, "{s:?}");
+    assert_eq!(s[0].solid, "Cu(OH)2");
+    // 0.016 mol/L of copper in 2.5 L, nearly all of it past saturation at pH 10.5.
+    assert!(
+        (s[0].excess_mol_per_l - 0.016).abs() < 0.001,
+        "{}",
+        s[0].excess_mol_per_l
+    );
+}
