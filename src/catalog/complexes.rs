@@ -104,6 +104,7 @@ pub struct Complex {
     pub charge: i32,
     pub log_beta: f64,
     pub dh: Option<f64>,
+    /// Keys of `Catalog::complex_sources`.
     pub source: String,
     pub dh_source: Option<String>,
     pub note: Option<String>,

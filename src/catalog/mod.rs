@@ -256,6 +256,8 @@ pub struct Catalog {
     pub inert_complexes: Vec<complexes::InertComplex>,
     /// Hydroxides and oxides that precipitate, at most one per metal.
     pub solids: Vec<complexes::Solid>,
+    /// The citations the complexes, inert complexes and solids name by key.
+    pub complex_sources: BTreeMap<String, String>,
     /// Stoichiometric gas releases (hydrogen from metals and hydrides).
     pub releases: Vec<(SubstanceId, Release)>,
     /// Density of pure water, g/mL, at the density tables' temperature.
@@ -605,12 +607,13 @@ impl Catalog {
             });
         }
 
-        let (complexes, complexes_of_metal, inert_complexes, solids) = load_complexes(
-            complexes_file,
-            Src::new(src.complexes),
-            &species,
-            &ion_index,
-        )?;
+        let (complexes, complexes_of_metal, inert_complexes, solids, complex_sources) =
+            load_complexes(
+                complexes_file,
+                Src::new(src.complexes),
+                &species,
+                &ion_index,
+            )?;
 
         let mut resolved_releases = Vec::new();
         let releases_src = Src::new(src.releases);
@@ -883,6 +886,7 @@ impl Catalog {
             complexes_of_metal,
             inert_complexes,
             solids,
+            complex_sources,
             releases: resolved_releases,
             water_density,
             density_tables,
@@ -1050,6 +1054,7 @@ type LoadedComplexes = (
     Vec<(complexes::Part, Vec<usize>)>,
     Vec<complexes::InertComplex>,
     Vec<complexes::Solid>,
+    BTreeMap<String, String>,
 );
 
 /// Resolves every complex's metal and ligand to a family species or a strong ion, and checks
@@ -1088,7 +1093,8 @@ fn load_complexes(
         });
         src.err_line(line, format!("complex `{formula}`: {m}"))
     };
-    let known_source = |key: &str| file.sources.get(key).cloned();
+    // Entries keep the key; the citation is written once, in `complex_sources`.
+    let known_source = |key: &str| file.sources.contains_key(key).then(|| key.to_string());
     let mut out: Vec<complexes::Complex> = Vec::with_capacity(file.complexes.len());
     for e in &file.complexes {
         let bad = |m: String| at("complexes", &e.formula, m);
@@ -1246,7 +1252,7 @@ fn load_complexes(
             note: e.note.clone(),
         });
     }
-    Ok((out, by_metal, inert, solids))
+    Ok((out, by_metal, inert, solids, file.sources.clone()))
 }
 
 /// Most ligands one complex may hold.
