@@ -1,6 +1,7 @@
 //! `offgas lookup`: what the data say about a substance or family, with sources.
 
 use anyhow::{anyhow, Result};
+use offgas::catalog::complexes::Part;
 use offgas::catalog::{Catalog, FamilyId, SubstanceId};
 use offgas::notation::pretty;
 use serde_json::json;
@@ -107,6 +108,89 @@ fn substance_text(cat: &Catalog, id: SubstanceId, out: &mut String) {
         let _ = writeln!(out, "  note: {n}");
     }
     out.push('\n');
+    complexes_text(cat, id, out);
+}
+
+/// The metals a substance gives, each a family's first species or a strong ion.
+fn metals_of(cat: &Catalog, id: SubstanceId) -> Vec<Part> {
+    let s = cat.substance(id);
+    let given: Vec<Part> = s
+        .ions
+        .iter()
+        .map(|&(i, _)| Part::Ion(i))
+        .chain(s.families.iter().map(|&(f, _)| Part::Family(f, 0)))
+        .collect();
+    given
+        .into_iter()
+        .filter(|p| cat.complexes_of_metal.iter().any(|(m, _)| m == p))
+        .collect()
+}
+
+/// The complexes of each metal the substance gives (with their sources), the hydroxide
+/// checked for saturation, and the inert complexes it holds.
+fn complexes_text(cat: &Catalog, id: SubstanceId, out: &mut String) {
+    let cite = |key: &str| {
+        cat.complex_sources
+            .get(key)
+            .cloned()
+            .unwrap_or_else(|| key.to_string())
+    };
+    for metal in metals_of(cat, id) {
+        let Some((_, list)) = cat.complexes_of_metal.iter().find(|(m, _)| *m == metal) else {
+            continue;
+        };
+        let _ = writeln!(
+            out,
+            "complexes of {} (computed at equilibrium; overall log beta at I = 0, 25 °C)",
+            pretty(cat.part_formula(metal))
+        );
+        let mut keys: Vec<&str> = Vec::new();
+        for &ci in list {
+            let c = &cat.complexes[ci];
+            let dh = c.dh.map_or(String::new(), |d| format!(", ΔH° {d} kJ/mol"));
+            let _ = writeln!(
+                out,
+                "  {}  log beta {}{dh}  [{}]",
+                pretty(&c.formula),
+                c.log_beta,
+                c.source
+            );
+            if !keys.contains(&c.source.as_str()) {
+                keys.push(&c.source);
+            }
+        }
+        if let Some(sd) = cat.solids.iter().find(|sd| sd.metal == metal) {
+            let z = match metal {
+                Part::Family(f, j) => cat.family(f).species[j].charge,
+                Part::Ion(i) => cat.ion(i).charge,
+            };
+            let _ = writeln!(
+                out,
+                "  solid {}: log K {} for solid + {z} H⁺ = {} + {z} H₂O (per metal atom); reported where the liquid is past saturation, not removed from it  [{}]",
+                pretty(&sd.formula),
+                sd.log_k,
+                pretty(cat.part_formula(metal)),
+                sd.source
+            );
+            if !keys.contains(&sd.source.as_str()) {
+                keys.push(&sd.source);
+            }
+        }
+        for k in keys {
+            let _ = writeln!(out, "  [{k}] {}", cite(k));
+        }
+        out.push('\n');
+    }
+    for &(ion, _) in &cat.substance(id).ions {
+        if let Some(inert) = cat.inert_complexes.iter().find(|c| c.ion == ion) {
+            let _ = writeln!(
+                out,
+                "inert complex {}: counted as it is, never formed or broken in the computation ({})\n",
+                pretty(&cat.ion(ion).formula),
+                cite(&inert.inert_source)
+            );
+        }
+    }
 }
 
 fn family_text(cat: &Catalog, id: FamilyId, out: &mut String) {
@@ -192,6 +276,14 @@ fn substance_json(cat: &Catalog, id: SubstanceId) -> serde_json::Value {
         "ions": s.ions.iter().map(|&(i, n)| json!({"ion": cat.ion(i).formula, "per_mole": n})).collect::<Vec<_>>(),
         "classes": s.classes,
         "source": s.entry.source,
+        "complexes": metals_of(cat, id).into_iter().flat_map(|m| {
+            cat.complexes.iter().filter(move |c| c.metal == m).map(|c| json!({
+                "formula": c.formula,
+                "log_beta": c.log_beta,
+                "dh_kj_per_mol": c.dh,
+                "source": cat.complex_sources.get(&c.source),
+            }))
+        }).collect::<Vec<_>>(),
     })
 }
 

@@ -323,6 +323,26 @@ fn lookup_finds_by_name_formula_and_cas_and_shows_sources() {
         .assert()
         .code(0)
         .stdout(predicate::str::contains("family sulfide"));
+    // A metal salt lists the complexes its metal forms, each with its source, and an inert
+    // complex says why it is counted as it is.
+    offgas()
+        .args(["lookup", "copper(i) cyanide"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("Cu(CN)₃²⁻  log beta 27.2145"))
+        .stdout(predicate::str::contains(
+            "NIST Standard Reference Database 46",
+        ));
+    offgas()
+        .args(["lookup", "copper(ii) sulfate anhydrous"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("solid Cu(OH)₂: log K 8.674"));
+    offgas()
+        .args(["lookup", "potassium ferricyanide"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("inert complex Fe(CN)₆³⁻"));
     offgas()
         .args(["lookup", "unobtainium chloride"])
         .assert()
