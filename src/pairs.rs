@@ -5,7 +5,7 @@
 //! The table explains; the numbers come from the speciation of the whole mixture.
 
 use crate::catalog::{Catalog, FamilyId};
-use crate::chem::temperature::{log_ka, log_kw};
+use crate::chem::temperature::{log_k_at, log_ka, log_kw};
 use crate::chem::Equilibrium;
 use crate::thresholds::ProtonTransfer;
 use serde::Serialize;
@@ -118,11 +118,7 @@ fn actors(cat: &Catalog, eq: &Equilibrium, t_k: f64) -> (Vec<Actor>, Vec<Actor>)
 fn complex_acceptors(cat: &Catalog, eq: &Equilibrium, t_k: f64) -> Vec<Actor> {
     use crate::catalog::complexes::{Complex, Part};
     let phys = &cat.physical;
-    let log_beta = |c: &Complex| {
-        c.log_beta
-            - c.dh.unwrap_or(0.0) * 1e3 / (phys.r * std::f64::consts::LN_10)
-                * (1.0 / t_k - 1.0 / phys.t_ref)
-    };
+    let log_beta = |c: &Complex| log_k_at(phys, c.log_beta, c.dh.unwrap_or(0.0), t_k);
     let mut out = Vec::new();
     for cs in &eq.complexes {
         if cs.concentration < PRESENT_MOL_PER_L {

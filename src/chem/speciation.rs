@@ -20,7 +20,7 @@ pub use concentrated::{ActivityDetail, RangeSetBy};
 
 use super::activity::{Gammas, MAX_CHARGE};
 use super::mixture::{Closure, Mixture};
-use super::temperature::{henry_hcp, log_ka, log_kw};
+use super::temperature::{henry_hcp, log_k_at, log_ka, log_kw};
 use crate::catalog::{Catalog, FamilyId, GasName};
 
 /// Most steps any family may have (EDTA has six).
@@ -902,9 +902,7 @@ fn solve_with(
                 continue;
             };
             let d = &c.data;
-            let log_k = d.log_k_formation
-                - d.dh_formation * 1e3 / (phys.r * std::f64::consts::LN_10)
-                    * (1.0 / t_k - 1.0 / phys.t_ref);
+            let log_k = log_k_at(phys, d.log_k_formation, d.dh_formation, t_k);
             let gas_factor = match &d.volatile {
                 Some(v) if vg > 0.0 => {
                     let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();

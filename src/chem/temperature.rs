@@ -3,11 +3,16 @@
 use crate::catalog::physical::Physical;
 use crate::catalog::species::{Family, Volatile};
 
+/// log10 K at `t_k` of a reaction with log10 K `log_k_ref` at the reference temperature and
+/// standard enthalpy `dh_kj` (kJ/mol), by the van 't Hoff equation.
+pub fn log_k_at(phys: &Physical, log_k_ref: f64, dh_kj: f64, t_k: f64) -> f64 {
+    log_k_ref - dh_kj * 1e3 / (phys.r * std::f64::consts::LN_10) * (1.0 / t_k - 1.0 / phys.t_ref)
+}
+
 /// log10 Ka of step `step` at `t_k`, by the van 't Hoff equation with the step's ΔH°.
 pub fn log_ka(phys: &Physical, family: &Family, step: usize, t_k: f64) -> f64 {
     let s = &family.steps[step];
-    let shift = s.dh * 1e3 / (phys.r * std::f64::consts::LN_10) * (1.0 / t_k - 1.0 / phys.t_ref);
-    -(s.pka + shift)
+    log_k_at(phys, -s.pka, s.dh, t_k)
 }
 
 /// log10 Kw at `t_k` from the water family's pKw equation (falls back to van 't Hoff).

@@ -17,6 +17,7 @@ use smallvec::SmallVec;
 use super::{liquid_species_fraction, Term, INLINE_TERMS};
 use crate::catalog::complexes::Part;
 use crate::catalog::{Catalog, IonId, MAX_LIGANDS};
+use crate::chem::temperature::log_k_at;
 
 /// Solves H d = −g over the active ligands (H symmetric positive definite there) by
 /// Gaussian elimination; inactive ligands get no step.
@@ -239,9 +240,7 @@ impl Complexation {
                         Some(k)
                     }
                 };
-                let log_k = c.log_beta
-                    - c.dh.unwrap_or(0.0) * 1e3 / (phys.r * std::f64::consts::LN_10)
-                        * (1.0 / t_k - 1.0 / phys.t_ref);
+                let log_k = log_k_at(phys, c.log_beta, c.dh.unwrap_or(0.0), t_k);
                 let k = (log_k * std::f64::consts::LN_10).exp();
                 out.forms.push(Form {
                     catalog_index: ci,
@@ -265,9 +264,7 @@ impl Complexation {
                     .position(|sd| sd.metal == *metal)
                     .map(|si| {
                         let sd = &cat.solids[si];
-                        let log_k = sd.log_k
-                            - sd.dh.unwrap_or(0.0) * 1e3 / (phys.r * std::f64::consts::LN_10)
-                                * (1.0 / t_k - 1.0 / phys.t_ref);
+                        let log_k = log_k_at(phys, sd.log_k, sd.dh.unwrap_or(0.0), t_k);
                         let k = (log_k * std::f64::consts::LN_10).exp();
                         SolidCap {
                             catalog_index: si,
