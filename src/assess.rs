@@ -213,15 +213,15 @@ pub fn state_report(
             detail: eq.activity_detail.as_deref().cloned(),
         },
         bound_ligands: bound_ligands(cat, eq),
-        past_saturation: eq
+        precipitated: eq
             .solids
             .iter()
-            .map(|sd| crate::report::PastSaturation {
+            .map(|sd| crate::report::Precipitated {
                 solid: sd.formula.clone(),
                 metal: cat
                     .part_formula(cat.solids[sd.catalog_index].metal)
                     .to_string(),
-                excess_mol_per_l: sd.mol_per_l,
+                mol_per_l: sd.mol_per_l,
             })
             .collect(),
         gases,

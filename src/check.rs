@@ -1041,7 +1041,7 @@ fn assumptions(
             th.heat.boiling_margin_k
         ),
         "Pressure in a sealed vessel: the gases the liquid gives off, plus the warming of the air sealed in at the start and the change of water's vapour pressure; vented and open vessels hold no pressure and the report gives the litres vented.".to_string(),
-        "Metal cyanide, ammine, EDTA, citrate and hydroxo complexes are computed at equilibrium; chloro complexes and precipitating solids (metal hydroxides, copper(I) cyanide) are not, which errs towards more free metal and free cyanide. Hexacyanoferrates and cyanoaurate are counted as they are: they release HCN only slowly, with acid, heat or light.".to_string(),
+        "Metal cyanide, ammine, EDTA, citrate and hydroxo complexes are computed at equilibrium; so are the metal hydroxides (and silver and mercury oxides), which take their metal out of the liquid where it is saturated with them. Chloro complexes and other solids (sulfides, carbonates, copper(I) cyanide) are not computed, which errs towards more free metal and free cyanide. Hexacyanoferrates and cyanoaurate are counted as they are: they release HCN only slowly, with acid, heat or light.".to_string(),
         "The other order of pouring is computed in the same vessel with the same closure.".to_string(),
     ];
     if let Some(t) = opts.temperature_k {

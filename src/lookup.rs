@@ -166,7 +166,7 @@ fn complexes_text(cat: &Catalog, id: SubstanceId, out: &mut String) {
             };
             let _ = writeln!(
                 out,
-                "  solid {}: log K {} for solid + {z} H⁺ = {} + {z} H₂O (per metal atom); reported where the liquid is past saturation, not removed from it  [{}]",
+                "  solid {}: log K {} for solid + {z} H⁺ = {} + {z} H₂O (per metal atom); forms where the liquid is saturated with it, and the metal beyond saturation leaves the liquid  [{}]",
                 pretty(&sd.formula),
                 sd.log_k,
                 pretty(cat.part_formula(metal)),

@@ -407,9 +407,9 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     out
 }
 
-/// What metal complexes hold of each ligand, and the solids the liquid is past saturation
-/// with, at the end and (where it differs) at the worst point of the pour: "End: cyanide
-/// 97 % held by metals (Cu(CN)3^2- 96 %), free CN- 0.30 mM".
+/// What metal complexes hold of each ligand, and the solids that precipitated, at the end and
+/// (where it differs) at the worst point of the pour: "End: cyanide 97 % held by metals
+/// (Cu(CN)3^2- 96 %), free CN- 0.30 mM".
 pub fn bound_lines(r: &CheckReport) -> Vec<String> {
     let mut out = Vec::new();
     let mut add = |label: &str, s: &StateReport| {
@@ -432,11 +432,11 @@ pub fn bound_lines(r: &CheckReport) -> Vec<String> {
                 crate::text::molar(b.free_mol_per_l)
             ));
         }
-        for p in &s.past_saturation {
+        for p in &s.precipitated {
             out.push(format!(
-                "{label}: past saturation with {}: about {} of {} would leave as the solid (the figures keep it dissolved)",
+                "{label}: {} precipitates: {} of {} leaves the liquid as the solid",
                 pretty(&p.solid),
-                crate::text::molar(p.excess_mol_per_l),
+                crate::text::molar(p.mol_per_l),
                 pretty(&p.metal)
             ));
         }

@@ -140,20 +140,20 @@ pub struct StateReport {
     /// How much of each ligand (cyanide, ammonia, EDTA, citrate) metal complexes hold.
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub bound_ligands: Vec<BoundLigand>,
-    /// Hydroxides and oxides the liquid is past saturation with: they would precipitate; the
-    /// figures keep the metal dissolved.
+    /// Hydroxides and oxides that precipitated: the metal beyond their saturation left the
+    /// liquid.
     #[serde(skip_serializing_if = "Vec::is_empty")]
-    pub past_saturation: Vec<PastSaturation>,
+    pub precipitated: Vec<Precipitated>,
 }
 
-/// A solid the liquid is past saturation with.
+/// A solid that formed.
 #[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct PastSaturation {
+pub struct Precipitated {
     pub solid: String,
     /// The metal ion, as written in the data.
     pub metal: String,
-    /// mol of metal per litre of liquid beyond saturation.
-    pub excess_mol_per_l: f64,
+    /// mol of metal per litre of liquid that left as the solid.
+    pub mol_per_l: f64,
 }
 
 /// A ligand in one state: its total, what holds it, and what is left free.

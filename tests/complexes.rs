@@ -177,7 +177,7 @@ fn a_complex_with_an_unknown_metal_is_named_at_its_line() {
 }
 
 /// The report says what holds the cyanide, in the JSON and in the terminal text, and names a
-/// hydroxide the liquid is past saturation with.
+/// hydroxide that precipitates.
 #[test]
 fn the_report_says_what_holds_the_ligand_and_what_would_precipitate() {
     let acid = "name: acid\ncapacity: 20 L\nvolume: 5 L\nclosure: sealed\ncontents:\n  - sulfuric acid: 0.1 mol/L\n";
@@ -216,13 +216,9 @@ fn the_report_says_what_holds_the_ligand_and_what_would_precipitate() {
     let copper = "name: copper\ncapacity: 5 L\nvolume: 2 L\nclosure: sealed\ncontents:\n  - copper(ii) sulfate pentahydrate: 5 g/L\n";
     let caustic = "name: caustic\nvolume: 0.5 L\ncontents:\n  - sodium hydroxide: 0.2 mol/L\n";
     let r = check_texts(copper, caustic, &Default::default());
-    let s = &r.end_state.past_saturation;
+    let s = &r.end_state.precipitated;
     assert_eq!(s.len(), 1, "{s:?}");
     assert_eq!(s[0].solid, "Cu(OH)2");
-    // 0.016 mol/L of copper in 2.5 L, nearly all of it past saturation at pH 10.5.
-    assert!(
-        (s[0].excess_mol_per_l - 0.016).abs() < 0.001,
-        "{}",
-        s[0].excess_mol_per_l
-    );
+    // 0.016 mol/L of copper in 2.5 L, nearly all of it precipitated.
+    assert!((s[0].mol_per_l - 0.016).abs() < 0.001, "{}", s[0].mol_per_l);
 }

@@ -107,14 +107,13 @@ pub struct ComplexState {
     pub concentration: f64,
 }
 
-/// A hydroxide or oxide the liquid is past saturation with. The equilibrium keeps the metal
-/// dissolved; this says how much would leave as the solid.
+/// A hydroxide or oxide that formed: the metal beyond its saturation left the liquid.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SolidState {
     /// Index into the catalog's solids.
     pub catalog_index: usize,
     pub formula: String,
-    /// mol of metal per litre of liquid beyond saturation.
+    /// mol of metal per litre of liquid that left as the solid.
     pub mol_per_l: f64,
 }
 
@@ -146,7 +145,7 @@ pub struct Equilibrium {
     /// Metal complexes (cyanide, ammine, chelate, hydroxo), present when a metal and what it
     /// binds are.
     pub complexes: Vec<ComplexState>,
-    /// Solids the liquid is past saturation with (kept dissolved in the figures).
+    /// Solids that formed, taking their metal out of the liquid.
     pub solids: Vec<SolidState>,
     pub gases: Vec<GasState>,
     /// Charge balance residual over the sum of absolute charge concentrations.
@@ -183,7 +182,8 @@ impl Equilibrium {
     pub fn family(&self, id: FamilyId) -> Option<&FamilyState> {
         self.families.iter().find(|f| f.family == id)
     }
-    /// mol/L of a metal or ligand (a family species or a strong ion) held in complexes.
+    /// mol/L of a metal or ligand (a family species or a strong ion) held in complexes or
+    /// taken out of the liquid as a solid.
     pub fn bound_mol_per_l(&self, cat: &Catalog, part: crate::catalog::complexes::Part) -> f64 {
         use crate::catalog::complexes::Part;
         let same = |p: Part| match (p, part) {
@@ -204,7 +204,13 @@ impl Equilibrium {
                 (as_metal + as_ligand) * cs.concentration
             })
             .sum();
-        in_complexes
+        let in_solids: f64 = self
+            .solids
+            .iter()
+            .filter(|sd| same(cat.solids[sd.catalog_index].metal))
+            .map(|sd| sd.mol_per_l)
+            .sum();
+        in_complexes + in_solids
     }
     /// mol/L of a family held in complexes (as metal or as ligand).
     pub fn family_bound_mol_per_l(&self, cat: &Catalog, id: FamilyId) -> f64 {
@@ -301,6 +307,9 @@ struct Prepared<'c> {
     links: SmallVec<[Link; 2]>,
     /// The metal complexes the mixture can form.
     complexation: Option<Box<Complexation>>,
+    /// Davies' coefficients are held through each search (set between searches by
+    /// `find_root_held`), as where a solid can form.
+    hold_davies: bool,
     strong_charge: f64,
     strong_ionic: f64,
     kw: f64,
@@ -862,6 +871,7 @@ fn solve_with(
         terms: SmallVec::new(),
         links: SmallVec::new(),
         complexation: None,
+        hold_davies: false,
         strong_charge,
         strong_ionic,
         kw: constants.kw,
@@ -946,7 +956,11 @@ fn solve_with(
         debye_huckel_a: constants.debye_huckel_a,
         molal_scale,
     };
-    let mut root = find_root(&mut p, ln_x, ionic, s, &activity)?;
+    let mut root = if p.complexation.as_ref().is_some_and(|cx| cx.has_solids()) {
+        find_root_held(&mut p, ln_x, ionic, s, &activity)?
+    } else {
+        find_root(&mut p, ln_x, ionic, s, &activity)?
+    };
     // Above the dilute range the ion-interaction model takes over, from the dilute root;
     // below it Davies, which is cheaper and gives the same coefficients there.
     if could_be_concentrated && root.ionic * molal > cat.pitzer.dilute_below {
@@ -1082,6 +1096,65 @@ fn find_root_concentrated(
     Err(SolveError::NoConvergence(iterations))
 }
 
+/// The root of a dilute mixture in which a solid can form: Davies' coefficients held through
+/// each bracketed search and set from its root between searches. Where a solid starts to
+/// form the balance has a kink that the coefficients move; followed at every step, the search
+/// and the coefficients can push the root back and forth across it. Held, each search is of
+/// a fixed continuous function; the ionic strength is then iterated to its fixed point, the
+/// step halved where it swings back.
+fn find_root_held(
+    p: &mut Prepared,
+    start: f64,
+    start_ionic: f64,
+    s: &SolverSettings,
+    a: &Activity,
+) -> Result<Root, SolveError> {
+    let limit = s.activity_limit;
+    let (mut ionic, mut ln_x) = (start_ionic, start);
+    let (mut step, mut last_change, mut iterations): (f64, f64, usize) = (1.0, 0.0, 0);
+    p.hold_davies = true;
+    let mut result = Err(SolveError::NoConvergence(0));
+    for _ in 0..MAX_COEFFICIENT_ROUNDS {
+        p.set_activity(&Gammas::davies_with_a(
+            a.phys,
+            a.debye_huckel_a,
+            ionic.min(limit),
+        ));
+        let r = match find_root(p, ln_x, ionic, s, a) {
+            Ok(r) => r,
+            Err(e) => {
+                result = Err(e);
+                break;
+            }
+        };
+        iterations += r.iterations;
+        ln_x = r.x.ln();
+        let neutrals_settled = p.update_neutral_activity(r.x, a.molal_scale);
+        let change = r.ionic - ionic;
+        // Davies' coefficients move with the square root of the ionic strength, so that is
+        // what has to settle; a relative test on I itself meets the root's own rounding in
+        // nearly pure water.
+        let settled = (r.ionic.sqrt() - ionic.max(0.0).sqrt()).abs() <= 1e-10
+            || (ionic > limit && r.ionic > limit);
+        if settled && neutrals_settled {
+            result = Ok(Root {
+                iterations,
+                limited: ionic > limit,
+                ..r
+            });
+            break;
+        }
+        if change * last_change < 0.0 {
+            step = (step * 0.5).max(MIN_COEFFICIENT_STEP);
+        }
+        last_change = change;
+        ionic += step * change;
+        result = Err(SolveError::NoConvergence(iterations));
+    }
+    p.hold_davies = false;
+    result
+}
+
 /// Safeguarded Newton in ln x within a bracket where the charge balance changes sign, with
 /// the activity coefficients following the iterate.
 ///
@@ -1102,7 +1175,7 @@ fn find_root(
     let mut ionic = start_ionic;
     // The concentrated model's coefficients are held for this search and set between
     // searches (`find_root_concentrated`).
-    let frozen = p.concentrated.is_some();
+    let frozen = p.concentrated.is_some() || p.hold_davies;
     if !frozen {
         p.set_activity(&coefficients(ionic));
     }

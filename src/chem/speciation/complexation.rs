@@ -115,6 +115,15 @@ struct SolidCap {
 struct MetalNow {
     total: f64,
     p: f64,
+    /// The free ion's saturated concentration (infinite where no solid caps it).
+    cap: f64,
+}
+
+impl MetalNow {
+    /// The free metal ion, mol/L, where its complexes and hydrolysis sum to `s` per free ion.
+    fn free(&self, s: f64) -> f64 {
+        (self.total / s).min(self.cap)
+    }
 }
 
 struct Ligand {
@@ -159,10 +168,8 @@ pub(super) struct Bound {
     pub ions_bound: SmallVec<[(usize, f64); 4]>,
     /// mol/L of each complex, in the order of `forms`.
     pub concentrations: SmallVec<[f64; 24]>,
-    /// Each solid the liquid is past saturation with (catalog index), and the mol of metal
-    /// per litre beyond saturation. The solve keeps it dissolved: a solid's phase boundary
-    /// makes the charge balance kink where its coefficients move it, which the search for
-    /// a(H+) does not yet follow reliably.
+    /// Each solid that formed (catalog index), and the mol of metal per litre of liquid it
+    /// took out of the liquid.
     pub solids: SmallVec<[(usize, f64); 2]>,
 }
 
@@ -354,8 +361,10 @@ impl Complexation {
                     }
                     MetalAt::Ion { total, .. } => (total, 1.0),
                 };
-                // The solid does not cap the metal in the solve (see `Bound::solids`).
-                MetalNow { total, p }
+                let cap = m.solid.map_or(f64::INFINITY, |sd| {
+                    (sd.k_eff * x.powi(m.charge)).max(f64::MIN_POSITIVE)
+                });
+                MetalNow { total, p, cap }
             })
             .collect();
         let ligand_totals: SmallVec<[(f64, f64); 4]> = self
@@ -424,16 +433,13 @@ impl Complexation {
             let now = metal_totals[mi];
             let (a, b) = m.forms;
             let s = now.p + q[a..b].iter().sum::<f64>();
-            let free_metal = now.total / s;
-            // What the liquid holds beyond the solid's saturation: it would precipitate.
-            if let Some(sd) = m.solid {
-                let saturated = (sd.k_eff * x.powi(m.charge)).max(f64::MIN_POSITIVE);
-                let excess = now.total - saturated * s;
-                if free_metal > saturated && excess > 0.0 {
-                    bound.solids.push((sd.catalog_index, excess));
-                }
+            let free_metal = now.free(s);
+            // What the liquid cannot hold leaves it as the solid.
+            let precipitated = (now.total - free_metal * s).max(0.0);
+            if let (Some(sd), true) = (m.solid, precipitated > 0.0) {
+                bound.solids.push((sd.catalog_index, precipitated));
             }
-            let mut held = 0.0;
+            let mut held = precipitated;
             for (fi, f) in self.forms[a..b].iter().enumerate() {
                 let c = free_metal * q[a + fi];
                 bound.concentrations[a + fi] = c;
@@ -642,12 +648,23 @@ impl Complexation {
             if total <= 0.0 {
                 continue;
             }
-            phi += total * s.ln();
-            for k in 0..n {
-                grad[k] += total * s1[k] / s;
-                hess[k * n + k] += total * s2[k] / s;
-                for j in 0..n {
-                    hess[k * n + j] -= total * s1[k] * s1[j] / (s * s);
+            if total / s <= now.cap {
+                phi += total * s.ln();
+                for k in 0..n {
+                    grad[k] += total * s1[k] / s;
+                    hess[k * n + k] += total * s2[k] / s;
+                    for j in 0..n {
+                        hess[k * n + j] -= total * s1[k] * s1[j] / (s * s);
+                    }
+                }
+            } else {
+                // Saturated: the free metal is held at the cap and the rest is solid. This
+                // piece meets the other with the same value and gradient, so Φ stays convex.
+                let cap = now.cap;
+                phi += cap * s + total * ((total / cap).ln() - 1.0);
+                for k in 0..n {
+                    grad[k] += cap * s1[k];
+                    hess[k * n + k] += cap * s2[k];
                 }
             }
         }
@@ -688,11 +705,22 @@ impl Complexation {
             }
             if touches {
                 let t = now.total;
-                f += t * s1 / s;
-                slope += t * (s2 / s - (s1 / s) * (s1 / s));
+                if t / s <= now.cap {
+                    f += t * s1 / s;
+                    slope += t * (s2 / s - (s1 / s) * (s1 / s));
+                } else {
+                    f += now.cap * s1;
+                    slope += now.cap * s2;
+                }
             }
         }
         (f, slope)
+    }
+
+    /// True when a metal of the mixture can precipitate: the charge balance then has a kink
+    /// where the coefficients move the solid's boundary, and the solve holds them per search.
+    pub(super) fn has_solids(&self) -> bool {
+        self.metals.iter().any(|m| m.solid.is_some())
     }
 
     /// Each complex's charge, in the order of `Bound::concentrations`.
