@@ -278,19 +278,23 @@ pub fn check(
     });
     let severity = Severity::verdict(&findings);
 
-    let order = |p: &PathScan<HeatReport>, heat: &HeatReport, description: &str| OrderReport {
-        description: description.into(),
-        worst_state: WorstStateReport {
-            fraction_added: p.worst.fraction_added,
-            state: state_report(cat, th, &p.worst.state, heat),
-        },
-        worst_limit_ratio: p.worst.score,
-        gas_peaks: p
+    let order = |p: &PathScan<HeatReport>, heat: &HeatReport, description: &str| {
+        let gas_peaks: Vec<crate::report::GasPeak> = p
             .gas_peaks
             .iter()
             .filter(|(_, _, pa)| crate::assess::ppm(cat, *pa) >= crate::assess::REPORT_FLOOR_PPM)
             .map(|(g, f, pa)| crate::assess::gas_peak(cat, th, g, *f, *pa))
-            .collect(),
+            .collect();
+        OrderReport {
+            description: description.into(),
+            worst_state: WorstStateReport {
+                fraction_added: p.worst.fraction_added,
+                state: state_report(cat, th, &p.worst.state, heat),
+            },
+            worst_limit_ratio: p.worst.score,
+            path: path_report(cat, &p.points, &gas_peaks),
+            gas_peaks,
+        }
     };
     let mut assumptions = assumptions(cat, container, stream, opts, th);
     assumptions.extend(crate::assess::activity_assumption(
@@ -332,6 +336,33 @@ pub fn check(
         assumptions,
         cautions: th.cautions.clone(),
     })
+}
+
+/// The states along one order, with the gases whose peaks are reported.
+fn path_report(
+    cat: &Catalog,
+    points: &[crate::path::PathPoint],
+    peaks: &[crate::report::GasPeak],
+) -> Vec<crate::report::PathPointReport> {
+    points
+        .iter()
+        .map(|pt| crate::report::PathPointReport {
+            fraction_added: pt.fraction_added,
+            ph: pt.ph,
+            temperature_c: pt.temperature_k - cat.physical.kelvin_offset,
+            gases: peaks
+                .iter()
+                .map(|peak| crate::report::PathGas {
+                    formula: peak.formula.clone(),
+                    headspace_ppm: pt
+                        .gases
+                        .iter()
+                        .find(|(g, _)| g.as_ref() == peak.formula)
+                        .map_or(0.0, |(_, pa)| crate::assess::ppm(cat, *pa)),
+                })
+                .collect(),
+        })
+        .collect()
 }
 
 fn order_findings(

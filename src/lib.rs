@@ -18,6 +18,7 @@ pub mod input_shape;
 pub mod notation;
 pub mod pairs;
 pub mod path;
+pub mod plot;
 pub mod pour;
 pub mod procedure;
 pub mod quantity;

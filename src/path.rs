@@ -70,6 +70,19 @@ pub struct PathScan<X> {
     /// Each gas at its own highest partial pressure among the states solved:
     /// (gas, fraction added there, Pa).
     pub gas_peaks: Vec<(GasName, f64, f64)>,
+    /// Every state solved, in order of fraction: what the plots of a pour draw (empty for
+    /// the coarse screen).
+    pub points: Vec<PathPoint>,
+}
+
+/// One solved state along the pour, as the plots need it.
+#[derive(Debug, Clone)]
+pub struct PathPoint {
+    pub fraction_added: f64,
+    pub ph: f64,
+    pub temperature_k: f64,
+    /// Each gas and its partial pressure, Pa.
+    pub gases: Vec<(GasName, f64)>,
 }
 
 /// The state at a fraction, solved from a neighbouring state where there is one.
@@ -156,6 +169,27 @@ pub fn scan<X: Clone>(
             }
         }
     }
+    // The storeroom screen draws no pour, and builds no points for it.
+    let drawn = if detail == Detail::Coarse {
+        &states[..0]
+    } else {
+        &states[..]
+    };
+    let mut points: Vec<PathPoint> = drawn
+        .iter()
+        .map(|s| PathPoint {
+            fraction_added: s.fraction_added,
+            ph: s.state.ph,
+            temperature_k: s.state.temperature_k,
+            gases: s
+                .state
+                .gases
+                .iter()
+                .map(|g| (g.gas.clone(), g.partial_pressure_pa))
+                .collect(),
+        })
+        .collect();
+    points.sort_by(|a, b| a.fraction_added.total_cmp(&b.fraction_added));
     Ok(PathScan {
         worst,
         end,
@@ -163,6 +197,7 @@ pub fn scan<X: Clone>(
         ph_range,
         temperature_max_k,
         gas_peaks,
+        points,
     })
 }
 

@@ -231,6 +231,25 @@ pub struct OrderReport {
     pub worst_limit_ratio: f64,
     /// Each gas at its own worst point along this order (among the states solved).
     pub gas_peaks: Vec<GasPeak>,
+    /// Every state solved along this order, by share poured: the data the plots draw.
+    pub path: Vec<PathPointReport>,
+}
+
+/// One state along a pour.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PathPointReport {
+    /// Share of what is being poured that is in, 0-1.
+    pub fraction_added: f64,
+    pub ph: f64,
+    pub temperature_c: f64,
+    /// The gases whose peak along the pour is reported (`gas_peaks`), in that order.
+    pub gases: Vec<PathGas>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PathGas {
+    pub formula: String,
+    pub headspace_ppm: f64,
 }
 
 /// One gas at its own worst point along a pour.
