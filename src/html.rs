@@ -291,6 +291,24 @@ fn pairs_html(r: &CheckReport, all_pairs: bool, out: &mut String) {
     );
 }
 
+/// The course of the pour: each reported gas, then pH and temperature, both orders on the
+/// same axes.
+fn plots_html(r: &CheckReport, out: &mut String) {
+    let gases = crate::plot::pour::gas_charts(r);
+    if r.poured_as_written.path.is_empty() {
+        return;
+    }
+    out.push_str("<h2>Along the pour</h2>\n<p class=\"small\">Solid line and round points: the stream poured into the container, as written. Dashed line and square points: the container's contents poured into the stream. The share poured in runs from the first drop to all of it; both orders end in the same mixture.</p>\n");
+    for c in gases
+        .iter()
+        .chain(crate::plot::pour::state_charts(r).iter())
+    {
+        out.push_str("<figure class=\"plot\">");
+        out.push_str(&c.svg());
+        out.push_str("</figure>\n");
+    }
+}
+
 /// The body of a check's page, without the page shell (the demo puts several on a page).
 pub fn check_section(r: &CheckReport, all_pairs: bool) -> String {
     let mut out = String::new();
@@ -310,6 +328,7 @@ pub fn check_section(r: &CheckReport, all_pairs: bool) -> String {
     );
     out.push_str(&verdict_badge(r.severity));
     findings_html(r, &mut out);
+    plots_html(r, &mut out);
     gases_html(r, &mut out);
     states_html(r, &mut out);
     heat_room_html(r, &mut out);
@@ -319,6 +338,7 @@ pub fn check_section(r: &CheckReport, all_pairs: bool) -> String {
 }
 
 const CHECK_STYLE: &str = r#"
+figure.plot { margin: 8pt 0; } figure.plot svg { max-width: 100%; height: auto; }
 ul.findings { padding-left: 0; list-style: none; }
 ul.findings li { border-left: 5pt solid #999; padding: 3pt 6pt; margin: 3pt 0; }
 ul.findings li.stop { border-left-color: #b22; } ul.findings li.review { border-left-color: #c90; } ul.findings li.clear { border-left-color: #7a7; background: #f4f4f4; }

@@ -6,9 +6,9 @@
 //! ticks, labels) is ours. Every drawn point carries `data-x` and `data-y` with the values
 //! it was given, unrounded.
 
+use svg::node::element::Element;
 use svg::node::element::{Circle, Group, Line, Path, Polygon, Rectangle, Text, Title};
 use svg::node::Node;
-use svg::Document;
 
 /// One axis: its range, whether it is logarithmic, and how its tick labels read.
 #[derive(Debug, Clone)]
@@ -106,10 +106,14 @@ pub fn short_number(v: f64) -> String {
         "0".into()
     } else if !(1e-3..1e5).contains(&a) {
         format!("{v:.0e}")
-    } else if a >= 10.0 || (v.fract() == 0.0) {
+    } else if a >= 100.0 || v.fract() == 0.0 {
         format!("{v:.0}")
     } else {
-        let s = format!("{v:.3}");
+        let s = if a >= 10.0 {
+            format!("{v:.1}")
+        } else {
+            format!("{v:.3}")
+        };
         s.trim_end_matches('0').trim_end_matches('.').to_string()
     }
 }
@@ -206,25 +210,32 @@ impl Chart {
 
     /// The chart as an `<svg>` element, to be placed inline in a page.
     pub fn svg(&self) -> String {
-        let mut doc = Document::new()
-            .set("viewBox", (0, 0, self.width, self.height))
-            .set("width", self.width)
-            .set("height", self.height)
-            .set("role", "img")
-            .set("class", "chart")
-            .set("font-family", "sans-serif")
-            .set("font-size", 12)
-            .add(Title::new(self.title.clone()))
-            .add(text(LEFT, 16.0, &self.title, "start").set("font-weight", "bold"));
-        doc = doc.add(self.axes());
+        // Inline in HTML5 an <svg> needs no namespace attribute, and the page names nothing
+        // outside itself; the crate's document element always writes one, so the root is
+        // built as a plain element.
+        let mut doc = Element::new("svg");
+        for (k, v) in [
+            ("viewBox", format!("0 0 {} {}", self.width, self.height)),
+            ("width", self.width.to_string()),
+            ("height", self.height.to_string()),
+            ("role", "img".into()),
+            ("class", "chart".into()),
+            ("font-family", "sans-serif".into()),
+            ("font-size", "12".into()),
+        ] {
+            doc.assign(k, v);
+        }
+        doc.append(Title::new(self.title.clone()));
+        doc.append(text(LEFT, 16.0, &self.title, "start").set("font-weight", "bold"));
+        doc.append(self.axes());
         for level in &self.levels {
-            doc = doc.add(self.level(level));
+            doc.append(self.level(level));
         }
         for (i, s) in self.series.iter().enumerate() {
-            doc = doc.add(self.series_group(s, i));
+            doc.append(self.series_group(s, i));
         }
         for c in &self.callouts {
-            doc = doc.add(self.callout(c));
+            doc.append(self.callout(c));
         }
         doc.to_string()
     }

@@ -6,4 +6,5 @@
 //! reader with the page source) can check the picture against the JSON.
 
 pub mod chart;
+pub mod pour;
 pub mod spark;
