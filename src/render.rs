@@ -15,6 +15,49 @@ pub const DEFAULT_PAIRS: usize = 12;
 pub struct View {
     pub color: bool,
     pub all_pairs: bool,
+    /// Characters the courses under the verdict may use.
+    pub charset: crate::plot::spark::Charset,
+}
+
+/// Columns of a gas's course under the verdict.
+const COURSE_WIDTH: usize = 24;
+
+/// One line per gas that reaches a tenth of its review level along the pour as written:
+/// its course on a log scale over four decades below its peak, the peak's column between
+/// brackets.
+pub fn course_lines(r: &CheckReport, charset: crate::plot::spark::Charset) -> Vec<String> {
+    use crate::plot::spark;
+    let o = &r.poured_as_written;
+    o.gas_peaks
+        .iter()
+        .filter(|p| p.limit_ratio.is_some_and(|x| x >= 0.1) && p.headspace_ppm > 0.0)
+        .filter_map(|peak| {
+            let points: Vec<(f64, f64)> = o
+                .path
+                .iter()
+                .filter_map(|pt| {
+                    let g = pt.gases.iter().find(|g| g.formula == peak.formula)?;
+                    Some((pt.fraction_added, g.headspace_ppm.max(1e-30).log10()))
+                })
+                .collect();
+            if points.len() < 2 {
+                return None;
+            }
+            let hi = peak.headspace_ppm.log10();
+            let values = spark::resample(&points, COURSE_WIDTH);
+            let mark = (peak.fraction_added * (COURSE_WIDTH - 1) as f64).round() as usize;
+            Some(format!(
+                "  {:<5} {}  peak {} ppm at {:.0} % poured",
+                match charset {
+                    spark::Charset::Unicode => crate::notation::pretty(&peak.formula),
+                    spark::Charset::Ascii => peak.formula.clone(),
+                },
+                spark::line(&values, hi - 4.0, hi, Some(mark), charset),
+                crate::plot::chart::short_number(peak.headspace_ppm),
+                peak.fraction_added * 100.0
+            ))
+        })
+        .collect()
 }
 
 fn verdict_word(s: Severity, color: bool) -> String {
@@ -308,6 +351,16 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     }
     for f in shown {
         let _ = writeln!(out, "{}", finding_line(f, v.color));
+    }
+    let courses = course_lines(r, v.charset);
+    if !courses.is_empty() {
+        let _ = writeln!(
+            out,
+            "\nAlong the pour as written (first drop to last, log scale, peak in brackets)"
+        );
+        for c in courses {
+            let _ = writeln!(out, "{c}");
+        }
     }
 
     let _ = writeln!(out, "\nGas in the headspace (ppm by volume at 1 atm)");

@@ -119,3 +119,35 @@ fn the_plotted_points_are_the_reports_path() {
         .unwrap();
     assert_eq!(ringed, top);
 }
+
+#[test]
+fn the_terminal_shows_the_course_and_falls_back_to_ascii() {
+    let text = |lang: &str| {
+        let out = Command::cargo_bin("offgas")
+            .unwrap()
+            .env("NO_COLOR", "1")
+            .env_remove("LC_ALL")
+            .env_remove("LC_CTYPE")
+            .env("LANG", lang)
+            .arg("check")
+            .arg(demo("carboy-acid-etch.yaml"))
+            .arg("--add")
+            .arg(demo("stream-copper-cyanide-rinse.yaml"))
+            .output()
+            .unwrap();
+        String::from_utf8(out.stdout).unwrap()
+    };
+    let course = |t: &str| {
+        t.lines()
+            .find(|l| l.trim_start().starts_with("HCN") && l.contains("peak"))
+            .map(str::to_string)
+            .expect("an HCN course line")
+    };
+    let unicode = course(&text("en_GB.UTF-8"));
+    assert!(
+        unicode.contains("[█]") && unicode.contains("peak 533 ppm at 100 %"),
+        "{unicode}"
+    );
+    let ascii = course(&text("C"));
+    assert!(ascii.is_ascii() && ascii.contains("[#]"), "{ascii}");
+}

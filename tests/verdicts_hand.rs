@@ -493,6 +493,7 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
         offgas::render::View {
             color: false,
             all_pairs: false,
+            charset: offgas::plot::spark::Charset::Unicode,
         },
     );
     // Where a partial pressure passes the atmosphere's, the words say what that means.
@@ -523,6 +524,7 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
             offgas::render::View {
                 color: false,
                 all_pairs: false,
+                charset: offgas::plot::spark::Charset::Unicode,
             },
         );
         assert!(!text.contains("-0.0") && !text.contains("-0 "), "{text}");
