@@ -182,6 +182,14 @@ pub fn procedure_markdown(r: &ProcedureReport) -> String {
         out.push('\n');
     }
     let _ = writeln!(out, "## Steps\n");
+    let course = crate::plot::steps::step_lines(r);
+    if course.len() > 1 {
+        let _ = writeln!(
+            out,
+            "Step by step (one column per step; the worst gas on a log scale over four decades, its worst step in brackets; · where a step leaves nothing to judge):\n\n```text\n{}\n```\n",
+            course.join("\n")
+        );
+    }
     let _ = writeln!(
         out,
         "| step | what is done | end | worst while adding | gases (worst) | °C after | verdict |"
@@ -229,7 +237,24 @@ const SHEET_STYLE: &str = r#"
 .sign { margin-top: 16pt; page-break-inside: avoid; }
 .sign div { display: flex; gap: 8pt; margin: 14pt 0; }
 .sign span.line { flex: 1; border-bottom: 1px solid #111; }
+figure.steps { display: flex; flex-wrap: wrap; gap: 6pt; margin: 4pt 0 8pt; page-break-inside: avoid; }
+figure.steps svg { flex: 1 1 0; min-width: 0; max-width: 50%; height: auto; }
+figure.steps figcaption { flex-basis: 100%; font-size: 8.5pt; color: #333; }
 "#;
+
+/// The vessel's pH and the worst gas of each step as two small charts side by side.
+fn step_figure(r: &ProcedureReport) -> String {
+    use crate::plot::steps;
+    let charts: Vec<String> = std::iter::once(steps::ph_chart(r))
+        .chain(steps::gas_chart(r))
+        .map(|c| c.svg())
+        .collect();
+    format!(
+        "<figure class=\"steps\">{}<figcaption>The pH of the vessel after each step, and the gas of each step that comes closest to its review level (at its worst point while adding), as a multiple of that level on a log scale; ratios under {} are drawn on the floor. Drains leave no point.</figcaption></figure>\n",
+        charts.concat(),
+        crate::plot::chart::short_number(steps::RATIO_FLOOR)
+    )
+}
 
 /// The sheet as one self-contained HTML page (no external assets).
 pub fn procedure_html(r: &ProcedureReport) -> String {
@@ -279,7 +304,9 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         }
         let _ = writeln!(out, "</ul>");
     }
-    let _ = writeln!(out, "<h2>Steps</h2>\n<table>\n<thead><tr><th>Step</th><th>What is done</th><th>End</th><th>Worst while adding</th><th>Gases (worst)</th><th>°C after</th><th>Verdict</th></tr></thead>\n<tbody>");
+    let _ = writeln!(out, "<h2>Steps</h2>");
+    out.push_str(&step_figure(r));
+    let _ = writeln!(out, "<table>\n<thead><tr><th>Step</th><th>What is done</th><th>End</th><th>Worst while adding</th><th>Gases (worst)</th><th>°C after</th><th>Verdict</th></tr></thead>\n<tbody>");
     for s in &r.steps {
         let (end, worst) = state_text(s);
         let _ = writeln!(

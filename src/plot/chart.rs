@@ -317,8 +317,9 @@ impl Chart {
             m.assign("data-y", y);
             g = g.add(m);
         }
-        // The label at the line's end, and a key in the header: line style, marker, words.
-        if let Some(&(x, y)) = s.points.last() {
+        // The label at the line's end (where there are lines to tell apart), and a key in
+        // the header: line style, marker, words.
+        if let Some(&(x, y)) = s.points.last().filter(|_| self.series.len() > 1) {
             let ly = self.py(y) + 4.0 + 13.0 * index as f64;
             g = g.add(text(self.px(x) + 6.0, ly, &s.label, "start").set("fill", s.colour));
         }

@@ -8,3 +8,4 @@
 pub mod chart;
 pub mod pour;
 pub mod spark;
+pub mod steps;
