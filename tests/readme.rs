@@ -78,3 +78,34 @@ fn every_worked_example_quotes_what_offgas_prints() {
         }
     }
 }
+
+/// Every picture the README shows is a committed PNG that decodes, kept small enough for the
+/// repository (under 64 KB) and no wider than a page.
+#[test]
+fn every_picture_in_the_readme_is_a_small_committed_png() {
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
+    let readme = std::fs::read_to_string(root.join("README.md")).unwrap();
+    let pictures: Vec<&str> = readme
+        .split("](")
+        .skip(1)
+        .filter_map(|rest| rest.split(')').next())
+        .filter(|target| target.ends_with(".png"))
+        .collect();
+    assert!(!pictures.is_empty(), "the README shows a picture");
+    for p in pictures {
+        let path = root.join(p);
+        let bytes = std::fs::read(&path).unwrap_or_else(|e| panic!("{p}: {e}"));
+        assert!(bytes.len() < 64 * 1024, "{p} is {} bytes", bytes.len());
+        let info = png::Decoder::new(std::io::Cursor::new(bytes))
+            .read_info()
+            .unwrap_or_else(|e| panic!("{p} is not a PNG: {e}"))
+            .info()
+            .clone();
+        assert!(
+            (400..=1000).contains(&info.width) && info.height >= 300,
+            "{p}: {}×{}",
+            info.width,
+            info.height
+        );
+    }
+}
