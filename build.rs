@@ -16,39 +16,47 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::{env, fs};
 
-#[allow(dead_code)]
-#[path = "src/input_error.rs"]
-mod input_error;
+/// The crate's bottom layer, as much of it as the data loaders use, at the same paths.
+#[path = "src/basics"]
+mod basics {
+    #[allow(dead_code)]
+    #[path = "input_error.rs"]
+    pub mod input_error;
 
-#[allow(dead_code)]
-#[path = "src/input_shape.rs"]
-mod input_shape;
+    #[allow(dead_code)]
+    #[path = "input_shape.rs"]
+    pub mod input_shape;
 
-#[allow(dead_code)]
-#[path = "src/notation.rs"]
-mod notation;
+    #[allow(dead_code)]
+    #[path = "notation.rs"]
+    pub mod notation;
+}
 
 #[allow(dead_code)]
 #[path = "src/catalog/mod.rs"]
 mod catalog;
 
-#[allow(dead_code)]
-#[path = "src/thresholds.rs"]
-mod thresholds;
+/// The judgement's levels and rules, at the same paths as in the crate.
+#[path = "src/judge"]
+mod judge {
+    // `offgas_whole_crate` (set below for the crate, not for this script) leaves out the
+    // parts of `thresholds` and `rules` that need the rest of the crate.
+    #[allow(dead_code, unexpected_cfgs)]
+    #[path = "thresholds.rs"]
+    pub mod thresholds;
 
-// `offgas_whole_crate` (set below for the crate, not for this script) leaves out the part
-// of `rules` that needs the rest of the crate.
-#[allow(dead_code, unexpected_cfgs)]
-#[path = "src/rules/mod.rs"]
-mod rules;
+    #[allow(dead_code, unexpected_cfgs)]
+    #[path = "rules/mod.rs"]
+    pub mod rules;
+}
 
 /// The library's modules compiled into this script (every file of `src/catalog/` too).
 const MODULES: &[&str] = &[
-    "src/input_error.rs",
-    "src/input_shape.rs",
-    "src/notation.rs",
-    "src/thresholds.rs",
-    "src/rules/mod.rs",
+    "src/basics/input_error.rs",
+    "src/basics/input_shape.rs",
+    "src/basics/notation.rs",
+    "src/judge/thresholds.rs",
+    "src/judge/rules/mod.rs",
 ];
 
 /// The data files `Catalog::load` reads (the fields of `DataSources`).
@@ -81,7 +89,7 @@ const RULE_FILES: &[&str] = &[
 ];
 
 /// What `embedded::rules` reads back: each built-in rule with its file and line.
-type RuleImage = Vec<(String, Option<usize>, rules::Rule)>;
+type RuleImage = Vec<(String, Option<usize>, judge::rules::Rule)>;
 
 fn main() {
     let root = PathBuf::from(env::var_os("CARGO_MANIFEST_DIR").expect("cargo sets it"));
@@ -215,16 +223,16 @@ fn build(root: &Path, out: &Path) -> Result<(), Vec<String>> {
     let ghs = catalog::ghs::GhsTable::parse(GHS_FILE, &texts[GHS_FILE], &cat)
         .map_err(|e| problems.push(e.to_string()))
         .ok();
-    let thresholds = thresholds::Thresholds::parse(THRESHOLDS_FILE, &texts[THRESHOLDS_FILE])
+    let thresholds = judge::thresholds::Thresholds::parse(THRESHOLDS_FILE, &texts[THRESHOLDS_FILE])
         .map_err(|e| problems.push(e))
         .ok();
 
-    let mut set = rules::RuleSet::default();
+    let mut set = judge::rules::RuleSet::default();
     for f in RULE_FILES {
-        let origin = rules::Origin::BuiltIn {
+        let origin = judge::rules::Origin::BuiltIn {
             file: f.to_string(),
         };
-        let loaded = rules::RuleSet::parse_file(&cat, f, &texts[f], origin)
+        let loaded = judge::rules::RuleSet::parse_file(&cat, f, &texts[f], origin)
             .and_then(|loaded| set.extend(loaded));
         if let Err(errors) = loaded {
             problems.extend(errors.iter().map(|e| e.to_string()));
@@ -234,7 +242,8 @@ fn build(root: &Path, out: &Path) -> Result<(), Vec<String>> {
         .rules
         .iter()
         .map(|r| {
-            let (rules::Origin::BuiltIn { file } | rules::Origin::Site { file }) = &r.origin;
+            let (judge::rules::Origin::BuiltIn { file } | judge::rules::Origin::Site { file }) =
+                &r.origin;
             (file.clone(), r.line, r.rule.clone())
         })
         .collect();

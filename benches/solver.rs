@@ -5,8 +5,8 @@
 //! in-process (mixing path both ways, pairs, findings).
 
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
-use offgas::batch::Batch;
 use offgas::chem::{solve, Closure, Mixture, SolverSettings};
+use offgas::pour::batch::Batch;
 
 const TWELVE: [(&str, f64); 12] = [
     ("cyanide", 0.01),

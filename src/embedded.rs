@@ -9,8 +9,8 @@
 
 use crate::catalog::ghs::GhsTable;
 use crate::catalog::{Catalog, CatalogError, DataSources};
-use crate::rules::{LoadedRule, Origin, Rule, RuleError, RuleSet};
-use crate::thresholds::Thresholds;
+use crate::judge::rules::{LoadedRule, Origin, Rule, RuleError, RuleSet};
+use crate::judge::thresholds::Thresholds;
 
 pub const SPECIES: &str = include_str!("../data/species.yaml");
 pub const SUBSTANCES: &str = include_str!("../data/substances.yaml");

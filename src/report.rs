@@ -3,7 +3,7 @@
 //! Field names here are the JSON contract the README documents; renderers never compute
 //! chemistry, they only lay this out.
 
-use crate::pairs::Pair;
+use crate::pour::pairs::Pair;
 use serde::Serialize;
 use std::fmt;
 
@@ -265,10 +265,10 @@ pub struct GasPeak {
 /// What a person in the room would breathe.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct RoomSection {
-    pub settings: crate::room::RoomSettings,
+    pub settings: crate::pour::room::RoomSettings,
     /// True when the liquid is open to the room (open or vented container, or a spill).
     pub open_surface_counts: bool,
-    pub gases: Vec<crate::room::RoomGasReport>,
+    pub gases: Vec<crate::pour::room::RoomGasReport>,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -286,7 +286,7 @@ pub struct CheckReport {
     pub poured_other_way: Option<OrderReport>,
     pub pairs: Vec<Pair>,
     /// Gas released by stoichiometry (hydrogen from metals and hydrides).
-    pub stoichiometric_gases: Vec<crate::release::ReleaseReport>,
+    pub stoichiometric_gases: Vec<crate::pour::release::ReleaseReport>,
     pub room: RoomSection,
     pub findings: Vec<Finding>,
     /// Gases the findings name that offgas does not compute (ASCII formulas).

@@ -21,8 +21,8 @@ fn demo_store() -> Inventory {
 }
 
 struct Env {
-    th: offgas::thresholds::Thresholds,
-    rules: offgas::rules::RuleSet,
+    th: offgas::judge::thresholds::Thresholds,
+    rules: offgas::judge::rules::RuleSet,
 }
 
 fn env() -> Env {

@@ -4,9 +4,9 @@
 
 mod common;
 use common::*;
-use offgas::batch::Batch;
 use offgas::check::{check, CheckOptions};
 use offgas::chem::{solve, Closure, SolverSettings};
+use offgas::pour::batch::Batch;
 use offgas::report::Severity;
 
 fn combined_constants() -> (f64, f64, f64) {

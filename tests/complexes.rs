@@ -198,9 +198,9 @@ fn the_report_says_what_holds_the_ligand_and_what_would_precipitate() {
     assert_eq!(b[0].held_by[0].metal, "Cu+");
     let json = serde_json::to_value(&r).unwrap();
     assert!(json["end_state"]["bound_ligands"][0]["held_by"][0]["percent"].is_number());
-    let text = offgas::render::check_table(
+    let text = offgas::output::render::check_table(
         &r,
-        offgas::render::View {
+        offgas::output::render::View {
             color: false,
             all_pairs: false,
             charset: offgas::plot::spark::Charset::Unicode,

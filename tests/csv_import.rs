@@ -28,7 +28,7 @@ fn read(text: &str, mapping: &ColumnMapping) -> Inventory {
     inv
 }
 
-fn errors(text: &str, mapping: &ColumnMapping) -> Vec<offgas::batch::InputError> {
+fn errors(text: &str, mapping: &ColumnMapping) -> Vec<offgas::pour::batch::InputError> {
     match import(&cat(), "store.csv", text, mapping, false) {
         Ok((inv, _)) => panic!("expected errors, got {} containers", inv.containers.len()),
         Err(e) => e,

@@ -9,8 +9,8 @@
 use offgas::catalog::ghs::GhsTable;
 use offgas::catalog::Catalog;
 use offgas::embedded;
-use offgas::rules::{Origin, RuleSet};
-use offgas::thresholds::Thresholds;
+use offgas::judge::rules::{Origin, RuleSet};
+use offgas::judge::thresholds::Thresholds;
 
 fn bytes<T: serde::Serialize>(v: &T) -> Vec<u8> {
     postcard::to_stdvec(v).expect("serializes")

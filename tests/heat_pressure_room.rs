@@ -4,8 +4,8 @@
 mod common;
 use common::*;
 use offgas::check::CheckOptions;
+use offgas::pour::room::{concentration_after, steady_state, time_to_reach, RoomSettings};
 use offgas::report::CheckReport;
-use offgas::room::{concentration_after, steady_state, time_to_reach, RoomSettings};
 use proptest::prelude::*;
 
 fn run(container: &str, stream: &str, opts: &CheckOptions) -> CheckReport {

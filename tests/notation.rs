@@ -31,7 +31,7 @@ fn forbidden() -> Vec<String> {
         .flat_map(|f| f.species.iter().map(|s| s.formula.clone()))
         .chain(cat.strong_ions.iter().map(|i| i.formula.clone()));
     for f in formulas {
-        let (body, z) = offgas::notation::split_charge(&f);
+        let (body, z) = offgas::basics::notation::split_charge(&f);
         if z.abs() > 1 {
             out.push(format!(
                 "{body}{}{}",

@@ -3,17 +3,17 @@
 
 mod common;
 use common::*;
-use offgas::batch::Batch;
 use offgas::check::{check, CheckOptions};
 use offgas::chem::{solve, Closure, SolverSettings};
-use offgas::pairs::{pair_table, Extent};
+use offgas::pour::batch::Batch;
+use offgas::pour::pairs::{pair_table, Extent};
 use offgas::report::{Scope, Severity};
 
-fn thresholds() -> offgas::thresholds::Thresholds {
+fn thresholds() -> offgas::judge::thresholds::Thresholds {
     offgas::embedded::thresholds().unwrap()
 }
 
-fn rules() -> offgas::rules::RuleSet {
+fn rules() -> offgas::judge::rules::RuleSet {
     offgas::embedded::rules(catalog()).unwrap()
 }
 
@@ -131,7 +131,7 @@ fn pairs_go_both_ways_between_the_batches() {
     )
     .unwrap();
     let pairs = pair_table(catalog(), &a, &b, 298.15, &th.proton_transfer);
-    use offgas::pairs::Side;
+    use offgas::pour::pairs::Side;
     assert!(pairs
         .iter()
         .any(|p| p.donor_side == Side::Container && p.acceptor_side == Side::Stream));
@@ -254,7 +254,7 @@ fn a_hazard_class_no_rule_covers_is_never_clear() {
         "s",
         "name: s\nvolume: 1 L\ncontents:\n  - sodium hypochlorite: 0.01 mol/L\n",
     );
-    let none = offgas::rules::RuleSet::default();
+    let none = offgas::judge::rules::RuleSet::default();
     let r = check(
         catalog(),
         &thresholds(),

@@ -4,9 +4,9 @@
 
 mod common;
 use common::catalog;
-use offgas::batch::Batch;
 use offgas::check::{check, CheckOptions};
-use offgas::path::Detail;
+use offgas::pour::batch::Batch;
+use offgas::pour::path::Detail;
 use serde::Deserialize;
 
 #[derive(Deserialize)]

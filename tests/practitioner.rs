@@ -5,8 +5,8 @@
 
 mod common;
 use common::catalog;
-use offgas::batch::Batch;
 use offgas::check::{check, CheckOptions};
+use offgas::pour::batch::Batch;
 use offgas::report::{CheckReport, Severity};
 use serde::Deserialize;
 

@@ -7,8 +7,8 @@ use offgas::procedure::{fix::fixes, run::Engine, Procedure};
 use offgas::report::Severity;
 
 struct Ctx {
-    th: offgas::thresholds::Thresholds,
-    rules: offgas::rules::RuleSet,
+    th: offgas::judge::thresholds::Thresholds,
+    rules: offgas::judge::rules::RuleSet,
 }
 
 fn ctx() -> Ctx {
@@ -228,7 +228,7 @@ fn the_html_sheet_is_self_contained_and_has_sign_off_lines() {
         "{HEEL}steps:\n  - description: drain <fast>\n    drain: {{ leave: 3 L }}\n{ACID_STEP}"
     );
     let r = e.run(&parse(&text)).unwrap();
-    let html = offgas::sheet::procedure_html(&r);
+    let html = offgas::output::sheet::procedure_html(&r);
     assert!(html.starts_with("<!DOCTYPE html>") && html.trim_end().ends_with("</html>"));
     for external in ["http://", "https://", "<link", "<script", "src=", "@import"] {
         assert!(!html.contains(external), "external asset: {external}");

@@ -5,9 +5,9 @@
 mod common;
 use common::catalog;
 use offgas::catalog::SubstanceId;
-use offgas::pairs::Side;
-use offgas::rules::evaluate::{Present, RuleContext};
-use offgas::rules::{Meeting, Origin, Rule, RuleSet};
+use offgas::judge::rules::evaluate::{Present, RuleContext};
+use offgas::judge::rules::{Meeting, Origin, Rule, RuleSet};
+use offgas::pour::pairs::Side;
 
 fn builtin() -> RuleSet {
     offgas::embedded::rules(catalog()).expect("built-in rules load")
@@ -124,8 +124,9 @@ fn every_flagged_class_is_covered_by_a_built_in_rule() {
     // pour), unless its hazard needs a partner: then a rule about that meeting names it.
     let set = builtin();
     for class in catalog().classes.iter().filter(|c| c.beyond_proton_model) {
-        let names =
-            |r: &&offgas::rules::LoadedRule| r.rule.meet.iter().flatten().any(|c| c == &class.id);
+        let names = |r: &&offgas::judge::rules::LoadedRule| {
+            r.rule.meet.iter().flatten().any(|c| c == &class.id)
+        };
         if class.needs_partner {
             assert!(
                 set.rules.iter().filter(names).any(|r| !r.rule.presence),
@@ -147,7 +148,7 @@ fn every_flagged_class_is_covered_by_a_built_in_rule() {
 
 /// The rule on its own: a presence rule stays quiet where another rule names the same
 /// component, so it is tested without the others.
-fn alone(lr: &offgas::rules::LoadedRule) -> RuleSet {
+fn alone(lr: &offgas::judge::rules::LoadedRule) -> RuleSet {
     RuleSet {
         rules: vec![lr.clone()],
     }
@@ -283,7 +284,9 @@ fn across_means_one_group_on_each_side() {
     ));
 }
 
-fn parse(text: &str) -> Result<Vec<offgas::rules::LoadedRule>, Vec<offgas::rules::RuleError>> {
+fn parse(
+    text: &str,
+) -> Result<Vec<offgas::judge::rules::LoadedRule>, Vec<offgas::judge::rules::RuleError>> {
     RuleSet::parse_file(
         catalog(),
         "site/bad.yaml",
@@ -370,8 +373,8 @@ fn site_rules_add_and_raise_but_never_lower() {
 
 #[test]
 fn a_raising_site_rule_lifts_the_finding_in_a_check_and_says_so() {
-    use offgas::batch::Batch;
     use offgas::check::{check, CheckOptions};
+    use offgas::pour::batch::Batch;
     use offgas::report::Severity;
     let cat = catalog();
     let mut set = builtin();

@@ -5,9 +5,9 @@
 
 mod common;
 use common::{catalog, R};
-use offgas::assess::{state_findings, Action, PourStates};
 use offgas::catalog::GasKind;
 use offgas::check::CheckOptions;
+use offgas::judge::assess::{state_findings, Action, PourStates};
 use offgas::report::{CheckReport, GasReport, Scope, Severity, StateReport};
 
 fn run(container: &str, stream: &str) -> CheckReport {
@@ -294,7 +294,7 @@ fn the_room_worst_case_is_one_that_can_happen() {
 fn evaporation_runs_down_as_the_liquid_runs_out() {
     // N0 = 1 mol of a 46 g/mol gas leaving at 46 g / 600 s at first: k = 1/600 s⁻¹, so over
     // 900 s, 1 − e^(−1.5) = 0.7769 mol leave (not 1.5 mol at the first rate).
-    let got = offgas::room::evaporated_mol(1.0, 0.046 / 600.0, 46.0, 900.0);
+    let got = offgas::pour::room::evaporated_mol(1.0, 0.046 / 600.0, 46.0, 900.0);
     assert!((got - (1.0 - (-1.5f64).exp())).abs() < 1e-12, "{got}");
 }
 
@@ -488,9 +488,9 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
         "name: c\ncapacity: 2 L\nvolume: 1 L\nclosure: vented\ncontents:\n  - sodium cyanide: 100 g/L\n",
         "name: s\nvolume: 0.5 L\ncontents:\n  - hydrogen chloride: 5 mol/L\n",
     );
-    let text = offgas::render::check_table(
+    let text = offgas::output::render::check_table(
         &r,
-        offgas::render::View {
+        offgas::output::render::View {
             color: false,
             all_pairs: false,
             charset: offgas::plot::spark::Charset::Unicode,
@@ -500,7 +500,7 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
     let mut hcn = gas(&r.end_state, "HCN").clone();
     hcn.partial_pressure_kpa = 122.0;
     hcn.headspace_ppm = 1_204_046.0;
-    let words = offgas::assess::gas_reaches(&hcn, false, "when the pour is complete");
+    let words = offgas::judge::assess::gas_reaches(&hcn, false, "when the pour is complete");
     assert!(
         words.contains("essentially pure HCN, which boils off"),
         "{words}"
@@ -509,7 +509,7 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
     // no open liquid could hold.
     hcn.partial_pressure_kpa = 1_079_135.0;
     hcn.headspace_ppm = 1.065e10;
-    let words = offgas::assess::gas_reaches(&hcn, false, "when the pour is complete");
+    let words = offgas::judge::assess::gas_reaches(&hcn, false, "when the pour is complete");
     assert!(!words.contains("1079135"), "{words}");
     assert!(words.contains("more than 10 times the pressure"), "{words}");
     assert!(!words.contains("ppm"), "{words}");
@@ -519,9 +519,9 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
         "name: s\nvolume: 0.5 L\ncontents:\n  - sodium chloride: 0.1 mol/L\n",
     );
     for report in [&r, &calm] {
-        let text = offgas::render::check_table(
+        let text = offgas::output::render::check_table(
             report,
-            offgas::render::View {
+            offgas::output::render::View {
                 color: false,
                 all_pairs: false,
                 charset: offgas::plot::spark::Charset::Unicode,

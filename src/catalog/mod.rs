@@ -1003,7 +1003,7 @@ impl Catalog {
         // Bounded: a name far longer than any known one matches nothing better for its tail.
         let q: String = normalize_name(query)
             .chars()
-            .take(crate::input_shape::MAX_NAME_CHARS)
+            .take(crate::basics::input_shape::MAX_NAME_CHARS)
             .collect();
         let mut scored: Vec<(f64, &str)> = self
             .substance_index
@@ -1259,11 +1259,11 @@ fn load_complexes(
 pub const MAX_LIGANDS: usize = 6;
 
 fn check_formula_charge(formula: &str, charge: i32) -> Result<(), String> {
-    let (body, written) = crate::notation::split_charge(formula);
-    if written != charge || crate::notation::with_charge(body, charge) != formula {
+    let (body, written) = crate::basics::notation::split_charge(formula);
+    if written != charge || crate::basics::notation::with_charge(body, charge) != formula {
         return Err(format!(
             "`{formula}` should be written `{}` (charge {charge}: the sign last, its size after `^` when more than one)",
-            crate::notation::with_charge(
+            crate::basics::notation::with_charge(
                 body.rfind(['+', '-']).map_or(body, |i| &body[..i]),
                 charge
             )

@@ -760,7 +760,7 @@ fn term_at(cat: &Catalog, fid: FamilyId, t_k: f64, fixed: FamilyFixed) -> Term {
 /// Molecules of water each step of a family takes up, read from the formulas: an acid that
 /// gains w O and 2w − 1 H on losing its proton has taken up w waters.
 fn water_taken(fam: &crate::catalog::species::Family, steps: usize) -> [f64; MAX_STEPS] {
-    use crate::notation::atom_count;
+    use crate::basics::notation::atom_count;
     let mut out = [0.0; MAX_STEPS];
     for (j, w) in out.iter_mut().enumerate().take(steps) {
         let (acid, base) = (&fam.species[j].formula, &fam.species[j + 1].formula);

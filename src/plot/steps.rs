@@ -108,7 +108,7 @@ pub fn gas_chart(r: &ProcedureReport) -> Option<Chart> {
             y: peak.2,
             label: format!(
                 "{} {}× at step {}",
-                crate::notation::pretty(&peak.1),
+                crate::basics::notation::pretty(&peak.1),
                 short_number(peak.2),
                 peak.0
             ),
@@ -174,7 +174,7 @@ pub fn step_lines(r: &ProcedureReport) -> Vec<String> {
                     i == at
                 ))
                 .collect::<String>(),
-            crate::notation::pretty(gas),
+            crate::basics::notation::pretty(gas),
             short_number(*ratio),
             r.steps[at].number
         ));

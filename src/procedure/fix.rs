@@ -4,7 +4,7 @@
 
 use super::run::{Engine, FixReport, ProcedureReport};
 use super::{Leave, Procedure, Step, StepKind};
-use crate::batch::Batch;
+use crate::pour::batch::Batch;
 use crate::report::Severity;
 
 /// Most rinses a fix may propose.

@@ -8,9 +8,9 @@
 pub mod fix;
 pub mod run;
 
-use crate::batch::{Batch, InputError};
+use crate::basics::quantity::{parse_temperature, parse_volume};
 use crate::catalog::Catalog;
-use crate::quantity::{parse_temperature, parse_volume};
+use crate::pour::batch::{Batch, InputError};
 
 /// How much a drain leaves behind.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -106,7 +106,11 @@ impl Procedure {
             message,
             fix,
         };
-        crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)?;
+        crate::basics::input_shape::check_yaml_shape(
+            file,
+            text,
+            crate::basics::input_shape::MAX_FILE_BYTES,
+        )?;
         let doc: serde_yaml::Value = serde_yaml::from_str(text).map_err(|e| {
             err(
                 e.location().map(|l| l.line()),

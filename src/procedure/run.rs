@@ -2,15 +2,15 @@
 //! checked in full against what is in the vessel at that moment.
 
 use super::{Leave, Procedure, Step, StepKind};
-use crate::assess::{state_findings, state_report, Action, PourStates};
-use crate::batch::{Batch, InputError};
 use crate::catalog::Catalog;
 use crate::check::{check, CheckError, CheckOptions};
 use crate::chem::solve;
+use crate::judge::assess::{state_findings, state_report, Action, PourStates};
+use crate::judge::rules::RuleSet;
+use crate::judge::thresholds::Thresholds;
+use crate::pour::batch::{Batch, InputError};
 use crate::pour::HeatReport;
 use crate::report::{CheckReport, Finding, Severity, StateReport, WorstStateReport};
-use crate::rules::RuleSet;
-use crate::thresholds::Thresholds;
 use serde::Serialize;
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -120,7 +120,7 @@ fn step_error(p: &Procedure, step: &Step, message: String, fix: Option<String>) 
 /// The vessel's contents after `added` has been poured in and the mixture has reached
 /// `temperature_k` (the heat of the pour included).
 fn merged(vessel: &Batch, added: &Batch, temperature_k: f64) -> Batch {
-    let mut out = crate::record::pour_into(vessel, added);
+    let mut out = crate::pour::batch::pour_into(vessel, added);
     out.temperature_k = temperature_k;
     out.temperature_given = true;
     out
@@ -325,8 +325,8 @@ impl Engine<'_> {
                         kind: "drain",
                         action: format!(
                             "drain {}, leaving {}",
-                            crate::text::litres(before - l),
-                            crate::text::litres(l)
+                            crate::basics::text::litres(before - l),
+                            crate::basics::text::litres(l)
                         ),
                         severity: Severity::Clear,
                         end_state: None,
@@ -360,7 +360,7 @@ impl Engine<'_> {
                         "rinse {} × with {}, draining to {} each time",
                         times,
                         describe_batch(self.cat, with),
-                        crate::text::litres(vessel.volume_l)
+                        crate::basics::text::litres(vessel.volume_l)
                     );
                     report.volume_after_l = vessel.volume_l;
                     report.contents_after = contents(self.cat, &vessel);
@@ -432,7 +432,7 @@ pub fn describe_batch(cat: &Catalog, b: &Batch) -> String {
         .map(|c| cat.substance(c.substance).name.clone())
         .collect();
     if parts.is_empty() {
-        crate::text::litres(b.volume_l)
+        crate::basics::text::litres(b.volume_l)
     } else {
         format!("{} L of {}", trim(b.volume_l), parts.join(", "))
     }

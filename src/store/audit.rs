@@ -2,16 +2,16 @@
 //! could matter, ranked.
 
 use super::{Contents, Inventory, StoredContainer};
-use crate::batch::{Batch, Component};
+use crate::basics::quantity::Amount;
 use crate::catalog::{Catalog, SubstanceId};
 use crate::check::{check, CheckOptions};
 use crate::chem::{solve, Closure, Mixture, SolverSettings};
-use crate::pairs::Side;
-use crate::quantity::Amount;
+use crate::judge::rules::evaluate::{Present, RuleContext};
+use crate::judge::rules::RuleSet;
+use crate::judge::thresholds::Thresholds;
+use crate::pour::batch::{Batch, Component};
+use crate::pour::pairs::Side;
 use crate::report::{CheckReport, Severity};
-use crate::rules::evaluate::{Present, RuleContext};
-use crate::rules::RuleSet;
-use crate::thresholds::Thresholds;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::collections::HashMap;
@@ -210,7 +210,8 @@ fn profile(cat: &Catalog, th: &Thresholds, c: &StoredContainer) -> Profile {
             }
             m.liquid_l = 1.0;
             m.water_kg = Some(
-                crate::composition::composition(cat, &[(*substance, *moles)], 1.0, None).water_g
+                crate::pour::composition::composition(cat, &[(*substance, *moles)], 1.0, None)
+                    .water_g
                     / 1e3,
             );
             (m, vec![(*substance, *moles)], true)
@@ -222,7 +223,7 @@ fn profile(cat: &Catalog, th: &Thresholds, c: &StoredContainer) -> Profile {
     let eq = solve(cat, &m, &settings(th)).ok();
     let alone_gases = eq
         .as_ref()
-        .map(|e| crate::assess::gas_ratios(cat, th, e))
+        .map(|e| crate::judge::assess::gas_ratios(cat, th, e))
         .unwrap_or_default();
     let mut acid_volatile = false;
     let mut base_volatile = false;
@@ -440,7 +441,7 @@ const PAIR_ADDS_FACTOR_PAST_STOP: f64 = 10.0;
 /// The ratio (on the scale of `gas_ratio`) above which a gas counts against a pair, for
 /// one container that gives off `alone` of it on its own.
 fn pair_adds_above(cat: &Catalog, th: &Thresholds, gas: &str, alone: f64, dry: bool) -> f64 {
-    let factor = match crate::assess::stop_ratio(cat, th, gas) {
+    let factor = match crate::judge::assess::stop_ratio(cat, th, gas) {
         Some(stop) if alone >= stop && !dry => PAIR_ADDS_FACTOR_PAST_STOP,
         _ => PAIR_ADDS_FACTOR,
     };
@@ -465,7 +466,7 @@ fn pair_gases(
     }
     let mut out: Vec<(String, f64, f64)> = Vec::new();
     for p in peaks {
-        let ratio = crate::assess::gas_ratio(cat, th, &p.formula, p.headspace_ppm);
+        let ratio = crate::judge::assess::gas_ratio(cat, th, &p.formula, p.headspace_ppm);
         let bar = above
             .iter()
             .filter(|(g, _)| *g == p.formula)
@@ -846,8 +847,8 @@ impl<'a> PairJudge<'a> {
             room_volume_m3: r.map(|r| r.volume_m3),
             air_changes_per_hour: r.map(|r| r.air_changes_per_hour),
             spill_area_m2: Some(self.auditor.settings.spill_area_m2),
-            detail: crate::path::Detail::Coarse,
-            action: crate::assess::Action::Leak,
+            detail: crate::pour::path::Detail::Coarse,
+            action: crate::judge::assess::Action::Leak,
         }
     }
 

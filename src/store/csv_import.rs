@@ -20,9 +20,9 @@ use super::{
     counted, depths_from_the_end, neat_contents, parse_location, Contents, Inventory,
     StoredContainer,
 };
-use crate::batch::{Batch, InputError};
+use crate::basics::quantity::{parse_amount, parse_volume, Amount};
 use crate::catalog::{Catalog, PhysicalState};
-use crate::quantity::{parse_amount, parse_volume, Amount};
+use crate::pour::batch::{Batch, InputError};
 use serde::{Deserialize, Serialize};
 use std::collections::{BTreeMap, HashMap};
 

@@ -12,9 +12,9 @@
 //! Nothing here describes a real site: names, counts, amounts and rooms are invented.
 
 use super::{neat_contents, Contents, Inventory, LocationSpec, RoomSpec, StoredContainer};
-use crate::batch::Batch;
+use crate::basics::quantity::Amount;
 use crate::catalog::{Catalog, PhysicalState};
-use crate::quantity::Amount;
+use crate::pour::batch::Batch;
 use std::fmt::Write as _;
 
 /// The building every synthetic location path starts with.
@@ -290,7 +290,7 @@ fn draw_contents(
     r: &Reagent,
     rng: &mut Rng,
 ) -> (f64, Contents) {
-    let fail = |e: crate::batch::InputError| -> ! {
+    let fail = |e: crate::pour::batch::InputError| -> ! {
         panic!(
             "synthetic store: reagent `{}` does not resolve: {e}",
             r.name

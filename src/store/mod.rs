@@ -36,9 +36,9 @@ pub mod generate;
 pub mod suggest;
 pub mod view;
 
-use crate::batch::{Batch, InputError};
+use crate::basics::quantity::{parse_amount, parse_volume, Amount};
 use crate::catalog::{Catalog, PhysicalState, SubstanceId};
-use crate::quantity::{parse_amount, parse_volume, Amount};
+use crate::pour::batch::{Batch, InputError};
 use serde::Deserialize;
 
 /// What a container holds.
@@ -287,7 +287,11 @@ impl Inventory {
             message,
             fix,
         };
-        crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_INVENTORY_BYTES)?;
+        crate::basics::input_shape::check_yaml_shape(
+            file,
+            text,
+            crate::basics::input_shape::MAX_INVENTORY_BYTES,
+        )?;
         let raw: RawInventory = serde_yaml::from_str(text).map_err(|e| {
             err(
                 e.location().map(|l| l.line()),
@@ -316,7 +320,7 @@ impl Inventory {
             .collect();
         let mut rooms = Vec::new();
         for r in raw.rooms {
-            let v = crate::quantity::parse_room_volume_m3(&r.volume)
+            let v = crate::basics::quantity::parse_room_volume_m3(&r.volume)
                 .map_err(|e| err(None, format!("room `{}`: {e}", r.path), None))?;
             if !(v > 0.0 && r.air_changes > 0.0) {
                 return Err(err(

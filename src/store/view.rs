@@ -3,7 +3,7 @@
 
 use super::audit::{AuditCounts, AuditReport, CabinetMatrix, Level};
 use super::counted;
-use crate::html::{esc, prose};
+use crate::output::html::{esc, prose};
 use crate::report::Severity;
 use std::fmt::Write;
 
@@ -163,10 +163,10 @@ pub fn audit_table(r: &AuditReport) -> String {
             let _ = writeln!(out, "  not resolved: {u}");
         }
     }
-    out.push_str(&crate::render::closing_lists(
+    out.push_str(&crate::output::render::closing_lists(
         &r.assumptions,
         &r.cautions,
-        crate::render::ListStyle::Terminal,
+        crate::output::render::ListStyle::Terminal,
     ));
     out
 }
@@ -329,12 +329,12 @@ pub fn audit_html(r: &AuditReport) -> String {
         }
         let _ = writeln!(out, "</ul>");
     }
-    out.push_str(&crate::render::closing_lists(
+    out.push_str(&crate::output::render::closing_lists(
         &r.assumptions,
         &r.cautions,
-        crate::render::ListStyle::Html,
+        crate::output::render::ListStyle::Html,
     ));
-    crate::html::page(&format!("Storeroom audit: {}", r.name), AUDIT_STYLE, &out)
+    crate::output::html::page(&format!("Storeroom audit: {}", r.name), AUDIT_STYLE, &out)
 }
 
 /// Markdown cells hold no line breaks or pipes.
@@ -431,10 +431,10 @@ pub fn audit_markdown(r: &AuditReport) -> String {
             let _ = writeln!(out, "- Not resolved: {u}");
         }
     }
-    out.push_str(&crate::render::closing_lists(
+    out.push_str(&crate::output::render::closing_lists(
         &r.assumptions,
         &r.cautions,
-        crate::render::ListStyle::Markdown,
+        crate::output::render::ListStyle::Markdown,
     ));
     out
 }

@@ -71,8 +71,9 @@ pub fn check_texts(
     opts: &offgas::check::CheckOptions,
 ) -> offgas::report::CheckReport {
     let cat = catalog();
-    let parse =
-        |t: &str| offgas::batch::Batch::parse(cat, "t.yaml", t).unwrap_or_else(|e| panic!("{e}"));
+    let parse = |t: &str| {
+        offgas::pour::batch::Batch::parse(cat, "t.yaml", t).unwrap_or_else(|e| panic!("{e}"))
+    };
     offgas::check::check(
         cat,
         &offgas::embedded::thresholds().unwrap(),

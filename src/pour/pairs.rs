@@ -7,7 +7,6 @@
 use crate::catalog::{Catalog, FamilyId};
 use crate::chem::temperature::{log_k_at, log_ka, log_kw};
 use crate::chem::Equilibrium;
-use crate::thresholds::ProtonTransfer;
 use serde::Serialize;
 
 /// Which batch a species came from.
@@ -152,14 +151,23 @@ fn complex_acceptors(cat: &Catalog, eq: &Equilibrium, t_k: f64) -> Vec<Actor> {
     out
 }
 
+/// Where a transfer counts as complete or as negligible, by its log K (the site sets these
+/// with its thresholds).
+#[derive(Debug, Clone, Copy)]
+pub struct ExtentBounds {
+    pub complete_above_log_k: f64,
+    pub negligible_below_log_k: f64,
+}
+
 /// Every donor of one batch with every acceptor of the other, strongest transfer first.
 pub fn pair_table(
     cat: &Catalog,
     container: &Equilibrium,
     stream: &Equilibrium,
     t_k: f64,
-    rules: &ProtonTransfer,
+    bounds: impl Into<ExtentBounds>,
 ) -> Vec<Pair> {
+    let rules: ExtentBounds = bounds.into();
     let (cd, ca) = actors(cat, container, t_k);
     let (sd, sa) = actors(cat, stream, t_k);
     let mut pairs = Vec::new();

@@ -2,7 +2,7 @@
 
 use super::{class_mask, LoadedRule, Meeting, RuleSet};
 use crate::catalog::{Catalog, SubstanceId};
-use crate::pairs::Side;
+use crate::pour::pairs::Side;
 
 /// One component of the mixture as the rules see it.
 #[derive(Debug, Clone)]

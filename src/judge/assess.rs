@@ -2,8 +2,8 @@
 
 use crate::catalog::{Catalog, FamilyId, GasKind};
 use crate::chem::{Closure, Equilibrium};
+use crate::judge::thresholds::Thresholds;
 use crate::report::{Finding, GasReport, Scope, Severity, StateReport};
-use crate::thresholds::Thresholds;
 
 /// Gases below this many ppm are left out of reports (they are still in the solve).
 pub const REPORT_FLOOR_PPM: f64 = 1e-6;
@@ -335,7 +335,7 @@ pub fn gas_reaches(g: &GasReport, sealed: bool, place: &str) -> String {
             fmt_ppm(g.headspace_ppm)
         );
     }
-    let kpa = crate::text::fixed(g.partial_pressure_kpa, 0);
+    let kpa = crate::basics::text::fixed(g.partial_pressure_kpa, 0);
     if !sealed && g.partial_pressure_kpa >= FAR_PAST_ATMOSPHERE * ATMOSPHERE_KPA {
         // An equilibrium figure this far past the atmosphere's pressure cannot build up over
         // a liquid open to the air; printed, it reads as nonsense.
@@ -362,7 +362,7 @@ pub fn gas_level(g: &GasReport) -> String {
     if g.partial_pressure_kpa >= ATMOSPHERE_KPA {
         format!(
             "{} kPa, above atmospheric pressure",
-            crate::text::fixed(g.partial_pressure_kpa, 0)
+            crate::basics::text::fixed(g.partial_pressure_kpa, 0)
         )
     } else {
         fmt_ppm(g.headspace_ppm)
@@ -554,8 +554,8 @@ pub fn state_findings(th: &Thresholds, p: &PourStates) -> Vec<Finding> {
                     format!(
                         "{}, {} of its lower flammable limit of {} % (review at {} and stop at {} of the limit; {}).",
                         gas_reaches(g, p.sealed, &place),
-                        crate::text::fixed(ratio(g) * 100.0, 0) + " %",
-                        crate::text::fixed(g.lfl_ppm.unwrap_or(0.0) / 1e4, 1),
+                        crate::basics::text::fixed(ratio(g) * 100.0, 0) + " %",
+                        crate::basics::text::fixed(g.lfl_ppm.unwrap_or(0.0) / 1e4, 1),
                         th.flammable_gas.review_fraction_of_lfl,
                         th.flammable_gas.stop_fraction_of_lfl,
                         th.flammable_gas.basis
@@ -669,7 +669,7 @@ fn overpressure_finding(th: &Thresholds, p: &PourStates) -> Option<Finding> {
         "sealed-overpressure",
         format!(
             "The sealed vessel reaches {} kPa above atmospheric {place}, from the gases the liquid gives off, the warming of the air and water vapour (review at {review} kPa; stop at {rating}).",
-            crate::text::fixed(pressure, 1)
+            crate::basics::text::fixed(pressure, 1)
         ),
         "Do not cap a vessel that makes gas; use a vented cap or leave the mixture in a fume hood until it stops.",
     ))
@@ -702,10 +702,10 @@ pub fn activity_assumption(a: &crate::report::ActivityReport, when: &str) -> Opt
     .collect();
     Some(format!(
         "Activity {when} ({} mol/kg, water activity {}): {}; the model holds here to {} mol/kg.",
-        crate::text::fixed(a.ionic_strength_mol_kg, 2),
-        crate::text::fixed(a.water_activity, 3),
+        crate::basics::text::fixed(a.ionic_strength_mol_kg, 2),
+        crate::basics::text::fixed(a.water_activity, 3),
         parts.join("; "),
-        crate::text::fixed(a.holds_to_mol_kg, 1)
+        crate::basics::text::fixed(a.holds_to_mol_kg, 1)
     ))
 }
 
@@ -788,8 +788,8 @@ fn activity_model_note(th: &Thresholds, p: &PourStates) -> Option<Finding> {
     };
     let range = format!(
         "The ionic strength reaches {} mol/kg, past the {} mol/kg up to which the activity model holds for this mixture ({}); computed partial pressures may be off by {off_by} there ({}).",
-        crate::text::fixed(i, 2),
-        crate::text::fixed(limit, 1),
+        crate::basics::text::fixed(i, 2),
+        crate::basics::text::fixed(limit, 1),
         range_reason(worst),
         am.uncertainty_basis
     );
@@ -863,7 +863,7 @@ pub fn container_findings(
                 format!(
                     "{}, the sealed container already holds {} kPa above atmospheric.",
                     action.before(),
-                    crate::text::fixed(alone.overpressure_kpa, 1)
+                    crate::basics::text::fixed(alone.overpressure_kpa, 1)
                 ),
                 "Vent it slowly in a fume hood, pointing the cap away, before anything else is done.",
             )

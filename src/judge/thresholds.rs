@@ -83,6 +83,18 @@ pub struct ProtonTransfer {
     pub basis: String,
 }
 
+// The build script compiles this file without the engine; `offgas_whole_crate` is set for
+// the crate only.
+#[cfg(offgas_whole_crate)]
+impl From<&ProtonTransfer> for crate::pour::pairs::ExtentBounds {
+    fn from(p: &ProtonTransfer) -> Self {
+        crate::pour::pairs::ExtentBounds {
+            complete_above_log_k: p.complete_above_log_k,
+            negligible_below_log_k: p.negligible_below_log_k,
+        }
+    }
+}
+
 #[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct HeatThresholds {
@@ -136,8 +148,12 @@ pub struct MixingPath {
 
 impl Thresholds {
     pub fn parse(file: &str, text: &str) -> Result<Thresholds, String> {
-        crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)
-            .map_err(|e| e.to_string())?;
+        crate::basics::input_shape::check_yaml_shape(
+            file,
+            text,
+            crate::basics::input_shape::MAX_FILE_BYTES,
+        )
+        .map_err(|e| e.to_string())?;
         let t: Thresholds = serde_yaml::from_str(text).map_err(|e| {
             let at = e
                 .location()

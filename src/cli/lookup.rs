@@ -1,15 +1,15 @@
 //! `offgas lookup`: what the data say about a substance or family, with sources.
 
 use anyhow::{anyhow, Result};
+use offgas::basics::notation::pretty;
 use offgas::catalog::complexes::Part;
 use offgas::catalog::{Catalog, FamilyId, SubstanceId};
-use offgas::notation::pretty;
 use serde_json::json;
 use std::fmt::Write;
 
 /// Prints the matching substance and families; exit 0, or an error with close names.
 pub fn run(query: &str, as_json: bool) -> Result<u8> {
-    let cat = crate::load_catalog()?;
+    let cat = super::load_catalog()?;
     let substance = cat.find_substance(query);
     let mut families: Vec<FamilyId> = cat.find_families(query);
     if let Some(sid) = substance {
@@ -40,7 +40,7 @@ pub fn run(query: &str, as_json: bool) -> Result<u8> {
         }
         out
     };
-    crate::print(&text)?;
+    super::print(&text)?;
     Ok(0)
 }
 

@@ -5,9 +5,9 @@
 //! The shell's style is the approval sheet's (`sheet`), so pages from different commands
 //! look alike when they are filed together.
 
-use crate::render::{closing_lists, ListStyle};
+use crate::basics::text::fixed;
+use crate::output::render::{closing_lists, ListStyle};
 use crate::report::{CheckReport, Severity, StateReport};
-use crate::text::fixed;
 use std::fmt::Write;
 
 /// A sentence for HTML: escaped, with `names` set as code.
@@ -129,7 +129,7 @@ fn cells_table(out: &mut String, heads: &[&str], rows: &[Vec<String>], numeric: 
             out,
             "<th{}>{}</th>",
             class(i),
-            esc(&crate::text::sentence_start(h))
+            esc(&crate::basics::text::sentence_start(h))
         );
     }
     out.push_str("</tr></thead>\n<tbody>\n");
@@ -145,14 +145,19 @@ fn cells_table(out: &mut String, heads: &[&str], rows: &[Vec<String>], numeric: 
 
 fn gases_html(r: &CheckReport, out: &mut String) {
     out.push_str("<h2>Gas in the headspace</h2>\n<p class=\"small\">ppm by volume at 1 atm.</p>\n");
-    for note in crate::render::gas_table_notes(r) {
+    for note in crate::output::render::gas_table_notes(r) {
         let _ = writeln!(out, "<p>{}</p>", esc(&note));
     }
-    let cells = crate::render::gas_cells(r);
+    let cells = crate::output::render::gas_cells(r);
     if cells.is_empty() {
         return;
     }
-    cells_table(out, &crate::render::GAS_HEADS, &cells, &[1, 2, 3, 4, 5, 6]);
+    cells_table(
+        out,
+        &crate::output::render::GAS_HEADS,
+        &cells,
+        &[1, 2, 3, 4, 5, 6],
+    );
 }
 
 fn states_html(r: &CheckReport, out: &mut String) {
@@ -186,7 +191,7 @@ fn states_html(r: &CheckReport, out: &mut String) {
         );
     }
     out.push_str("</tbody>\n</table>\n");
-    let bound = crate::render::bound_lines(r);
+    let bound = crate::output::render::bound_lines(r);
     if !bound.is_empty() {
         out.push_str("<ul>\n");
         for line in bound {
@@ -261,14 +266,14 @@ fn heat_room_html(r: &CheckReport, out: &mut String) {
     );
     cells_table(
         out,
-        &crate::render::ROOM_HEADS,
-        &crate::render::room_cells(r),
+        &crate::output::render::ROOM_HEADS,
+        &crate::output::render::room_cells(r),
         &[1, 2, 3, 4, 5, 6],
     );
 }
 
 fn pairs_html(r: &CheckReport, all_pairs: bool, out: &mut String) {
-    let pairs = crate::render::shown_pairs(r, all_pairs);
+    let pairs = crate::output::render::shown_pairs(r, all_pairs);
     let _ = writeln!(
         out,
         "<h2>Why: proton transfers between the two batches</h2>\n<p class=\"small\">{} of {} shown{}.</p>",
@@ -285,8 +290,8 @@ fn pairs_html(r: &CheckReport, all_pairs: bool, out: &mut String) {
     }
     cells_table(
         out,
-        &crate::render::PAIR_HEADS,
-        &crate::render::pair_cells(&pairs),
+        &crate::output::render::PAIR_HEADS,
+        &crate::output::render::pair_cells(&pairs),
         &[5],
     );
 }

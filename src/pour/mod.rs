@@ -1,11 +1,24 @@
-//! One pour followed step by step: the mixture at each fraction added, warmed by its own
-//! heat of reaction and dilution, solved at the temperature it reaches.
+//! The engine of one pour, below the judgement: the batches as written (`batch`,
+//! `composition`), the mixture at each share added, warmed by its own heat of reaction and
+//! dilution and solved at the temperature it reaches (here, with `heat` and `boiling`), the
+//! scan along both orders (`path`), the proton transfers between the two (`pairs`), and
+//! what the room and an open surface receive (`room`, `release`). It computes; it never
+//! judges and never formats.
 
-use crate::batch::Batch;
-use crate::boiling::LiquidMakeup;
+pub mod batch;
+pub mod boiling;
+pub mod composition;
+pub mod heat;
+pub mod pairs;
+pub mod path;
+pub mod release;
+pub mod room;
+
 use crate::catalog::{Catalog, SubstanceId};
 use crate::chem::{solve_from, Equilibrium, Mixture, SolveError, SolverSettings};
-use crate::heat::{reaction_heat_kj, temperature_rise};
+use crate::pour::batch::Batch;
+use crate::pour::boiling::LiquidMakeup;
+use crate::pour::heat::{reaction_heat_kj, temperature_rise};
 use serde::Serialize;
 
 /// Highest temperature the aqueous model is solved at; above it the mixture boils.
@@ -70,7 +83,7 @@ impl HeatReport {
     /// "releases 581 kJ (8 kJ from proton transfers, 573 kJ from diluting concentrated
     /// reagents)", with `decimals` decimals.
     pub fn released_words(&self, decimals: usize) -> String {
-        let fixed = crate::text::fixed;
+        let fixed = crate::basics::text::fixed;
         format!(
             "releases {} kJ ({} kJ from proton transfers, {} kJ from diluting concentrated reagents)",
             fixed(self.reaction_heat_kj + self.dilution_heat_kj, decimals),

@@ -1,8 +1,8 @@
 //! Laying out a report as a terminal table or markdown. No chemistry here.
 
+use crate::basics::notation::pretty;
 use crate::catalog::GasKind;
-use crate::notation::pretty;
-use crate::pairs::{pairs_that_matter, Extent, Pair};
+use crate::pour::pairs::{pairs_that_matter, Extent, Pair};
 use crate::report::{CheckReport, Finding, GasReport, Severity, StateReport};
 use comfy_table::{presets, Cell, CellAlignment, ContentArrangement, Table};
 use owo_colors::OwoColorize;
@@ -49,7 +49,7 @@ pub fn course_lines(r: &CheckReport, charset: crate::plot::spark::Charset) -> Ve
             Some(format!(
                 "  {:<5} {}  peak {} ppm at {:.0} % poured",
                 match charset {
-                    spark::Charset::Unicode => crate::notation::pretty(&peak.formula),
+                    spark::Charset::Unicode => crate::basics::notation::pretty(&peak.formula),
                     spark::Charset::Ascii => peak.formula.clone(),
                 },
                 spark::line(&values, hi - 4.0, hi, Some(mark), charset),
@@ -93,7 +93,7 @@ fn ppm_cell(g: &GasReport) -> String {
     if g.partial_pressure_kpa >= 101.325 {
         format!(
             "over 1 atm ({} kPa)",
-            crate::text::fixed(g.partial_pressure_kpa, 0)
+            crate::basics::text::fixed(g.partial_pressure_kpa, 0)
         )
     } else {
         fmt_ppm(g.headspace_ppm)
@@ -285,7 +285,7 @@ pub fn pair_cells(pairs: &[&Pair]) -> Vec<Vec<String>> {
                 format!(
                     "{} + {}",
                     pretty(&p.produced_base),
-                    crate::notation::pretty_words(&p.produced_acid)
+                    crate::basics::notation::pretty_words(&p.produced_acid)
                 ),
                 format!("{:.1}", p.log_k),
                 extent_word(p.extent).to_string(),
@@ -482,14 +482,14 @@ pub fn bound_lines(r: &CheckReport) -> Vec<String> {
                     format!(" ({})", held.join(", "))
                 },
                 pretty(&b.species),
-                crate::text::molar(b.free_mol_per_l)
+                crate::basics::text::molar(b.free_mol_per_l)
             ));
         }
         for p in &s.precipitated {
             out.push(format!(
                 "{label}: {} precipitates: {} of {} leaves the liquid as the solid",
                 pretty(&p.solid),
-                crate::text::molar(p.mol_per_l),
+                crate::basics::text::molar(p.mol_per_l),
                 pretty(&p.metal)
             ));
         }
@@ -520,7 +520,7 @@ fn heat_and_room_text(r: &CheckReport, style: ListStyle) -> String {
     if matches!(style, ListStyle::Terminal) {
         let _ = writeln!(out, "\nHeat and pressure");
     }
-    let fixed = crate::text::fixed;
+    let fixed = crate::basics::text::fixed;
     let _ = writeln!(
         out,
         "{indent}The pour {}: {} °C → {} °C{}.",
@@ -730,7 +730,7 @@ pub fn closing_lists(assumptions: &[String], cautions: &[String], style: ListSty
             ListStyle::Html => {
                 let _ = writeln!(out, "<h2>{title}</h2><ul>");
                 for i in items {
-                    let _ = writeln!(out, "<li>{}</li>", crate::html::prose(i));
+                    let _ = writeln!(out, "<li>{}</li>", crate::output::html::prose(i));
                 }
                 let _ = writeln!(out, "</ul>");
             }

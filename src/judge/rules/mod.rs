@@ -411,9 +411,11 @@ impl RuleSet {
             line,
             message,
         };
-        if let Err(e) =
-            crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)
-        {
+        if let Err(e) = crate::basics::input_shape::check_yaml_shape(
+            file,
+            text,
+            crate::basics::input_shape::MAX_FILE_BYTES,
+        ) {
             return (Vec::new(), vec![error(e.line, e.message)]);
         }
         let doc: Value = match serde_yaml::from_str(text) {

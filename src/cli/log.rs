@@ -6,13 +6,13 @@
 //! waits (OFFGAS_LOCK_WAIT_MS, default 10 s) and then gives up with a clear message. The
 //! lock file is removed when its writer is done (see `RecordLock`).
 
-use crate::{load_catalog, load_thresholds, print, rules_cmd, Format, OutputArgs};
+use super::{load_catalog, load_thresholds, print, rules, Format, OutputArgs};
 use anyhow::{anyhow, Context, Result};
-use offgas::batch::Batch;
 use offgas::check::{check, CheckOptions};
+use offgas::pour::batch::Batch;
+use offgas::record::tag::{CarboyReport, WasteTag};
 use offgas::record::{EntryKind, Record};
 use offgas::report::Severity;
-use offgas::tag::{CarboyReport, WasteTag};
 use std::fs::{File, OpenOptions};
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -219,7 +219,7 @@ pub fn add(
     }
     let cat = load_catalog()?;
     let th = load_thresholds(thresholds)?;
-    let rules = rules_cmd::load(cat, site_rules)?;
+    let rules = rules::load(cat, site_rules)?;
     let stream_text = std::fs::read_to_string(stream_path)
         .with_context(|| format!("cannot read {}: check the path", stream_path.display()))?;
     let stream = Batch::parse(cat, &stream_path.display().to_string(), &stream_text)
@@ -234,7 +234,7 @@ pub fn add(
         .map_err(|e| anyhow!("{e}"))?;
     let report = check(cat, &th, &rules, &vessel, &stream, &CheckOptions::default())
         .map_err(|e| anyhow!("{e}"))?;
-    print(&crate::render(&report, format, false)?)?;
+    print(&super::render(&report, format, false)?)?;
     let decision = match (report.severity, accept) {
         (Severity::Stop, _) => Err(format!(
             "NOT RECORDED: the check says stop. Do not pour this into {}; find a container it can go into (`offgas check`) or ask your EHS office.",
@@ -267,7 +267,7 @@ pub fn add(
         }
         Err(message) => eprintln!("offgas: {message}"),
     }
-    Ok(crate::exit_status(report.severity))
+    Ok(super::exit_status(report.severity))
 }
 
 fn load_ghs(cat: &offgas::catalog::Catalog) -> Result<offgas::catalog::ghs::GhsTable> {
@@ -285,10 +285,10 @@ pub fn show(path: &Path, format: Format, out: &OutputArgs) -> Result<u8> {
     let report = CarboyReport::from_record(cat, &th, &ghs, &record, &path.display().to_string())
         .map_err(|e| anyhow!("{e}"))?;
     let text = match format {
-        Format::Table => offgas::tag::carboy_table(&report),
-        Format::Markdown => offgas::tag::carboy_markdown(&report),
+        Format::Table => offgas::output::tag::carboy_table(&report),
+        Format::Markdown => offgas::output::tag::carboy_markdown(&report),
         Format::Json => serde_json::to_string_pretty(&report)? + "\n",
-        Format::Html => offgas::tag::carboy_html(&report),
+        Format::Html => offgas::output::tag::carboy_html(&report),
     };
     out.deliver(&text, "the record")?;
     Ok(0)
@@ -328,10 +328,10 @@ pub fn close(path: &Path, by: &str, format: Format, out: &OutputArgs) -> Result<
     let tag = WasteTag::from_record(cat, &th, &ghs, &record, &path.display().to_string())
         .map_err(|e| anyhow!("{e}; the record was not closed"))?;
     let text = match format {
-        Format::Table => offgas::tag::tag_table(&tag),
-        Format::Markdown => offgas::tag::tag_markdown(&tag),
+        Format::Table => offgas::output::tag::tag_table(&tag),
+        Format::Markdown => offgas::output::tag::tag_markdown(&tag),
         Format::Json => serde_json::to_string_pretty(&tag)? + "\n",
-        Format::Html => offgas::tag::tag_html(&tag),
+        Format::Html => offgas::output::tag::tag_html(&tag),
     };
     write_atomic(path, &record.to_text())?;
     out.deliver(&text, "the waste tag").map_err(|e| {

@@ -59,7 +59,7 @@ impl VapourPressure {
                 format!(
                     "{} {} kPa{}",
                     s.what,
-                    crate::text::fixed(s.kpa, 1),
+                    crate::basics::text::fixed(s.kpa, 1),
                     if s.layer {
                         " as a layer of its own"
                     } else {

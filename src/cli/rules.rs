@@ -2,7 +2,7 @@
 
 use anyhow::{anyhow, Result};
 use offgas::catalog::Catalog;
-use offgas::rules::{Origin, RuleError, RuleSet};
+use offgas::judge::rules::{Origin, RuleError, RuleSet};
 use std::path::Path;
 
 fn errors_text(errors: &[RuleError]) -> String {
@@ -80,7 +80,7 @@ pub fn load(cat: &Catalog, site: Option<&Path>) -> Result<RuleSet> {
 
 /// `offgas rules list`: every rule in force with its source file.
 pub fn list(site: Option<&Path>, as_json: bool) -> Result<u8> {
-    let cat = crate::load_catalog()?;
+    let cat = super::load_catalog()?;
     let set = load(cat, site)?;
     let text = if as_json {
         let rules: Vec<serde_json::Value> = set
@@ -107,8 +107,8 @@ pub fn list(site: Option<&Path>, as_json: bool) -> Result<u8> {
                 when.push(format!("each at least {v} mol/L"));
             }
             let joiner = match r.rule.meeting {
-                offgas::rules::Meeting::Anywhere => "  +  ",
-                offgas::rules::Meeting::Across => "  across  ",
+                offgas::judge::rules::Meeting::Anywhere => "  +  ",
+                offgas::judge::rules::Meeting::Across => "  across  ",
             };
             let meet = r
                 .rule
@@ -135,13 +135,13 @@ pub fn list(site: Option<&Path>, as_json: bool) -> Result<u8> {
         }
         out
     };
-    crate::print(&text)?;
+    super::print(&text)?;
     Ok(0)
 }
 
 /// `offgas rules check DIR`: validates a site folder as it would be layered; exit 0 or 1.
 pub fn check_dir(dir: &Path) -> Result<u8> {
-    let cat = crate::load_catalog()?;
+    let cat = super::load_catalog()?;
     match layered(cat, Some(dir)) {
         Ok(set) => {
             let site = set
@@ -149,7 +149,7 @@ pub fn check_dir(dir: &Path) -> Result<u8> {
                 .iter()
                 .filter(|r| matches!(r.origin, Origin::Site { .. }))
                 .count();
-            crate::print(&format!(
+            super::print(&format!(
                 "{}: {site} site rules are valid and layer cleanly over {} built-in rules\n",
                 dir.display(),
                 set.rules.len() - site

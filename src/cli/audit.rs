@@ -1,7 +1,7 @@
 //! `offgas audit`: read an inventory (YAML or CSV), audit every pair that can meet,
 //! optionally suggest moves, print or write the report.
 
-use crate::{load_catalog, load_thresholds, rules_cmd, Format, OutputArgs};
+use super::{load_catalog, load_thresholds, rules, Format, OutputArgs};
 use anyhow::{anyhow, Context, Result};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use offgas::store::audit::{AuditSettings, Auditor, PairJudge};
@@ -114,10 +114,11 @@ pub fn run(a: AuditArgs) -> Result<u8> {
     let cat = load_catalog()?;
     let th = load_thresholds(a.thresholds.as_deref())?;
     a.out.check_free()?;
-    let rules = rules_cmd::load(cat, a.site_rules.as_deref())?;
+    let rules = rules::load(cat, a.site_rules.as_deref())?;
     let spill_area_m2 = match &a.spill_area {
         Some(s) => {
-            let v = offgas::quantity::parse_area_m2(s).map_err(|e| anyhow!("--spill-area: {e}"))?;
+            let v = offgas::basics::quantity::parse_area_m2(s)
+                .map_err(|e| anyhow!("--spill-area: {e}"))?;
             if v <= 0.0 {
                 return Err(anyhow!("--spill-area must be above zero"));
             }
@@ -163,5 +164,5 @@ pub fn run(a: AuditArgs) -> Result<u8> {
         Format::Json => serde_json::to_string_pretty(&report)? + "\n",
     };
     a.out.deliver(&text, "the audit report")?;
-    Ok(crate::exit_status(report.severity))
+    Ok(super::exit_status(report.severity))
 }

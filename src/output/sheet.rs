@@ -1,7 +1,7 @@
 //! The approval sheet of a procedure: a terminal table, markdown, or one self-contained
 //! HTML page that prints on A4 and Letter. Layout only; the numbers come from the report.
 
-use crate::html::{esc, prose};
+use crate::output::html::{esc, prose};
 use crate::procedure::run::{ProcedureReport, StepReport};
 use crate::report::{Severity, StateReport};
 use comfy_table::{presets, ContentArrangement, Table};
@@ -134,10 +134,10 @@ pub fn procedure_table(r: &ProcedureReport) -> String {
             let _ = writeln!(out, "  step {} [{}] {}", s.number, f.severity, f.message);
         }
     }
-    out.push_str(&crate::render::closing_lists(
+    out.push_str(&crate::output::render::closing_lists(
         &r.assumptions,
         &r.cautions,
-        crate::render::ListStyle::Terminal,
+        crate::output::render::ListStyle::Terminal,
     ));
     let _ = writeln!(out);
     for s in &r.sign_off {
@@ -220,10 +220,10 @@ pub fn procedure_markdown(r: &ProcedureReport) -> String {
             );
         }
     }
-    out.push_str(&crate::render::closing_lists(
+    out.push_str(&crate::output::render::closing_lists(
         &r.assumptions,
         &r.cautions,
-        crate::render::ListStyle::Markdown,
+        crate::output::render::ListStyle::Markdown,
     ));
     let _ = writeln!(out, "\n## Sign-off\n");
     for s in &r.sign_off {
@@ -338,10 +338,10 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         }
     }
     let _ = writeln!(out, "</ul>");
-    out.push_str(&crate::render::closing_lists(
+    out.push_str(&crate::output::render::closing_lists(
         &r.assumptions,
         &r.cautions,
-        crate::render::ListStyle::Html,
+        crate::output::render::ListStyle::Html,
     ));
     let _ = writeln!(out, "<div class=\"sign\">");
     for s in &r.sign_off {
@@ -352,5 +352,5 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         );
     }
     let _ = writeln!(out, "</div>");
-    crate::html::page(&format!("Procedure check: {}", r.name), SHEET_STYLE, &out)
+    crate::output::html::page(&format!("Procedure check: {}", r.name), SHEET_STYLE, &out)
 }

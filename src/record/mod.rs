@@ -5,8 +5,10 @@
 //! The record is JSON lines (one entry per line). This module reads, verifies and extends
 //! the text; reading and writing files (atomically, under a lock) is the caller's job.
 
-use crate::batch::{Batch, InputError};
+pub mod tag;
+
 use crate::catalog::Catalog;
+use crate::pour::batch::{Batch, InputError};
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 
@@ -250,32 +252,8 @@ impl Record {
                 &format!("{file} (entry {})", e.seq),
                 e.text.as_deref().unwrap_or(""),
             )?;
-            vessel = pour_into(&vessel, &stream);
+            vessel = crate::pour::batch::pour_into(&vessel, &stream);
         }
         Ok(vessel)
     }
-}
-
-/// The vessel with a stream poured in: components summed by substance, volumes added,
-/// the temperature the volume-weighted mean (the carboy returns to room temperature).
-pub fn pour_into(vessel: &Batch, stream: &Batch) -> Batch {
-    let mut out = vessel.clone();
-    for c in &stream.components {
-        match out
-            .components
-            .iter_mut()
-            .find(|x| x.substance == c.substance)
-        {
-            Some(x) => x.moles += c.moles,
-            None => out.components.push(crate::batch::Component {
-                line: None,
-                ..c.clone()
-            }),
-        }
-    }
-    let v = vessel.volume_l + stream.volume_l;
-    out.temperature_k =
-        (vessel.temperature_k * vessel.volume_l + stream.temperature_k * stream.volume_l) / v;
-    out.volume_l = v;
-    out
 }

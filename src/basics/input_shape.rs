@@ -6,7 +6,7 @@
 //! megabyte-long name would keep the program busy for minutes. Real files are far inside
 //! these limits, so a file outside them is a mistake and gets a clear error at once.
 
-use crate::input_error::InputError;
+use crate::basics::input_error::InputError;
 
 /// Largest batch, procedure, rule or thresholds file accepted, bytes.
 pub const MAX_FILE_BYTES: usize = 1 << 20;

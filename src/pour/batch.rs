@@ -3,16 +3,18 @@
 //! Parsing turns the user's words into resolved substances and moles, and every mistake
 //! into an `InputError` that names the file, the line where it can be found, and the fix.
 
+use crate::basics::quantity::{
+    parse_amount, parse_temperature, parse_volume, Amount, QuantityError,
+};
 use crate::catalog::{Catalog, PhysicalState, SubstanceId};
 use crate::chem::{Closure, Mixture};
-use crate::quantity::{parse_amount, parse_temperature, parse_volume, Amount, QuantityError};
 use serde::Deserialize;
 
 /// Litres of water an empty container is taken to hold.
 pub const EMPTY_FILM_L: f64 = 1e-3;
 
 /// A mistake in something the user wrote (it lives in `input_error`, which stands on its own).
-pub use crate::input_error::InputError;
+pub use crate::basics::input_error::InputError;
 
 /// One component as resolved against the catalog.
 #[derive(Debug, Clone, PartialEq)]
@@ -120,7 +122,11 @@ impl Batch {
     /// Parses a batch file. `file` names it in messages.
     pub fn parse(cat: &Catalog, file: &str, text: &str) -> Result<Batch, InputError> {
         let ctx = Ctx { file, text };
-        crate::input_shape::check_yaml_shape(file, text, crate::input_shape::MAX_FILE_BYTES)?;
+        crate::basics::input_shape::check_yaml_shape(
+            file,
+            text,
+            crate::basics::input_shape::MAX_FILE_BYTES,
+        )?;
         let raw: RawBatch = serde_yaml::from_str(text).map_err(|e| {
             let line = e.location().map(|l| l.line());
             let msg = e.to_string();
@@ -215,13 +221,17 @@ impl Batch {
         };
 
         let rated_pressure_kpa = match &raw.rated_pressure {
-            Some(v) => {
-                Some(ctx.quantity("rated_pressure", v, crate::quantity::parse_pressure_kpa)?)
-            }
+            Some(v) => Some(ctx.quantity(
+                "rated_pressure",
+                v,
+                crate::basics::quantity::parse_pressure_kpa,
+            )?),
             None => None,
         };
         let surface_area_m2 = match &raw.surface_area {
-            Some(v) => Some(ctx.quantity("surface_area", v, crate::quantity::parse_area_m2)?),
+            Some(v) => {
+                Some(ctx.quantity("surface_area", v, crate::basics::quantity::parse_area_m2)?)
+            }
             None => None,
         };
         let mut batch = Batch {
@@ -260,7 +270,7 @@ impl Batch {
             if let Some(l) = line {
                 search_from = l + 1;
             }
-            crate::input_shape::check_name_length(&written).map_err(|m| {
+            crate::basics::input_shape::check_name_length(&written).map_err(|m| {
                 ctx.err(
                     line,
                     m,
@@ -361,7 +371,7 @@ impl Batch {
         }
         let mut components = Vec::with_capacity(items.len());
         for (written, amount_text, line) in items {
-            crate::input_shape::check_name_length(written)
+            crate::basics::input_shape::check_name_length(written)
                 .map_err(|m| err(*line, format!("`{name}`: {m}"), None))?;
             let sid = cat.find_substance(written).ok_or_else(|| {
                 err(
@@ -411,13 +421,13 @@ impl Batch {
     }
 
     /// What the batch weighs and how much water it holds.
-    pub fn composition(&self, cat: &Catalog) -> crate::composition::Composition {
+    pub fn composition(&self, cat: &Catalog) -> crate::pour::composition::Composition {
         let parts: Vec<(SubstanceId, f64)> = self
             .components
             .iter()
             .map(|c| (c.substance, c.moles))
             .collect();
-        crate::composition::composition(
+        crate::pour::composition::composition(
             cat,
             &parts,
             self.volume_l,
@@ -683,7 +693,7 @@ pub fn beyond_solubility(cat: &Catalog, c: &Component, volume_l: f64) -> Option<
         format!(
             "`{}`: {} g/L is above its solubility in water (about {sol} g/L); it is counted as dissolved, as acid or base would dissolve it, so the figures err towards more gas where nothing dissolves it.",
             c.written,
-            crate::text::fixed(g_per_l, 1)
+            crate::basics::text::fixed(g_per_l, 1)
         )
     })
 }
@@ -712,4 +722,28 @@ fn fmt_big(v: f64) -> String {
     } else {
         format!("{v:.0}")
     }
+}
+
+/// The vessel with a stream poured in: components summed by substance, volumes added,
+/// the temperature the volume-weighted mean (the carboy returns to room temperature).
+pub fn pour_into(vessel: &Batch, stream: &Batch) -> Batch {
+    let mut out = vessel.clone();
+    for c in &stream.components {
+        match out
+            .components
+            .iter_mut()
+            .find(|x| x.substance == c.substance)
+        {
+            Some(x) => x.moles += c.moles,
+            None => out.components.push(Component {
+                line: None,
+                ..c.clone()
+            }),
+        }
+    }
+    let v = vessel.volume_l + stream.volume_l;
+    out.temperature_k =
+        (vessel.temperature_k * vessel.volume_l + stream.temperature_k * stream.volume_l) / v;
+    out.volume_l = v;
+    out
 }

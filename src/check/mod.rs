@@ -1,24 +1,24 @@
 //! `check`: can this stream go into that container? The whole computation for one pour.
 
-use crate::assess::{
-    container_findings, fmt_times, score, state_findings, state_report, where_in_pour, PourStates,
-};
-use crate::batch::{Batch, InputError};
-use crate::boiling::{vapour_pressure, VapourPressure};
 use crate::catalog::Catalog;
 use crate::chem::{solve, Closure, SolveError, SolverSettings};
-use crate::pairs::pair_table;
-use crate::pairs::Side;
-use crate::path::{scan, PathScan};
+use crate::judge::assess::{
+    container_findings, fmt_times, score, state_findings, state_report, where_in_pour, PourStates,
+};
+use crate::judge::rules::evaluate::{Present, RuleContext};
+use crate::judge::rules::{Computed, Origin, RuleSet};
+use crate::judge::thresholds::Thresholds;
+use crate::pour::batch::{Batch, InputError};
+use crate::pour::boiling::{vapour_pressure, VapourPressure};
+use crate::pour::pairs::Side;
+use crate::pour::pairs::pair_table;
+use crate::pour::path::{scan, PathScan};
+use crate::pour::release::ReleaseReport;
 use crate::pour::{BatchHeat, HeatReport, Pour};
-use crate::release::ReleaseReport;
 use crate::report::StateReport;
 use crate::report::{
     BatchReport, CheckReport, ComponentReport, Finding, OrderReport, Severity, WorstStateReport,
 };
-use crate::rules::evaluate::{Present, RuleContext};
-use crate::rules::{Computed, Origin, RuleSet};
-use crate::thresholds::Thresholds;
 
 #[derive(Debug, Clone, Default)]
 pub struct CheckOptions {
@@ -31,9 +31,9 @@ pub struct CheckOptions {
     /// A spill of this area instead of the container's open surface, m2.
     pub spill_area_m2: Option<f64>,
     /// How finely the pour is followed (coarse for audits of many pairs).
-    pub detail: crate::path::Detail,
+    pub detail: crate::pour::path::Detail,
     /// What brings the two liquids together (a pour, a rinse, a leak), for the words.
-    pub action: crate::assess::Action,
+    pub action: crate::judge::assess::Action,
 }
 
 #[derive(Debug, thiserror::Error)]
@@ -216,7 +216,7 @@ pub fn check(
     let ctx = rule_context(container, stream, &forward, &backward);
     let components: Vec<(crate::catalog::SubstanceId, f64)> =
         ctx.present.iter().map(|p| (p.substance, p.moles)).collect();
-    let released = crate::release::releases(
+    let released = crate::pour::release::releases(
         cat,
         &components,
         forward.ph_range,
@@ -236,8 +236,8 @@ pub fn check(
         opts.action,
     ));
     let room_settings = room_settings(th, container, capacity, opts);
-    let room_gases = crate::room::room_report(cat, &forward.end.state, &room_settings);
-    let room_alone = crate::room::room_report(cat, &eq_a, &room_settings);
+    let room_gases = crate::pour::room::room_report(cat, &forward.end.state, &room_settings);
+    let room_alone = crate::pour::room::room_report(cat, &eq_a, &room_settings);
     let exposed = opts.spill_area_m2.is_some() || container.closure != Closure::Sealed;
     findings.extend(room_findings(
         cat,
@@ -282,8 +282,10 @@ pub fn check(
         let gas_peaks: Vec<crate::report::GasPeak> = p
             .gas_peaks
             .iter()
-            .filter(|(_, _, pa)| crate::assess::ppm(cat, *pa) >= crate::assess::REPORT_FLOOR_PPM)
-            .map(|(g, f, pa)| crate::assess::gas_peak(cat, th, g, *f, *pa))
+            .filter(|(_, _, pa)| {
+                crate::judge::assess::ppm(cat, *pa) >= crate::judge::assess::REPORT_FLOOR_PPM
+            })
+            .map(|(g, f, pa)| crate::judge::assess::gas_peak(cat, th, g, *f, *pa))
             .collect();
         OrderReport {
             description: description.into(),
@@ -297,7 +299,7 @@ pub fn check(
         }
     };
     let mut assumptions = assumptions(cat, container, stream, opts, th);
-    assumptions.extend(crate::assess::activity_assumption(
+    assumptions.extend(crate::judge::assess::activity_assumption(
         &end.activity,
         "when the pour is complete",
     ));
@@ -341,7 +343,7 @@ pub fn check(
 /// The states along one order, with the gases whose peaks are reported.
 fn path_report(
     cat: &Catalog,
-    points: &[crate::path::PathPoint],
+    points: &[crate::pour::path::PathPoint],
     peaks: &[crate::report::GasPeak],
 ) -> Vec<crate::report::PathPointReport> {
     points
@@ -358,7 +360,7 @@ fn path_report(
                         .gases
                         .iter()
                         .find(|(g, _)| g.as_ref() == peak.formula)
-                        .map_or(0.0, |(_, pa)| crate::assess::ppm(cat, *pa)),
+                        .map_or(0.0, |(_, pa)| crate::judge::assess::ppm(cat, *pa)),
                 })
                 .collect(),
         })
@@ -369,7 +371,7 @@ fn order_findings(
     th: &Thresholds,
     forward: &PathScan<HeatReport>,
     backward: &PathScan<HeatReport>,
-    action: crate::assess::Action,
+    action: crate::judge::assess::Action,
 ) -> Vec<Finding> {
     let mut out = Vec::new();
     let factor = th.mixing_path.safer_order_factor;
@@ -464,7 +466,7 @@ fn computed_note(
         Some(Computed::Chlorine) => match gas_figure("Cl2") {
             Some(g) => format!(
                 " Computed: Cl2 reaches {} in the headspace at worst (see the gas findings).",
-                crate::assess::gas_level(&g)
+                crate::judge::assess::gas_level(&g)
             ),
             None => {
                 " Chlorine could not be computed for this mixture; the severity rests on this rule."
@@ -579,7 +581,7 @@ fn room_settings(
     container: &Batch,
     capacity_l: f64,
     opts: &CheckOptions,
-) -> crate::room::RoomSettings {
+) -> crate::pour::room::RoomSettings {
     let (area, basis) = match (opts.spill_area_m2, container.surface_area_m2) {
         (Some(a), _) => (a, format!("a spill of {a} m2 (--spill-area)")),
         (None, Some(a)) => (
@@ -587,7 +589,7 @@ fn room_settings(
             format!("the container's open surface of {a} m2 (its file)"),
         ),
         (None, None) => {
-            let a = crate::room::surface_from_capacity(capacity_l);
+            let a = crate::pour::room::surface_from_capacity(capacity_l);
             (
                 a,
                 format!(
@@ -609,7 +611,7 @@ fn room_settings(
         ),
         (None, Closure::Open) => format!("the open surface evaporating for {window} min"),
     };
-    crate::room::RoomSettings {
+    crate::pour::room::RoomSettings {
         volume_m3: opts.room_volume_m3.unwrap_or(th.room.volume_m3),
         air_changes_per_hour: opts
             .air_changes_per_hour
@@ -692,7 +694,7 @@ fn boiling_findings(
     th: &Thresholds,
     states: [(&Boil, f64); 2],
     alone: &Boil,
-    action: crate::assess::Action,
+    action: crate::judge::assess::Action,
 ) -> Vec<Finding> {
     let mut out = Vec::new();
     let (worst, f) = states
@@ -704,17 +706,17 @@ fn boiling_findings(
         match b {
         Boil::Boils(v) => format!(
             "the liquid reaches {} °C, where its vapour pressure is {} kPa ({}) against {} kPa over it: it boils",
-            crate::text::fixed(v.temperature_c, 1),
-            crate::text::fixed(v.total_kpa, 0),
+            crate::basics::text::fixed(v.temperature_c, 1),
+            crate::basics::text::fixed(v.total_kpa, 0),
             v.describe(),
-            crate::text::fixed(v.pressure_over_kpa, 1)
+            crate::basics::text::fixed(v.pressure_over_kpa, 1)
         ),
         Boil::Near(v) => format!(
             "{margin} K warmer than it gets, at {} °C, the liquid's vapour pressure would reach {} kPa ({}), the {} kPa over it: it is close to boiling",
-            crate::text::fixed(v.temperature_c, 1),
-            crate::text::fixed(v.total_kpa, 0),
+            crate::basics::text::fixed(v.temperature_c, 1),
+            crate::basics::text::fixed(v.total_kpa, 0),
             v.describe(),
-            crate::text::fixed(v.pressure_over_kpa, 1)
+            crate::basics::text::fixed(v.pressure_over_kpa, 1)
         ),
         Boil::No => String::new(),
     }
@@ -730,7 +732,7 @@ fn boiling_findings(
             code,
             format!(
                 "{}, {} ({}).",
-                crate::text::sentence_start(&action.place(f)),
+                crate::basics::text::sentence_start(&action.place(f)),
                 describe(worst),
                 th.heat.boiling_basis
             ),
@@ -780,7 +782,7 @@ fn heat_findings(th: &Thresholds, end: &HeatReport, worst: &HeatReport) -> Vec<F
     if sev <= Severity::Clear {
         return Vec::new();
     }
-    let fixed = crate::text::fixed;
+    let fixed = crate::basics::text::fixed;
     vec![Finding::chemistry(
         sev,
         "mixture-heats-up",
@@ -804,9 +806,9 @@ fn heat_findings(th: &Thresholds, end: &HeatReport, worst: &HeatReport) -> Vec<F
 fn room_findings(
     cat: &Catalog,
     th: &Thresholds,
-    gases: &[crate::room::RoomGasReport],
-    alone: &[crate::room::RoomGasReport],
-    room: &crate::room::RoomSettings,
+    gases: &[crate::pour::room::RoomGasReport],
+    alone: &[crate::pour::room::RoomGasReport],
+    room: &crate::pour::room::RoomSettings,
     closure: Closure,
     exposed: bool,
 ) -> Vec<Finding> {
@@ -814,7 +816,7 @@ fn room_findings(
     let mut out = Vec::new();
     for g in gases {
         let before = alone.iter().find(|a| a.formula == g.formula);
-        let pour_adds = |now: f64, then: fn(&crate::room::RoomGasReport) -> f64| {
+        let pour_adds = |now: f64, then: fn(&crate::pour::room::RoomGasReport) -> f64| {
             before.is_none_or(|b| now > factor * then(b))
         };
         let asphyxiant = cat.asphyxiant_only(&g.formula);
@@ -854,13 +856,13 @@ fn room_findings(
                 format!(
                     "Worst case for the room ({}): {} mol of {} ({} mol from the headspace, {} mol evaporated) would bring a {} m3 room to {}, {} its {level}.",
                     room.worst_case,
-                    crate::text::fixed(g.headspace_mol + g.evaporated_mol, 3),
+                    crate::basics::text::fixed(g.headspace_mol + g.evaporated_mol, 3),
                     g.formula,
-                    crate::text::fixed(g.headspace_mol, 3),
-                    crate::text::fixed(g.evaporated_mol, 3),
+                    crate::basics::text::fixed(g.headspace_mol, 3),
+                    crate::basics::text::fixed(g.evaporated_mol, 3),
                     room.volume_m3,
-                    crate::assess::fmt_ppm(g.worst_case_room_ppm),
-                    crate::assess::fmt_times(ratio),
+                    crate::judge::assess::fmt_ppm(g.worst_case_room_ppm),
+                    crate::judge::assess::fmt_times(ratio),
                 ),
                 if asphyxiant {
                     "Pour slowly in a ventilated place and leave the vessel vented until the gas stops."
@@ -893,11 +895,11 @@ fn room_findings(
                 if exposed { "Open to the room," } else { "If the container is opened," },
                 g.formula,
                 room.surface_basis,
-                crate::text::fixed(g.emission_mg_per_min, 1),
+                crate::basics::text::fixed(g.emission_mg_per_min, 1),
                 room.air_changes_per_hour,
                 room.volume_m3,
-                crate::assess::fmt_ppm(g.steady_state_ppm),
-                crate::assess::fmt_times(css_review),
+                crate::judge::assess::fmt_ppm(g.steady_state_ppm),
+                crate::judge::assess::fmt_times(css_review),
                 when(g.minutes_to_short_term),
                 when(g.minutes_to_idlh)
             ),
@@ -1030,8 +1032,8 @@ fn batch_report(cat: &Catalog, b: &Batch, is_container: bool) -> BatchReport {
     }
 }
 
-fn format_amount(a: crate::quantity::Amount) -> String {
-    use crate::quantity::Amount::*;
+fn format_amount(a: crate::basics::quantity::Amount) -> String {
+    use crate::basics::quantity::Amount::*;
     match a {
         MolPerLitre(v) => format!("{v} mol/L"),
         GramPerLitre(v) => format!("{v} g/L"),
@@ -1068,7 +1070,7 @@ fn assumptions(
         "Heat: proton transfers by Hess's law from each step's ionization enthalpy (25 °C values, no heat-capacity change), plus each concentrated reagent's heat of dilution from the water it had to the water of the mixture (integral heats of dilution); the mixture's mass from the density tables, warming as water does (4.18 J/(g K)) from the volume-weighted mean of the two temperatures, re-solved at the temperature it reaches.".to_string(),
         format!(
             "Boiling: the liquid boils where its vapour pressure (water by its activity from the ions, Raoult's law in dilute mixtures; dissolved gases from the speciation; solvents by Henry's law or as a layer of their own) reaches the {} kPa over it; close to boiling within {} K of that.",
-            crate::text::fixed(cat.physical.p_std / 1e3, 1),
+            crate::basics::text::fixed(cat.physical.p_std / 1e3, 1),
             th.heat.boiling_margin_k
         ),
         "Pressure in a sealed vessel: the gases the liquid gives off, plus the warming of the air sealed in at the start and the change of water's vapour pressure; vented and open vessels hold no pressure and the report gives the litres vented.".to_string(),
@@ -1083,35 +1085,37 @@ fn assumptions(
     }
     for b in [container, stream] {
         for c in &b.components {
-            out.extend(crate::batch::beyond_solubility(cat, c, b.volume_l));
+            out.extend(crate::pour::batch::beyond_solubility(cat, c, b.volume_l));
         }
         if !b.temperature_given && opts.temperature_k.is_none() {
             out.push(format!("`{}` has no temperature: 25 °C assumed.", b.name));
         }
         let comp = b.composition(cat);
-        let uses_ww = b
-            .components
-            .iter()
-            .any(|c| matches!(c.amount, crate::quantity::Amount::PercentWeightPerWeight(_)));
+        let uses_ww = b.components.iter().any(|c| {
+            matches!(
+                c.amount,
+                crate::basics::quantity::Amount::PercentWeightPerWeight(_)
+            )
+        });
         if uses_ww && !b.density_given {
             out.push(format!(
                 "`{}` gives % w/w amounts: its density, {} g/mL, comes from the density tables of its solutes.",
                 b.name,
-                crate::text::fixed(comp.density_g_per_ml, 3)
+                crate::basics::text::fixed(comp.density_g_per_ml, 3)
             ));
         }
         if comp.untabled_share > UNTABLED_NOTE_SHARE && !b.density_given {
             out.push(format!(
                 "`{}`: {} % of its mass is in solutes with no density table, taken to occupy the volume of their neat liquid or of water; its mass and water are estimates.",
                 b.name,
-                crate::text::fixed(comp.untabled_share * 100.0, 0)
+                crate::basics::text::fixed(comp.untabled_share * 100.0, 0)
             ));
         }
         if comp.water_g < MOSTLY_WATER_KG_PER_L * 1e3 * b.volume_l && b.volume_l > 0.0 {
             out.push(format!(
                 "`{}` holds {} kg of water per litre: the liquid is mostly something else, and the aqueous model (Henry's law, pKa, activity) is stretched; treat its figures as rough.",
                 b.name,
-                crate::text::fixed(comp.water_g / 1e3 / b.volume_l, 2)
+                crate::basics::text::fixed(comp.water_g / 1e3 / b.volume_l, 2)
             ));
         }
     }

@@ -1,58 +1,58 @@
 //! `offgas demo`: the bundled scenario, a fictional building's waste checks.
 
-use crate::Format;
+use super::Format;
 use anyhow::{anyhow, Result};
-use offgas::batch::Batch;
 use offgas::check::{check, CheckOptions};
+use offgas::pour::batch::Batch;
 use serde::Deserialize;
 
-const SCENARIO: &str = include_str!("../data/demo/scenario.yaml");
+const SCENARIO: &str = include_str!("../../data/demo/scenario.yaml");
 const PROCEDURE: (&str, &str) = (
     "data/demo/procedure-descale-tank.yaml",
-    include_str!("../data/demo/procedure-descale-tank.yaml"),
+    include_str!("../../data/demo/procedure-descale-tank.yaml"),
 );
 
 /// The demo's batch files, embedded so that `offgas demo` runs from anywhere.
 const FILES: &[(&str, &str)] = &[
     (
         "carboy-basic-rinse.yaml",
-        include_str!("../data/demo/carboy-basic-rinse.yaml"),
+        include_str!("../../data/demo/carboy-basic-rinse.yaml"),
     ),
     (
         "carboy-cyanide-plating.yaml",
-        include_str!("../data/demo/carboy-cyanide-plating.yaml"),
+        include_str!("../../data/demo/carboy-cyanide-plating.yaml"),
     ),
     (
         "carboy-acid-etch.yaml",
-        include_str!("../data/demo/carboy-acid-etch.yaml"),
+        include_str!("../../data/demo/carboy-acid-etch.yaml"),
     ),
     (
         "carboy-ammonium-buffer.yaml",
-        include_str!("../data/demo/carboy-ammonium-buffer.yaml"),
+        include_str!("../../data/demo/carboy-ammonium-buffer.yaml"),
     ),
     (
         "stream-citrate-rinse.yaml",
-        include_str!("../data/demo/stream-citrate-rinse.yaml"),
+        include_str!("../../data/demo/stream-citrate-rinse.yaml"),
     ),
     (
         "stream-acid-descale.yaml",
-        include_str!("../data/demo/stream-acid-descale.yaml"),
+        include_str!("../../data/demo/stream-acid-descale.yaml"),
     ),
     (
         "stream-sulfide-strip.yaml",
-        include_str!("../data/demo/stream-sulfide-strip.yaml"),
+        include_str!("../../data/demo/stream-sulfide-strip.yaml"),
     ),
     (
         "stream-caustic-wash.yaml",
-        include_str!("../data/demo/stream-caustic-wash.yaml"),
+        include_str!("../../data/demo/stream-caustic-wash.yaml"),
     ),
     (
         "stream-copper-cyanide-rinse.yaml",
-        include_str!("../data/demo/stream-copper-cyanide-rinse.yaml"),
+        include_str!("../../data/demo/stream-copper-cyanide-rinse.yaml"),
     ),
     (
         "stream-ferrocyanide-rinse.yaml",
-        include_str!("../data/demo/stream-ferrocyanide-rinse.yaml"),
+        include_str!("../../data/demo/stream-ferrocyanide-rinse.yaml"),
     ),
 ];
 
@@ -95,9 +95,9 @@ fn expected_stops(scenario: &Scenario) -> usize {
 }
 
 pub fn run(format: Format) -> Result<u8> {
-    let cat = crate::load_catalog()?;
-    let th = crate::load_thresholds(None)?;
-    let rules = crate::rules_cmd::load(cat, None)?;
+    let cat = super::load_catalog()?;
+    let th = super::load_thresholds(None)?;
+    let rules = super::rules::load(cat, None)?;
     let scenario: Scenario = serde_yaml::from_str(SCENARIO)?;
     let mut surprises = Vec::new();
     let mut out = String::new();
@@ -136,7 +136,7 @@ pub fn run(format: Format) -> Result<u8> {
                     c.expect,
                     c.why.trim()
                 ));
-                out.push_str(&crate::render(&report, format, false)?);
+                out.push_str(&super::render(&report, format, false)?);
             }
         }
     }
@@ -173,8 +173,8 @@ pub fn run(format: Format) -> Result<u8> {
                 PROCEDURE.0
             ));
             out.push_str(&match format {
-                Format::Markdown => offgas::sheet::procedure_markdown(&sheet),
-                _ => offgas::sheet::procedure_table(&sheet),
+                Format::Markdown => offgas::output::sheet::procedure_markdown(&sheet),
+                _ => offgas::output::sheet::procedure_table(&sheet),
             });
         }
     }
@@ -204,7 +204,7 @@ pub fn run(format: Format) -> Result<u8> {
             }
         ));
     }
-    crate::print(&out)?;
+    super::print(&out)?;
     if !surprises.is_empty() {
         return Err(anyhow!(
             "the demo did not come out as expected: {}",
