@@ -407,7 +407,7 @@ pub(crate) fn render_to(
         Format::Table => check_table(report, view(all_pairs, to_terminal)),
         Format::Markdown => check_markdown(report, view(all_pairs, to_terminal)),
         Format::Json => serde_json::to_string_pretty(report)? + "\n",
-        Format::Html => offgas::output::html::check_html(report, all_pairs),
+        Format::Html => offgas::output::check_page::check_html(report, all_pairs),
     })
 }
 

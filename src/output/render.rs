@@ -730,7 +730,7 @@ pub fn closing_lists(assumptions: &[String], cautions: &[String], style: ListSty
             ListStyle::Html => {
                 let _ = writeln!(out, "<h2>{title}</h2><ul>");
                 for i in items {
-                    let _ = writeln!(out, "<li>{}</li>", crate::output::html::prose(i));
+                    let _ = writeln!(out, "<li>{}</li>", crate::output::page::prose(i));
                 }
                 let _ = writeln!(out, "</ul>");
             }

@@ -1,7 +1,7 @@
 //! The approval sheet of a procedure: a terminal table, markdown, or one self-contained
 //! HTML page that prints on A4 and Letter. Layout only; the numbers come from the report.
 
-use crate::output::html::{esc, prose};
+use crate::output::page::{esc, prose};
 use crate::procedure::run::{ProcedureReport, StepReport};
 use crate::report::{Severity, StateReport};
 use comfy_table::{presets, ContentArrangement, Table};
@@ -352,5 +352,5 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         );
     }
     let _ = writeln!(out, "</div>");
-    crate::output::html::page(&format!("Procedure check: {}", r.name), SHEET_STYLE, &out)
+    crate::output::page::page(&format!("Procedure check: {}", r.name), SHEET_STYLE, &out)
 }

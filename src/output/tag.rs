@@ -3,7 +3,7 @@
 
 use crate::basics::text::fixed;
 use crate::catalog::ghs::GhsPart;
-use crate::output::html::{esc, page};
+use crate::output::page::{esc, page};
 use crate::record::tag::{CarboyReport, Constituent, HistoryLine, WasteTag, WaterBalance};
 use crate::record::EntryKind;
 use comfy_table::{presets, Cell, CellAlignment, ContentArrangement, Table};

@@ -3,7 +3,7 @@
 
 use super::audit::{AuditCounts, AuditReport, CabinetMatrix, Level};
 use super::counted;
-use crate::output::html::{esc, prose};
+use crate::output::page::{esc, prose};
 use crate::report::Severity;
 use std::fmt::Write;
 
@@ -334,7 +334,7 @@ pub fn audit_html(r: &AuditReport) -> String {
         &r.cautions,
         crate::output::render::ListStyle::Html,
     ));
-    crate::output::html::page(&format!("Storeroom audit: {}", r.name), AUDIT_STYLE, &out)
+    crate::output::page::page(&format!("Storeroom audit: {}", r.name), AUDIT_STYLE, &out)
 }
 
 /// Markdown cells hold no line breaks or pipes.
