@@ -82,9 +82,6 @@ fn file(name: &str) -> Result<&'static str> {
         .ok_or_else(|| anyhow!("demo file {name} is not bundled (a build defect)"))
 }
 
-/// Runs every check of the scenario and prints each report. Exits 0 when every verdict is
-/// the one the scenario expects (the demo is a demonstration, not a check of real waste),
-/// and 1 when one is not, since that means the bundled data or engine changed.
 /// How many of the scenario's checks are expected to stop.
 fn expected_stops(scenario: &Scenario) -> usize {
     scenario
@@ -94,14 +91,26 @@ fn expected_stops(scenario: &Scenario) -> usize {
         .count()
 }
 
+/// What the demo needs from the bundled data.
+struct Bundled {
+    cat: &'static offgas::catalog::Catalog,
+    th: offgas::judge::thresholds::Thresholds,
+    rules: offgas::judge::rules::RuleSet,
+}
+
+/// Runs every check of the scenario and prints each report. Exits 0 when every verdict is
+/// the one the scenario expects (the demo is a demonstration, not a check of real waste),
+/// and 1 when one is not, since that means the bundled data or engine changed.
 pub fn run(format: Format) -> Result<u8> {
     let cat = super::load_catalog()?;
-    let th = super::load_thresholds(None)?;
-    let rules = super::rules::load(cat, None)?;
+    let data = Bundled {
+        cat,
+        th: super::load_thresholds(None)?,
+        rules: super::rules::load(cat, None)?,
+    };
     let scenario: Scenario = serde_yaml::from_str(SCENARIO)?;
     let mut surprises = Vec::new();
     let mut out = String::new();
-    let mut json_reports = Vec::new();
     if !matches!(format, Format::Json) {
         out.push_str(&format!(
             "{}\n\n{}\n",
@@ -109,12 +118,60 @@ pub fn run(format: Format) -> Result<u8> {
             scenario.story.trim()
         ));
     }
+    let json_reports = run_checks(&data, &scenario, format, &mut out, &mut surprises)?;
+    let (sheet, fixed) = run_procedure(&data)?;
+    if sheet.severity != offgas::report::Severity::Stop || !fixed {
+        surprises
+            .push("the demo procedure should stop, with a computed fix that makes it clear".into());
+    }
+    match format {
+        Format::Json => {
+            out = serde_json::to_string_pretty(&serde_json::json!({
+                "checks": json_reports,
+                "procedure": sheet,
+            }))? + "\n";
+        }
+        _ => {
+            out.push_str(&format!(
+                "\n{}\nDemo procedure: {} (`offgas procedure {}`; add --format html for the printable sheet)\n\n",
+                "=".repeat(78),
+                sheet.name,
+                PROCEDURE.0
+            ));
+            out.push_str(&match format {
+                Format::Markdown => offgas::output::sheet::procedure_markdown(&sheet),
+                _ => offgas::output::sheet::procedure_table(&sheet),
+            });
+            out.push_str(&summary(&scenario, &surprises, &sheet, fixed));
+        }
+    }
+    super::print(&out)?;
+    if !surprises.is_empty() {
+        return Err(anyhow!(
+            "the demo did not come out as expected: {}",
+            surprises.join("; ")
+        ));
+    }
+    Ok(0)
+}
+
+/// Each check of the scenario: its report laid out into `out` (or kept for one JSON
+/// document, returned), and a line in `surprises` where the verdict is not the expected one.
+fn run_checks(
+    data: &Bundled,
+    scenario: &Scenario,
+    format: Format,
+    out: &mut String,
+    surprises: &mut Vec<String>,
+) -> Result<Vec<serde_json::Value>> {
+    let cat = data.cat;
+    let mut json_reports = Vec::new();
     for (i, c) in scenario.checks.iter().enumerate() {
         let path = |n: &str| format!("data/demo/{n}");
         let a = Batch::parse(cat, &path(&c.container), file(&c.container)?)
             .map_err(|e| anyhow!("{e}"))?;
         let b = Batch::parse(cat, &path(&c.add), file(&c.add)?).map_err(|e| anyhow!("{e}"))?;
-        let report = check(cat, &th, &rules, &a, &b, &CheckOptions::default())
+        let report = check(cat, &data.th, &data.rules, &a, &b, &CheckOptions::default())
             .map_err(|e| anyhow!("{e}"))?;
         if report.severity.word() != c.expect {
             surprises.push(format!(
@@ -140,13 +197,17 @@ pub fn run(format: Format) -> Result<u8> {
             }
         }
     }
-    // The procedure: an unsafe step, and the computed fix that makes it clear.
-    let procedure = offgas::procedure::Procedure::parse(cat, PROCEDURE.0, PROCEDURE.1)
+    Ok(json_reports)
+}
+
+/// The procedure: an unsafe step, and whether a computed fix makes the whole of it clear.
+fn run_procedure(data: &Bundled) -> Result<(offgas::procedure::run::ProcedureReport, bool)> {
+    let procedure = offgas::procedure::Procedure::parse(data.cat, PROCEDURE.0, PROCEDURE.1)
         .map_err(|e| anyhow!("{e}"))?;
     let engine = offgas::procedure::run::Engine {
-        cat,
-        th: &th,
-        rules: &rules,
+        cat: data.cat,
+        th: &data.th,
+        rules: &data.rules,
     };
     let mut sheet = engine.run(&procedure).map_err(|e| anyhow!("{e}"))?;
     sheet.fixes = offgas::procedure::fix::fixes(&engine, &procedure, &sheet);
@@ -154,62 +215,42 @@ pub fn run(format: Format) -> Result<u8> {
         .fixes
         .iter()
         .any(|f| f.procedure_severity_with_fix == offgas::report::Severity::Clear);
-    if sheet.severity != offgas::report::Severity::Stop || !fixed {
-        surprises
-            .push("the demo procedure should stop, with a computed fix that makes it clear".into());
-    }
-    match format {
-        Format::Json => {
-            out = serde_json::to_string_pretty(&serde_json::json!({
-                "checks": json_reports,
-                "procedure": sheet,
-            }))? + "\n";
+    Ok((sheet, fixed))
+}
+
+/// The closing line: how many checks came out as the scenario expects.
+fn summary(
+    scenario: &Scenario,
+    surprises: &[String],
+    sheet: &offgas::procedure::run::ProcedureReport,
+    fixed: bool,
+) -> String {
+    let stops = expected_stops(scenario);
+    format!(
+        "\n{}\n{} of {} demo checks came out as the scenario expects{}, and the procedure {}.{}\n",
+        "=".repeat(78),
+        scenario.checks.len()
+            - surprises
+                .iter()
+                .filter(|s| !s.starts_with("the demo procedure"))
+                .count(),
+        scenario.checks.len(),
+        if stops > 0 {
+            format!(
+                " ({stops} of them stop: here stop is the expected answer, the scenario's dangerous pours)"
+            )
+        } else {
+            String::new()
+        },
+        if fixed && sheet.severity == offgas::report::Severity::Stop {
+            "stops at the step the scenario expects, with a computed fix that clears it"
+        } else {
+            "did not come out as expected"
+        },
+        if surprises.is_empty() {
+            " The demo exits 0."
+        } else {
+            ""
         }
-        _ => {
-            out.push_str(&format!(
-                "\n{}\nDemo procedure: {} (`offgas procedure {}`; add --format html for the printable sheet)\n\n",
-                "=".repeat(78),
-                sheet.name,
-                PROCEDURE.0
-            ));
-            out.push_str(&match format {
-                Format::Markdown => offgas::output::sheet::procedure_markdown(&sheet),
-                _ => offgas::output::sheet::procedure_table(&sheet),
-            });
-        }
-    }
-    if !matches!(format, Format::Json) {
-        let stops = expected_stops(&scenario);
-        out.push_str(&format!(
-            "\n{}\n{} of {} demo checks came out as the scenario expects{}, and the procedure {}.{}\n",
-            "=".repeat(78),
-            scenario.checks.len() - surprises.iter().filter(|s| !s.starts_with("the demo procedure")).count(),
-            scenario.checks.len(),
-            if stops > 0 {
-                format!(
-                    " ({stops} of them stop: here stop is the expected answer, the scenario's dangerous pours)"
-                )
-            } else {
-                String::new()
-            },
-            if fixed && sheet.severity == offgas::report::Severity::Stop {
-                "stops at the step the scenario expects, with a computed fix that clears it"
-            } else {
-                "did not come out as expected"
-            },
-            if surprises.is_empty() {
-                " The demo exits 0."
-            } else {
-                ""
-            }
-        ));
-    }
-    super::print(&out)?;
-    if !surprises.is_empty() {
-        return Err(anyhow!(
-            "the demo did not come out as expected: {}",
-            surprises.join("; ")
-        ));
-    }
-    Ok(0)
+    )
 }

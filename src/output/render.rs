@@ -336,6 +336,26 @@ pub fn room_cells(r: &CheckReport) -> Vec<Vec<String>> {
 /// The terminal view: verdict and reasons first, then gases, states, pairs, cautions.
 pub fn check_table(r: &CheckReport, v: View) -> String {
     let mut out = String::new();
+    verdict_text(&mut out, r, v);
+    course_text(&mut out, r, v);
+    gas_text(&mut out, r);
+    states_text(&mut out, r);
+    for line in bound_lines(r) {
+        let _ = writeln!(out, "  {line}");
+    }
+    out.push_str(&heat_and_room_text(r, ListStyle::Terminal));
+
+    pairs_text(&mut out, r, v);
+    out.push_str(&closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        ListStyle::Terminal,
+    ));
+    out
+}
+
+/// The header, the verdict and every finding, the reason that decides first.
+fn verdict_text(out: &mut String, r: &CheckReport, v: View) {
     let _ = writeln!(
         out,
         "offgas check: {} ({}) into {} ({})",
@@ -352,6 +372,10 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     for f in shown {
         let _ = writeln!(out, "{}", finding_line(f, v.color));
     }
+}
+
+/// Each gas's course along the pour as written, one line each.
+fn course_text(out: &mut String, r: &CheckReport, v: View) {
     let courses = course_lines(r, v.charset);
     if !courses.is_empty() {
         let _ = writeln!(
@@ -362,7 +386,10 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
             let _ = writeln!(out, "{c}");
         }
     }
+}
 
+/// The headspace gases with their levels.
+fn gas_text(out: &mut String, r: &CheckReport) {
     let _ = writeln!(out, "\nGas in the headspace (ppm by volume at 1 atm)");
     for note in gas_table_notes(r) {
         let _ = writeln!(out, "  {note}");
@@ -383,7 +410,10 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
         }
         let _ = writeln!(out, "{t}");
     }
+}
 
+/// The liquid before, at the end, at the worst point of each order.
+fn states_text(out: &mut String, r: &CheckReport) {
     let _ = writeln!(out, "\nStates of the liquid");
     let mut t = table();
     t.set_header(vec![
@@ -431,12 +461,10 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
         );
     }
     let _ = writeln!(out, "{t}");
+}
 
-    for line in bound_lines(r) {
-        let _ = writeln!(out, "  {line}");
-    }
-    out.push_str(&heat_and_room_text(r, ListStyle::Terminal));
-
+/// The proton transfers that explain the result.
+fn pairs_text(out: &mut String, r: &CheckReport, v: View) {
     let pairs = shown_pairs(r, v.all_pairs);
     let _ = writeln!(
         out,
@@ -452,12 +480,6 @@ pub fn check_table(r: &CheckReport, v: View) -> String {
     if !pairs.is_empty() {
         out.push_str(&grid(ListStyle::Terminal, &PAIR_HEADS, &pair_cells(&pairs)));
     }
-    out.push_str(&closing_lists(
-        &r.assumptions,
-        &r.cautions,
-        ListStyle::Terminal,
-    ));
-    out
 }
 
 /// What metal complexes hold of each ligand, and the solids that precipitated, at the end and

@@ -1,7 +1,7 @@
 //! The approval sheet of a procedure: a terminal table, markdown, or one self-contained
 //! HTML page that prints on A4 and Letter. Layout only; the numbers come from the report.
 
-use crate::output::page::{esc, prose};
+use crate::output::page::{esc, prose, severity_class};
 use crate::procedure::run::{ProcedureReport, StepReport};
 use crate::report::{Severity, StateReport};
 use comfy_table::{presets, ContentArrangement, Table};
@@ -259,11 +259,28 @@ fn step_figure(r: &ProcedureReport) -> String {
 /// The sheet as one self-contained HTML page (no external assets).
 pub fn procedure_html(r: &ProcedureReport) -> String {
     let mut out = String::new();
-    let cls = |s: Severity| match s {
-        Severity::Stop => "stop",
-        Severity::Review => "review",
-        _ => "clear",
-    };
+    sheet_head_html(&mut out, r);
+    steps_html(&mut out, r);
+    findings_html(&mut out, r);
+    out.push_str(&crate::output::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::output::render::ListStyle::Html,
+    ));
+    let _ = writeln!(out, "<div class=\"sign\">");
+    for s in &r.sign_off {
+        let _ = writeln!(
+            out,
+            "<div><span>{}:</span><span class=\"line\"></span></div>",
+            esc(s)
+        );
+    }
+    let _ = writeln!(out, "</div>");
+    crate::output::page::page(&format!("Procedure check: {}", r.name), SHEET_STYLE, &out)
+}
+
+/// The title, the verdict, the first step that is not clear and the computed fixes.
+fn sheet_head_html(out: &mut String, r: &ProcedureReport) {
     let _ = writeln!(out, "<h1>Procedure check: {}</h1>", esc(&r.name));
     let _ = writeln!(
         out,
@@ -276,7 +293,7 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
     let _ = writeln!(
         out,
         "<p><span class=\"verdict {}\">Verdict: {}</span></p>",
-        cls(r.severity),
+        severity_class(r.severity),
         r.severity.word().to_uppercase()
     );
     if let Some(p) = &r.first_problem {
@@ -304,6 +321,10 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         }
         let _ = writeln!(out, "</ul>");
     }
+}
+
+/// The plots of the steps and the table of them.
+fn steps_html(out: &mut String, r: &ProcedureReport) {
     let _ = writeln!(out, "<h2>Steps</h2>");
     out.push_str(&step_figure(r));
     let _ = writeln!(out, "<table>\n<thead><tr><th>Step</th><th>What is done</th><th>End</th><th>Worst while adding</th><th>Gases (worst)</th><th>°C after</th><th>Verdict</th></tr></thead>\n<tbody>");
@@ -312,7 +333,7 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         let _ = writeln!(
             out,
             "<tr class=\"{}\"><td>{}. {}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{:.1}</td><td>{}</td></tr>",
-            cls(s.severity),
+            severity_class(s.severity),
             s.number,
             prose(&s.description),
             prose(&s.action),
@@ -324,6 +345,10 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         );
     }
     let _ = writeln!(out, "</tbody>\n</table>");
+}
+
+/// Every finding of review or stop, step by step.
+fn findings_html(out: &mut String, r: &ProcedureReport) {
     let _ = writeln!(out, "<h2>Findings</h2><ul>");
     for s in &r.steps {
         for f in s.findings.iter().filter(|f| f.severity >= Severity::Review) {
@@ -338,19 +363,4 @@ pub fn procedure_html(r: &ProcedureReport) -> String {
         }
     }
     let _ = writeln!(out, "</ul>");
-    out.push_str(&crate::output::render::closing_lists(
-        &r.assumptions,
-        &r.cautions,
-        crate::output::render::ListStyle::Html,
-    ));
-    let _ = writeln!(out, "<div class=\"sign\">");
-    for s in &r.sign_off {
-        let _ = writeln!(
-            out,
-            "<div><span>{}:</span><span class=\"line\"></span></div>",
-            esc(s)
-        );
-    }
-    let _ = writeln!(out, "</div>");
-    crate::output::page::page(&format!("Procedure check: {}", r.name), SHEET_STYLE, &out)
 }
