@@ -87,38 +87,7 @@ pub fn gas_charts(r: &CheckReport) -> Vec<Chart> {
             let hi = values.clone().fold(0.0f64, f64::max);
             // Six decades under the highest value are enough to see the course.
             let lo = values.fold(f64::INFINITY, f64::min).max(hi * 1e-6);
-            let callouts = os
-                .iter()
-                .enumerate()
-                .filter_map(|(i, (o, id, _))| {
-                    let x = o.worst_state.fraction_added;
-                    let y = o
-                        .path
-                        .iter()
-                        .find(|p| p.fraction_added == x)
-                        .and_then(|p| {
-                            p.gases
-                                .iter()
-                                .find(|g| g.formula == f)
-                                .map(|g| g.headspace_ppm)
-                        })?;
-                    Some(Callout {
-                        kind: format!("worst {id}"),
-                        x,
-                        y,
-                        label: format!(
-                            "{} worst: {} ppm at {:.0} %",
-                            if i == 0 {
-                                "as written,"
-                            } else {
-                                "other order,"
-                            },
-                            super::chart::short_number(y),
-                            x * 100.0
-                        ),
-                    })
-                })
-                .collect();
+            let callouts = worst_callouts(&os, f);
             Chart {
                 title: format!("{f} in the headspace along the pour"),
                 width: 760.0,
@@ -129,6 +98,41 @@ pub fn gas_charts(r: &CheckReport) -> Vec<Chart> {
                 levels,
                 callouts,
             }
+        })
+        .collect()
+}
+
+/// Each order's worst point on the chart of gas `f`, ringed and labelled.
+fn worst_callouts(os: &[(&OrderReport, &'static str, &'static str)], f: &str) -> Vec<Callout> {
+    os.iter()
+        .enumerate()
+        .filter_map(|(i, (o, id, _))| {
+            let x = o.worst_state.fraction_added;
+            let y = o
+                .path
+                .iter()
+                .find(|p| p.fraction_added == x)
+                .and_then(|p| {
+                    p.gases
+                        .iter()
+                        .find(|g| g.formula == f)
+                        .map(|g| g.headspace_ppm)
+                })?;
+            Some(Callout {
+                kind: format!("worst {id}"),
+                x,
+                y,
+                label: format!(
+                    "{} worst: {} ppm at {:.0} %",
+                    if i == 0 {
+                        "as written,"
+                    } else {
+                        "other order,"
+                    },
+                    super::chart::short_number(y),
+                    x * 100.0
+                ),
+            })
         })
         .collect()
 }
