@@ -10,7 +10,7 @@ For each pair of batch files (a container and a stream, data/demo by default) it
 * PHREEQC: a fresh Python process per run that does the equivalent job through the
   `phreeqc` package (IPhreeqc): import, load phreeqc.dat, read offgas's data files and the
   two batch files, turn their contents into family and strong-ion totals, build both batches
-  as SOLUTIONs, mix them with MIX at every fraction of offgas's scan (src/path.rs `SCAN`),
+  as SOLUTIONs, mix them with MIX at every fraction of offgas's scan (src/pour/path.rs `SCAN`),
   both orders, each mixture at the volume-weighted temperature of what has met and with a
   fixed-volume GAS_PHASE equal to the container's headspace at that point, and read pH and
   the gases' partial pressures back into Python. N runs.
@@ -50,7 +50,7 @@ from pathlib import Path
 HERE = Path(__file__).resolve().parent
 ROOT = HERE.parent.parent
 DEMO = ROOT / "data" / "demo"
-PATH_RS = ROOT / "src" / "path.rs"
+PATH_RS = ROOT / "src" / "pour" / "path.rs"
 DB = "phreeqc.dat"
 
 # The demo pairs (data/demo/scenario.yaml): name -> (container, stream).
@@ -549,10 +549,10 @@ def main(argv=None) -> int:
                "python": sys.version.split()[0], "cpus": os.cpu_count(),
                "how_counted": HOW_COUNTED, "pairs": []}
         print(f"offgas {built}; PHREEQC {pkg_version('phreeqc')} ({DB} as host, offgas constants); "
-              f"scan from src/path.rs: {len(scan)} points, refinement at most {refine_steps} steps; "
+              f"scan from src/pour/path.rs: {len(scan)} points, refinement at most {refine_steps} steps; "
               f"n = {args.n} per side; {os.cpu_count()} CPUs")
         if args.offgas:
-            print("  (--offgas given: src/path.rs must match the binary's source for the two jobs to be the same)")
+            print("  (--offgas given: src/pour/path.rs must match the binary's source for the two jobs to be the same)")
         for name, container, stream in pairs:
             og_cmd = [str(binary), "check", str(container), "--add", str(stream), "--format", "json"]
             # untimed: results, the agreement check, and warm caches on both sides
