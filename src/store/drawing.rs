@@ -101,26 +101,35 @@ impl Kind {
 }
 
 /// A cell (or a key swatch) at (x, y): the rectangle that carries the data and the
-/// caption, and what is drawn over it (hatch, letter), which takes no pointer events.
-fn cell_shapes(x: f64, y: f64, side: f64, kind: Kind) -> (Rectangle, Group) {
+/// caption, and what is drawn over it (hatch, letter), or None. Both take their stroke
+/// from the group they are put in ([`cells_group`], [`overlay_group`]).
+fn cell_shapes(x: f64, y: f64, side: f64, kind: Kind) -> (Rectangle, Option<Group>) {
     let rect = Rectangle::new()
         .set("x", round(x))
         .set("y", round(y))
         .set("width", side)
         .set("height", side)
         .set("fill", kind.fill())
-        .set("stroke", "#8a8a8a")
-        .set("stroke-width", 0.6)
         .set("data-severity", kind.severity_word());
-    let mut over = Group::new().set("pointer-events", "none");
+    let mut over = Group::new();
     match kind {
         Kind::Finding(s, level, ratio) => {
+            let (_, white) = lightness(s, ratio);
+            if white {
+                // Dark lines would sink into a dark fill.
+                over = over.set("stroke", "#ffffff");
+            }
             if level == Level::Cabinet {
                 for (x1, y1, x2, y2) in hatch_lines(x, y, side, side, 7.0) {
-                    over = over.add(line(x1, y1, x2, y2, INK, 0.9));
+                    over = over.add(
+                        Line::new()
+                            .set("x1", round(x1))
+                            .set("y1", round(y1))
+                            .set("x2", round(x2))
+                            .set("y2", round(y2)),
+                    );
                 }
             }
-            let (_, white) = lightness(s, ratio);
             let letter = if s == Severity::Stop { "S" } else { "R" };
             // A letter on a small plate, so the hatch never crosses it.
             if level == Level::Cabinet {
@@ -130,11 +139,13 @@ fn cell_shapes(x: f64, y: f64, side: f64, kind: Kind) -> (Rectangle, Group) {
                         .set("y", round(y + side / 2.0 - 7.5))
                         .set("width", 13)
                         .set("height", 15)
+                        .set("stroke", "none")
                         .set("fill", kind.fill()),
                 );
             }
             over = over.add(
                 text(x + side / 2.0, y + side / 2.0 + 4.5, letter, "middle")
+                    .set("stroke", "none")
                     .set("font-weight", "bold")
                     .set("fill", if white { "#ffffff" } else { INK }),
             );
@@ -149,9 +160,25 @@ fn cell_shapes(x: f64, y: f64, side: f64, kind: Kind) -> (Rectangle, Group) {
                 1.2,
             ));
         }
-        Kind::Clear | Kind::Itself => {}
+        Kind::Clear | Kind::Itself => return (rect, None),
     }
-    (rect, over)
+    (rect, Some(over))
+}
+
+/// The group cells are drawn in: their outline.
+fn cells_group() -> Group {
+    Group::new()
+        .set("stroke", "#8a8a8a")
+        .set("stroke-width", 0.6)
+}
+
+/// The group drawn over the cells: hatch lines, which take no pointer events, so a cell's
+/// caption shows wherever it is pointed at.
+fn overlay_group() -> Group {
+    Group::new()
+        .set("pointer-events", "none")
+        .set("stroke", INK)
+        .set("stroke-width", 0.9)
 }
 
 /// A spill zone's name within its cabinet: "Tray 1"; a container standing in the cabinet
@@ -219,6 +246,45 @@ fn caption(
     }
 }
 
+/// Most containers a matrix draws whole: a larger cabinet's matrix holds only the
+/// containers in a pair past a review level, so that a page for a large store stays small
+/// enough for a browser.
+pub const MATRIX_MAX: usize = 80;
+
+/// The matrix as drawn: whole, or past [`MATRIX_MAX`] containers only those in a pair that
+/// is not clear (in the same order).
+pub fn drawn_matrix(m: &CabinetMatrix) -> std::borrow::Cow<'_, CabinetMatrix> {
+    use std::borrow::Cow;
+    if m.ids.len() <= MATRIX_MAX {
+        return Cow::Borrowed(m);
+    }
+    let keep: std::collections::BTreeSet<usize> = m.cells.iter().flat_map(|c| [c.i, c.j]).collect();
+    let at: std::collections::HashMap<usize, usize> = keep
+        .iter()
+        .enumerate()
+        .map(|(new, &old)| (old, new))
+        .collect();
+    Cow::Owned(CabinetMatrix {
+        cabinet: m.cabinet.clone(),
+        ids: keep.iter().map(|&k| m.ids[k].clone()).collect(),
+        zones: keep.iter().map(|&k| m.zones[k].clone()).collect(),
+        apart: m
+            .apart
+            .iter()
+            .filter_map(|p| Some([*at.get(&p[0])?, *at.get(&p[1])?]))
+            .collect(),
+        cells: m
+            .cells
+            .iter()
+            .map(|c| MatrixCell {
+                i: at[&c.i],
+                j: at[&c.j],
+                ..c.clone()
+            })
+            .collect(),
+    })
+}
+
 /// The pair matrix of one cabinet: every container on both axes, grouped by spill zone
 /// (each zone's block outlined on the diagonal and named on the left).
 pub fn matrix_svg(m: &CabinetMatrix) -> String {
@@ -277,7 +343,8 @@ pub fn matrix_svg(m: &CabinetMatrix) -> String {
         .iter()
         .map(|p| (p[0].min(p[1]), p[0].max(p[1])))
         .collect();
-    let mut overlays = Vec::new();
+    let mut cells = cells_group();
+    let mut overlays = overlay_group();
     for i in 0..n {
         for j in 0..n {
             let key = (i.min(j), i.max(j));
@@ -305,13 +372,14 @@ pub fn matrix_svg(m: &CabinetMatrix) -> String {
                 }
             }
             rect.append(Title::new(caption(m, i, j, cell, is_apart)));
-            doc.append(rect);
-            overlays.push(over);
+            cells = cells.add(rect);
+            if let Some(o) = over {
+                overlays = overlays.add(o);
+            }
         }
     }
-    for o in overlays {
-        doc.append(o);
-    }
+    doc.append(cells);
+    doc.append(overlays);
     // Each spill zone's own block outlined: the pairs inside it share the zone.
     for &(start, end) in &blocks {
         let (p, s) = (CELL * start as f64, CELL * (end - start) as f64);
@@ -380,13 +448,14 @@ pub fn legend_svg(any_apart: bool) -> String {
     for (k, (id, kind, words)) in items.iter().enumerate() {
         let (x, y) = (8.0, 8.0 + row * k as f64);
         let (rect, over) = cell_shapes(x, y, side, *kind);
-        doc.append(
-            Group::new()
-                .set("class", "swatch")
-                .set("data-class", *id)
-                .add(rect)
-                .add(over),
-        );
+        let mut g = Group::new()
+            .set("class", "swatch")
+            .set("data-class", *id)
+            .add(cells_group().add(rect));
+        if let Some(o) = over {
+            g = g.add(overlay_group().add(o));
+        }
+        doc.append(g);
         doc.append(text(x + side + 8.0, y + side / 2.0 + 4.0, words, "start"));
     }
     // Darker is further past the level: three shades of each.
@@ -395,14 +464,15 @@ pub fn legend_svg(any_apart: bool) -> String {
         let mut x = 8.0;
         for (ratio, label) in [(1.0, "1×"), (10.0, "10×"), (100.0, "100×+")] {
             let (rect, over) = cell_shapes(x, y, side, Kind::Finding(s, Level::Tray, ratio));
-            doc.append(
-                Group::new()
-                    .set("class", "shade")
-                    .set("data-class", s.word())
-                    .set("data-ratio", ratio)
-                    .add(rect)
-                    .add(over),
-            );
+            let mut g = Group::new()
+                .set("class", "shade")
+                .set("data-class", s.word())
+                .set("data-ratio", ratio)
+                .add(cells_group().add(rect));
+            if let Some(o) = over {
+                g = g.add(overlay_group().add(o));
+            }
+            doc.append(g);
             doc.append(text(x + side + 4.0, y + side / 2.0 + 4.0, label, "start"));
             x += side + 50.0;
         }
@@ -754,6 +824,37 @@ mod tests {
         assert_eq!(times(1.44), "1.4×");
         assert_eq!(times(53.2), "53×");
         assert_eq!(times(456173.9), "456,174×");
+    }
+
+    #[test]
+    fn a_large_cabinet_draws_only_its_containers_in_pairs() {
+        let n = MATRIX_MAX + 20;
+        let m = CabinetMatrix {
+            cabinet: "C".into(),
+            ids: (0..n).map(|k| format!("X{k:03}")).collect(),
+            zones: (0..n).map(|k| format!("C / T{}", k / 10)).collect(),
+            apart: vec![],
+            cells: vec![MatrixCell {
+                i: 90,
+                j: 7,
+                severity: Severity::Stop,
+                level: Level::Cabinet,
+                worst_ratio: 12.0,
+                gas: Some("HCN".into()),
+                codes: vec![],
+            }],
+        };
+        let d = drawn_matrix(&m);
+        assert_eq!(d.ids, ["X007", "X090"]);
+        assert_eq!(d.zones, ["C / T0", "C / T9"]);
+        assert_eq!((d.cells[0].i, d.cells[0].j), (1, 0));
+        let small = CabinetMatrix {
+            ids: m.ids[..MATRIX_MAX].to_vec(),
+            zones: m.zones[..MATRIX_MAX].to_vec(),
+            cells: vec![],
+            ..m.clone()
+        };
+        assert_eq!(drawn_matrix(&small).ids.len(), MATRIX_MAX);
     }
 
     #[test]

@@ -237,11 +237,20 @@ pub fn audit_html(r: &AuditReport) -> String {
             drawing::legend_svg(r.cabinets.iter().any(|m| !m.apart.is_empty()))
         );
         for m in &r.cabinets {
+            let _ = writeln!(out, "<h3>{}</h3>", esc(&m.cabinet));
+            let drawn = drawing::drawn_matrix(m);
+            if drawn.ids.len() < m.ids.len() {
+                let _ = writeln!(
+                    out,
+                    "<p>This cabinet holds {} containers, too many to draw every pair; the {} in a pair past a review level are drawn.</p>",
+                    m.ids.len(),
+                    drawn.ids.len()
+                );
+            }
             let _ = writeln!(
                 out,
-                "<h3>{}</h3>\n<div class=\"drawing\">{}</div>",
-                esc(&m.cabinet),
-                drawing::matrix_svg(m)
+                "<div class=\"drawing\">{}</div>",
+                drawing::matrix_svg(&drawn)
             );
         }
     }
