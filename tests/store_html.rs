@@ -374,6 +374,17 @@ fn each_moved_container_is_drawn_leaving_and_arriving() {
                     .next()
                     .unwrap_or_else(|| panic!("{name}: {} not drawn {stage}", m.id));
                 assert_eq!(attr(&chip, "data-state"), state, "{name}: {}", m.id);
+                // And in words, for a printed page.
+                let (class, verb) = if stage == "before" {
+                    ("goes", "goes to")
+                } else {
+                    ("comes", "comes from")
+                };
+                let said = drawing_of(zone)
+                    .select(&sel(&format!("text.{class}")))
+                    .map(|t| t.text().collect::<String>())
+                    .any(|t| t.trim().starts_with(&format!("{} {verb} ", m.id)));
+                assert!(said, "{name}: {} {verb} ...", m.id);
                 assert_eq!(attr(&chip, "data-zone"), zone.to_string());
             }
         }

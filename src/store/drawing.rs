@@ -710,8 +710,31 @@ fn chip(x: f64, y: f64, w: f64, id: &str, state: ChipState, title: &str, zone: &
     g
 }
 
+/// The two ends of a move without the levels they share: ("Cabinet 1 / Tray 1",
+/// "Cabinet 2 / Tray 1") in the same room.
+fn move_ends(m: &Move) -> (String, String) {
+    let from: Vec<&str> = m.from.split(" / ").collect();
+    let to: Vec<&str> = m.to.split(" / ").collect();
+    let shared = from.iter().zip(&to).take_while(|(a, b)| a == b).count();
+    // Keep at least the last level of each.
+    let k = shared.min(from.len() - 1).min(to.len() - 1);
+    (from[k..].join(" / "), to[k..].join(" / "))
+}
+
+/// Words cut at the front to fit a width, with an ellipsis.
+fn fit(words: &str, width: f64) -> String {
+    let most = (width / (CHAR * 0.95)) as usize;
+    let n = words.chars().count();
+    if n <= most {
+        words.to_string()
+    } else {
+        format!("…{}", words.chars().skip(n + 1 - most).collect::<String>())
+    }
+}
+
 /// A cabinet that a move touches, before and after the moves, side by side.
 pub fn moves_svg(c: &CabinetChange, moves: &[Move]) -> String {
+    let mut doc_words: Vec<(f64, f64, String, &str)> = Vec::new();
     let chip_w = chip_width(c);
     let per_row = chips_per_row(chip_w);
     let zones_h = |zs: &[ZoneContents]| {
@@ -720,7 +743,31 @@ pub fn moves_svg(c: &CabinetChange, moves: &[Move]) -> String {
             .sum::<f64>()
     };
     let body = zones_h(&c.before).max(zones_h(&c.after));
-    let key_y = 30.0 + body + 12.0;
+    // Where each container goes and comes from, in words (a printed page has no captions).
+    let holds = |zs: &[ZoneContents], zone: &str| zs.iter().any(|z| z.zone == zone);
+    let goes: Vec<String> = moves
+        .iter()
+        .filter(|m| holds(&c.before, &m.from))
+        .map(|m| format!("{} goes to {}", m.id, move_ends(m).1))
+        .collect();
+    let comes: Vec<String> = moves
+        .iter()
+        .filter(|m| holds(&c.after, &m.to))
+        .map(|m| format!("{} comes from {}", m.id, move_ends(m).0))
+        .collect();
+    let words_y = 30.0 + body + 6.0;
+    for (k, w) in goes.iter().enumerate() {
+        doc_words.push((8.0, words_y + 16.0 * k as f64, w.clone(), "goes"));
+    }
+    for (k, w) in comes.iter().enumerate() {
+        doc_words.push((
+            8.0 + PANEL_W + MIDDLE,
+            words_y + 16.0 * k as f64,
+            w.clone(),
+            "comes",
+        ));
+    }
+    let key_y = words_y + 16.0 * goes.len().max(comes.len()) as f64 + 14.0;
     let width = 8.0 + 2.0 * PANEL_W + MIDDLE;
     let height = key_y + CHIP_H + 10.0;
     let mut doc = root(width, height, "moves");
@@ -736,6 +783,9 @@ pub fn moves_svg(c: &CabinetChange, moves: &[Move]) -> String {
     doc.append(panel(c, &c.before, false, moves, 8.0, chip_w));
     let right = 8.0 + PANEL_W + MIDDLE;
     doc.append(panel(c, &c.after, true, moves, right, chip_w));
+    for (x, y, w, class) in doc_words {
+        doc.append(text(x, y + 12.0, &fit(&w, PANEL_W - 8.0), "start").set("class", class));
+    }
     // An arrow from before to after.
     let (ax, ay) = (8.0 + PANEL_W + 2.0, 30.0 + body / 2.0);
     doc.append(line(ax, ay, ax + MIDDLE - 18.0, ay, INK, 2.0));
@@ -855,6 +905,24 @@ mod tests {
             ..m.clone()
         };
         assert_eq!(drawn_matrix(&small).ids.len(), MATRIX_MAX);
+    }
+
+    #[test]
+    fn a_move_is_named_by_the_levels_it_changes() {
+        let m = Move {
+            id: "X".into(),
+            from: "B / R / Cabinet 1 / Tray 1".into(),
+            to: "B / R / Cabinet 2 / Tray 1".into(),
+        };
+        assert_eq!(
+            move_ends(&m),
+            ("Cabinet 1 / Tray 1".into(), "Cabinet 2 / Tray 1".into())
+        );
+        let m = Move {
+            to: "B / R / Cabinet 1 / Tray 2".into(),
+            ..m
+        };
+        assert_eq!(move_ends(&m), ("Tray 1".into(), "Tray 2".into()));
     }
 
     #[test]
