@@ -23,6 +23,10 @@ fn mark(s: Severity, level: Level) -> char {
 fn matrix_text(m: &CabinetMatrix) -> String {
     let n = m.ids.len();
     let mut grid = vec![vec!['.'; n]; n];
+    for p in &m.apart {
+        grid[p[0]][p[1]] = '-';
+        grid[p[1]][p[0]] = '-';
+    }
     for c in &m.cells {
         let ch = mark(c.severity, c.level);
         grid[c.i][c.j] = ch;
@@ -137,6 +141,9 @@ pub fn audit_table(r: &AuditReport) -> String {
             m.cabinet
         );
         if m.ids.len() <= TERMINAL_MATRIX_MAX {
+            if !m.apart.is_empty() {
+                let _ = writeln!(out, "  (-: not paired, different spill zones)");
+            }
             out.push_str(&matrix_text(m));
         } else {
             let _ = writeln!(
