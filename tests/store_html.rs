@@ -48,6 +48,10 @@ fn mixed_shelf() -> Inventory {
 
 /// The audit of `inv`, with the suggested moves when `suggest` is set.
 fn audit(inv: &Inventory, suggest: bool) -> AuditReport {
+    audit_with(inv, suggest, true)
+}
+
+fn audit_with(inv: &Inventory, suggest: bool, cabinet_level: bool) -> AuditReport {
     let th = offgas::embedded::thresholds().unwrap();
     let rules = offgas::embedded::rules(catalog()).unwrap();
     let auditor = Auditor {
@@ -56,7 +60,7 @@ fn audit(inv: &Inventory, suggest: bool) -> AuditReport {
         rules: &rules,
         settings: AuditSettings {
             spill_area_m2: 0.25,
-            cabinet_level: true,
+            cabinet_level,
         },
     };
     let mut r = auditor.audit(inv, &|_, _| {});
@@ -65,7 +69,7 @@ fn audit(inv: &Inventory, suggest: bool) -> AuditReport {
         r.suggestion = Some(offgas::store::suggest::suggest(
             inv,
             &judge,
-            true,
+            cabinet_level,
             th.storeroom.spare_places_per_tray,
         ));
     }
@@ -445,4 +449,42 @@ fn cabinets_with_no_finding_are_named_as_clear() {
     let demo = audit(&demo_store(), false);
     assert!(demo.clear_cabinets.is_empty());
     assert!(!offgas::store::view::audit_html(&demo).contains("class=\"clear-cabinets\""));
+}
+
+#[test]
+fn pairs_across_spill_zones_are_drawn_as_not_paired_when_only_spill_zones_are_paired() {
+    let inv = mixed_shelf();
+    let r = audit_with(&inv, false, false);
+    let page = offgas::store::view::audit_html(&r);
+    let doc = Html::parse_document(&page);
+    assert!(doc.errors.is_empty(), "{:?}", doc.errors);
+    let m = &r.cabinets[0];
+    assert_eq!(
+        m.ids.iter().cloned().collect::<BTreeSet<_>>(),
+        containers_in(&inv, &m.cabinet),
+        "every container, paired or not"
+    );
+    let svg = matrix(&doc, &m.cabinet);
+    let mut apart = 0;
+    for c in svg.select(&sel("rect.cell")) {
+        let (i, j) = (num(&c, "data-i") as usize, num(&c, "data-j") as usize);
+        let title: String = c.select(&sel("title")).flat_map(|t| t.text()).collect();
+        if i != j && m.zones[i] != m.zones[j] {
+            apart += 1;
+            assert_eq!(attr(&c, "data-severity"), "not-paired", "{title}");
+            assert!(title.contains("not paired"), "{title}");
+        } else if i != j {
+            assert_ne!(attr(&c, "data-severity"), "not-paired", "{title}");
+        }
+    }
+    assert_eq!(apart, 2 * m.apart.len());
+    assert!(apart > 0);
+    assert!(doc
+        .select(&sel("svg.legend g.swatch[data-class=\"not-paired\"]"))
+        .next()
+        .is_some());
+    // With every pair of a cabinet paired, no key for it.
+    let all = audit(&inv, false);
+    assert!(all.cabinets.iter().all(|m| m.apart.is_empty()));
+    assert!(!offgas::store::view::audit_html(&all).contains("data-class=\"not-paired\""));
 }
