@@ -246,6 +246,9 @@ fn caption(
     }
 }
 
+/// Past this many containers a matrix names them on the far sides too.
+const REPEAT_LABELS: usize = 16;
+
 /// Most containers a matrix draws whole: a larger cabinet's matrix holds only the
 /// containers in a pair past a review level, so that a page for a large store stays small
 /// enough for a browser.
@@ -293,7 +296,14 @@ pub fn matrix_svg(m: &CabinetMatrix) -> String {
     let short: Vec<String> = m.zones.iter().map(|z| short_zone(&m.cabinet, z)).collect();
     let zone_w = CHAR * short.iter().map(|s| s.chars().count()).max().unwrap_or(4) as f64 + 16.0;
     let (gx, gy) = (zone_w + id_w, id_w + 8.0);
-    let (width, height) = (gx + CELL * n as f64 + 8.0, gy + CELL * n as f64 + 8.0);
+    // A large matrix names its containers on all four sides, so that a row or column
+    // stays named wherever the page is scrolled to.
+    let repeat = n > REPEAT_LABELS;
+    let far = if repeat { id_w } else { 0.0 };
+    let (width, height) = (
+        gx + CELL * n as f64 + 8.0 + far,
+        gy + CELL * n as f64 + 8.0 + far,
+    );
     let mut doc = root(width, height, "matrix");
     doc.assign("aria-label", format!("pair matrix of {}", m.cabinet));
     doc.append(Title::new(format!("Pairs of {}", m.cabinet)));
@@ -317,6 +327,19 @@ pub fn matrix_svg(m: &CabinetMatrix) -> String {
                     format!("rotate(-90 {} {})", round(x), round(gy - 5.0)),
                 ),
         );
+        if repeat {
+            let edge = gx + CELL * n as f64 + 5.0;
+            doc.append(text(edge, y, id, "start").set("class", "row-id-again"));
+            let bottom = gy + CELL * n as f64 + 5.0;
+            doc.append(
+                text(x, bottom, id, "end")
+                    .set("class", "column-id-again")
+                    .set(
+                        "transform",
+                        format!("rotate(-90 {} {})", round(x), round(bottom)),
+                    ),
+            );
+        }
     }
     for &(start, end) in &blocks {
         let (y0, y1) = (gy + CELL * start as f64, gy + CELL * end as f64);

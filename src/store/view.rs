@@ -184,6 +184,7 @@ th, td { padding: 2pt 4pt; font-size: 8.5pt; }
 .stop td:first-child { background: hsl(0, 75%, 62%); } .review td:first-child { background: hsl(42, 90%, 72%); }
 .drawing { overflow-x: auto; max-width: 100%; page-break-inside: avoid; margin: 6pt 0 12pt; }
 .drawing svg { display: block; }
+@media print { .drawing { overflow: visible; } .drawing svg { max-width: 100%; height: auto; } }
 "#;
 
 /// Names of places in a sentence, the first `most` of them.
