@@ -227,7 +227,7 @@ fn caption(
             let why = match &c.gas {
                 Some(g) => format!("{g} at {} its review level", times(c.worst_ratio)),
                 None if !c.codes.is_empty() => format!("by rule {}", c.codes.join(", ")),
-                None => format!("{} its review level", times(c.worst_ratio)),
+                None => format!("at {} its review level", times(c.worst_ratio)),
             };
             format!(
                 "{a} × {b}: {} ({}): {why}",
