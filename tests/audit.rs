@@ -151,7 +151,7 @@ fn the_html_report_is_well_formed_and_self_contained() {
     ] {
         assert!(!html.contains(external), "external asset: {external}");
     }
-    assert_eq!(html.matches("<svg").count(), r.cabinets.len());
+    assert_eq!(html.matches("class=\"matrix\"").count(), r.cabinets.len());
     assert_eq!(html.matches("<svg").count(), html.matches("</svg>").count());
     for tag in ["table", "tbody", "ul", "div"] {
         assert_eq!(

@@ -5,6 +5,7 @@
 //! an SVG chart draws carries its own values in `data-x` and `data-y`, so a test (or a
 //! reader with the page source) can check the picture against the JSON.
 
+pub mod bars;
 pub mod chart;
 pub mod pour;
 pub mod spark;

@@ -77,12 +77,25 @@ pub struct MatrixCell {
     pub severity: Severity,
     pub level: Level,
     pub worst_ratio: f64,
+    /// The gas that decided the verdict, when a gas did.
+    pub gas: Option<String>,
+    /// The finding's codes (the rules or checks that decided it).
+    pub codes: Vec<String>,
 }
 
+/// The pairs of one cabinet (or place where containers meet) that holds a finding. Every
+/// container that meets another there is in `ids`, ordered by spill zone then id, so the
+/// containers of a spill zone stand together; `cells` holds the pairs that are not clear.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct CabinetMatrix {
     pub cabinet: String,
     pub ids: Vec<String>,
+    /// The spill zone of each container in `ids` (same order), levels joined by " / ".
+    pub zones: Vec<String>,
+    /// Pairs of positions in `ids` that cannot meet (different spill zones when containers
+    /// of a cabinet are paired only within their spill zone); left out when there are none.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub apart: Vec<[usize; 2]>,
     pub cells: Vec<MatrixCell>,
 }
 
@@ -108,6 +121,8 @@ pub struct AuditReport {
     pub counts: AuditCounts,
     pub findings: Vec<AuditFinding>,
     pub cabinets: Vec<CabinetMatrix>,
+    /// Cabinets where no pair is past its review level (sorted), levels joined by " / ".
+    pub clear_cabinets: Vec<String>,
     pub suggestion: Option<super::suggest::Suggestion>,
     pub skipped_rows: Vec<serde_json::Value>,
     pub assumptions: Vec<String>,
@@ -763,8 +778,16 @@ pub struct Auditor<'a> {
 /// Two kinds of contents (in order) and the room they meet in.
 pub type PairKey = (usize, usize, Option<usize>);
 
-/// A pair of a cabinet that is not clear: (i, j, level, severity, worst ratio).
-type CabinetHit = (usize, usize, Level, Severity, f64);
+/// A pair of a cabinet that is not clear.
+struct CabinetHit {
+    i: usize,
+    j: usize,
+    level: Level,
+    severity: Severity,
+    worst_ratio: f64,
+    gas: Option<String>,
+    codes: Vec<String>,
+}
 
 /// Pair results by kind, shared with the suggestion search.
 pub struct PairJudge<'a> {
@@ -930,7 +953,7 @@ impl Auditor<'_> {
         };
         let mut shared: HashMap<PairKey, (Arc<str>, Arc<[String]>)> = HashMap::new();
         let mut findings = Vec::new();
-        let mut by_cabinet: HashMap<String, Vec<CabinetHit>> = HashMap::new();
+        let mut by_cabinet: HashMap<usize, Vec<CabinetHit>> = HashMap::new();
         let checked: std::collections::HashSet<(usize, usize)> = to_check.iter().copied().collect();
         for &(i, j, level, cabinet) in &pairs {
             if !checked.contains(&(i, j)) {
@@ -944,10 +967,15 @@ impl Auditor<'_> {
                 .entry(judge.key(i, j))
                 .or_insert_with(|| (Arc::from(o.headline.as_str()), Arc::from(o.codes.clone())))
                 .clone();
-            by_cabinet
-                .entry(places[cabinet].clone())
-                .or_default()
-                .push((i, j, level, o.severity, o.worst_ratio));
+            by_cabinet.entry(cabinet).or_default().push(CabinetHit {
+                i,
+                j,
+                level,
+                severity: o.severity,
+                worst_ratio: o.worst_ratio,
+                gas: o.gas.clone(),
+                codes: o.codes.clone(),
+            });
             findings.push(AuditFinding {
                 severity: o.severity,
                 level,
@@ -968,33 +996,73 @@ impl Auditor<'_> {
                 .then(x.a.id.cmp(&y.a.id))
                 .then(x.b.id.cmp(&y.b.id))
         });
+        // Every container of a cabinet, and every container that meets another in a place,
+        // whether its pairs are clear or not.
+        let mut members: HashMap<usize, Vec<usize>> = HashMap::new();
+        let mut meets: std::collections::HashSet<(usize, usize)> = Default::default();
+        for &(i, j, _, k) in &pairs {
+            let m = members.entry(k).or_default();
+            m.push(i);
+            m.push(j);
+            meets.insert((i.min(j), i.max(j)));
+        }
+        for (i, c) in inv.containers.iter().enumerate() {
+            let cabinet = inv.cabinet_path(&c.path).join("/");
+            if let Ok(k) = places[..n_cabinets].binary_search(&cabinet) {
+                members.entry(k).or_default().push(i);
+            }
+        }
+        let zone_of = |i: usize| inv.spill_zone_path(&inv.containers[i].path).join(" / ");
         let mut cabinets: Vec<CabinetMatrix> = by_cabinet
             .into_iter()
-            .map(|(cabinet, hits)| {
-                let mut members: Vec<usize> = hits.iter().flat_map(|h| [h.0, h.1]).collect();
-                members.sort();
+            .map(|(place, hits)| {
+                let mut members = members.remove(&place).unwrap_or_default();
+                members.sort_by(|&a, &b| {
+                    zone_of(a)
+                        .cmp(&zone_of(b))
+                        .then(inv.containers[a].id.cmp(&inv.containers[b].id))
+                });
                 members.dedup();
                 let pos = |k: usize| members.iter().position(|&m| m == k).expect("member");
+                let mut apart = Vec::new();
+                for (x, &a) in members.iter().enumerate() {
+                    for (y, &b) in members.iter().enumerate().skip(x + 1) {
+                        if !meets.contains(&(a.min(b), a.max(b))) {
+                            apart.push([x, y]);
+                        }
+                    }
+                }
                 CabinetMatrix {
-                    cabinet: cabinet.replace('/', " / "),
+                    cabinet: places[place].replace('/', " / "),
                     ids: members
                         .iter()
                         .map(|&m| inv.containers[m].id.clone())
                         .collect(),
+                    zones: members.iter().map(|&m| zone_of(m)).collect(),
+                    apart,
                     cells: hits
-                        .iter()
-                        .map(|(i, j, level, severity, ratio)| MatrixCell {
-                            i: pos(*i),
-                            j: pos(*j),
-                            severity: *severity,
-                            level: *level,
-                            worst_ratio: *ratio,
+                        .into_iter()
+                        .map(|h| MatrixCell {
+                            i: pos(h.i),
+                            j: pos(h.j),
+                            severity: h.severity,
+                            level: h.level,
+                            worst_ratio: h.worst_ratio,
+                            gas: h.gas,
+                            codes: h.codes,
                         })
                         .collect(),
                 }
             })
             .collect();
         cabinets.sort_by(|a, b| a.cabinet.cmp(&b.cabinet));
+        let shown: std::collections::HashSet<&str> =
+            cabinets.iter().map(|m| m.cabinet.as_str()).collect();
+        let clear_cabinets: Vec<String> = places[..n_cabinets]
+            .iter()
+            .map(|p| p.replace('/', " / "))
+            .filter(|p| !shown.contains(p.as_str()))
+            .collect();
         let zones: std::collections::HashSet<&[String]> = inv
             .containers
             .iter()
@@ -1021,6 +1089,7 @@ impl Auditor<'_> {
             },
             findings,
             cabinets,
+            clear_cabinets,
             suggestion: None,
             skipped_rows: Vec::new(),
             assumptions: audit_assumptions(self, inv),

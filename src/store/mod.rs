@@ -32,6 +32,7 @@
 
 pub mod audit;
 pub mod csv_import;
+pub mod drawing;
 pub mod generate;
 pub mod suggest;
 pub mod view;

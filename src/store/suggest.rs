@@ -35,6 +35,34 @@ pub struct Suggestion {
     /// Containers whose stop pairs could not be removed, with why.
     pub unresolved: Vec<String>,
     pub note: String,
+    /// Each cabinet a move leaves or enters (sorted), as it stands before and after the moves.
+    pub cabinets: Vec<CabinetChange>,
+}
+
+/// The containers of one spill zone.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ZoneContents {
+    /// The spill zone, levels joined by " / ".
+    pub zone: String,
+    /// Places it holds: the inventory's capacity, or its containers plus the spare places
+    /// assumed.
+    pub capacity: usize,
+    /// Its containers' ids, sorted.
+    pub ids: Vec<String>,
+}
+
+/// A cabinet touched by the moves: its spill zones before and after, and its pairs.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CabinetChange {
+    /// The cabinet, levels joined by " / ".
+    pub cabinet: String,
+    /// Every spill zone of the cabinet, in the same order before and after.
+    pub before: Vec<ZoneContents>,
+    pub after: Vec<ZoneContents>,
+    pub stop_pairs_before: usize,
+    pub stop_pairs_after: usize,
+    pub review_pairs_before: usize,
+    pub review_pairs_after: usize,
 }
 
 struct Tray {
@@ -85,14 +113,22 @@ impl Layout<'_> {
     }
 
     fn count(&self) -> (usize, usize) {
-        let (mut stops, mut reviews) = (0, 0);
+        self.count_by_cabinet()
+            .values()
+            .fold((0, 0), |(s, r), &(a, b)| (s + a, r + b))
+    }
+
+    /// (stops, reviews) of each cabinet that holds a container.
+    fn count_by_cabinet(&self) -> HashMap<String, (usize, usize)> {
+        let mut out = HashMap::new();
         let mut by_cabinet: HashMap<&str, Vec<(usize, usize)>> = HashMap::new();
         for (t, tray) in self.trays.iter().enumerate() {
             for &i in &self.members[t] {
                 by_cabinet.entry(&tray.cabinet).or_default().push((i, t));
             }
         }
-        for list in by_cabinet.values() {
+        for (cabinet, list) in &by_cabinet {
+            let (mut stops, mut reviews) = (0, 0);
             for (x, &(i, ti)) in list.iter().enumerate() {
                 for &(j, tj) in &list[x + 1..] {
                     let level = if ti == tj {
@@ -110,8 +146,35 @@ impl Layout<'_> {
                     }
                 }
             }
+            out.insert(cabinet.to_string(), (stops, reviews));
         }
-        (stops, reviews)
+        out
+    }
+
+    /// The spill zones of a cabinet and their containers, as `members` places them.
+    fn zones_of(
+        &self,
+        cabinet: &str,
+        members: &[Vec<usize>],
+        inv: &Inventory,
+    ) -> Vec<ZoneContents> {
+        let mut zones: Vec<ZoneContents> = (0..self.trays.len())
+            .filter(|&t| self.trays[t].cabinet == cabinet)
+            .map(|t| {
+                let mut ids: Vec<String> = members[t]
+                    .iter()
+                    .map(|&i| inv.containers[i].id.clone())
+                    .collect();
+                ids.sort();
+                ZoneContents {
+                    zone: self.trays[t].path.replace('/', " / "),
+                    capacity: self.trays[t].capacity,
+                    ids,
+                }
+            })
+            .collect();
+        zones.sort_by(|a, b| a.zone.cmp(&b.zone));
+        zones
     }
 
     fn move_to(&mut self, i: usize, t: usize) {
@@ -208,6 +271,8 @@ pub fn suggest(
         judge,
     };
     let (stops_before, reviews_before) = layout.count();
+    let by_cabinet_before = layout.count_by_cabinet();
+    let members_before = layout.members.clone();
     let mut unresolved = Vec::new();
 
     // Stops first: in passes, the containers in most stop pairs move first; a pass that
@@ -287,6 +352,30 @@ pub fn suggest(
         })
         .collect();
     let complete = stops_after == 0;
+    let by_cabinet_after = layout.count_by_cabinet();
+    let mut touched: Vec<&str> = (0..inv.containers.len())
+        .filter(|&i| layout.at[i] != at[i])
+        .flat_map(|i| [at[i], layout.at[i]])
+        .map(|t| layout.trays[t].cabinet.as_str())
+        .collect();
+    touched.sort();
+    touched.dedup();
+    let cabinets: Vec<CabinetChange> = touched
+        .iter()
+        .map(|&cabinet| {
+            let before = by_cabinet_before.get(cabinet).copied().unwrap_or((0, 0));
+            let after = by_cabinet_after.get(cabinet).copied().unwrap_or((0, 0));
+            CabinetChange {
+                cabinet: cabinet.replace('/', " / "),
+                before: layout.zones_of(cabinet, &members_before, inv),
+                after: layout.zones_of(cabinet, &layout.members, inv),
+                stop_pairs_before: before.0,
+                stop_pairs_after: after.0,
+                review_pairs_before: before.1,
+                review_pairs_after: after.1,
+            }
+        })
+        .collect();
     let note = if out_of_time {
         format!(
             "The search stopped after {} s with {} left ({} found by then); a store this crowded with pairs that must not meet needs more room or fewer containers per cabinet before moves can help.",
@@ -318,5 +407,6 @@ pub fn suggest(
         complete,
         unresolved,
         note,
+        cabinets,
     }
 }

@@ -23,6 +23,10 @@ fn mark(s: Severity, level: Level) -> char {
 fn matrix_text(m: &CabinetMatrix) -> String {
     let n = m.ids.len();
     let mut grid = vec![vec!['.'; n]; n];
+    for p in &m.apart {
+        grid[p[0]][p[1]] = '-';
+        grid[p[1]][p[0]] = '-';
+    }
     for c in &m.cells {
         let ch = mark(c.severity, c.level);
         grid[c.i][c.j] = ch;
@@ -137,6 +141,9 @@ pub fn audit_table(r: &AuditReport) -> String {
             m.cabinet
         );
         if m.ids.len() <= TERMINAL_MATRIX_MAX {
+            if !m.apart.is_empty() {
+                let _ = writeln!(out, "  (-: not paired, different spill zones)");
+            }
             out.push_str(&matrix_text(m));
         } else {
             let _ = writeln!(
@@ -171,101 +178,32 @@ pub fn audit_table(r: &AuditReport) -> String {
     out
 }
 
-/// Fill colour of a matrix cell: graded by how far past its level the pair goes.
-fn cell_colour(s: Severity, ratio: f64) -> String {
-    // 0 at the review level, 1 at a hundredfold.
-    let t = if ratio > 1.0 {
-        (ratio.log10() / 2.0).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    match s {
-        Severity::Stop => {
-            let light = 62.0 - 24.0 * t;
-            format!("hsl(0, 75%, {light:.0}%)")
-        }
-        Severity::Review => {
-            let light = 78.0 - 14.0 * t;
-            format!("hsl(42, 90%, {light:.0}%)")
-        }
-        _ => "#ffffff".into(),
-    }
-}
-
-fn matrix_svg(m: &CabinetMatrix) -> String {
-    let n = m.ids.len();
-    let cell = 14.0;
-    let label = 9.0 * m.ids.iter().map(|s| s.len()).max().unwrap_or(4) as f64 * 0.62 + 8.0;
-    let size = label + cell * n as f64 + 2.0;
-    let mut out = String::new();
-    let _ = write!(
-        out,
-        "<svg width=\"{size:.0}\" height=\"{size:.0}\" viewBox=\"0 0 {size:.0} {size:.0}\" role=\"img\" aria-label=\"pair matrix of {}\">",
-        esc(&m.cabinet)
-    );
-    for (k, id) in m.ids.iter().enumerate() {
-        let y = label + cell * k as f64 + cell * 0.75;
-        let _ = write!(
-            out,
-            "<text x=\"{:.1}\" y=\"{y:.1}\" font-size=\"9\" text-anchor=\"end\">{}</text>",
-            label - 4.0,
-            esc(id)
-        );
-        let x = label + cell * k as f64 + cell * 0.7;
-        let _ = write!(
-            out,
-            "<text x=\"{x:.1}\" y=\"{:.1}\" font-size=\"9\" transform=\"rotate(-90 {x:.1} {:.1})\">{}</text>",
-            label - 4.0,
-            label - 4.0,
-            esc(id)
-        );
-    }
-    for i in 0..n {
-        for j in 0..n {
-            let _ = write!(
-                out,
-                "<rect x=\"{:.1}\" y=\"{:.1}\" width=\"{cell}\" height=\"{cell}\" fill=\"{}\" stroke=\"#bbb\" stroke-width=\"0.5\"/>",
-                label + cell * j as f64,
-                label + cell * i as f64,
-                if i == j { "#e4e4e4" } else { "#ffffff" }
-            );
-        }
-    }
-    for c in &m.cells {
-        for (i, j) in [(c.i, c.j), (c.j, c.i)] {
-            let _ = write!(
-                out,
-                "<rect x=\"{:.1}\" y=\"{:.1}\" width=\"{cell}\" height=\"{cell}\" fill=\"{}\" stroke=\"#555\" stroke-width=\"0.5\"><title>{} × {}: {} ({:?}), {:.1} × the review level</title></rect>",
-                label + cell * j as f64,
-                label + cell * i as f64,
-                cell_colour(c.severity, c.worst_ratio),
-                esc(&m.ids[i]),
-                esc(&m.ids[j]),
-                c.severity,
-                c.level,
-                c.worst_ratio
-            );
-            if c.level == Level::Cabinet {
-                // Cabinet-level pairs are hatched with a diagonal so they read apart from tray pairs.
-                let (x0, y0) = (label + cell * j as f64, label + cell * i as f64);
-                let _ = write!(out, "<line x1=\"{x0:.1}\" y1=\"{:.1}\" x2=\"{:.1}\" y2=\"{y0:.1}\" stroke=\"#333\" stroke-width=\"0.6\"/>", y0 + cell, x0 + cell);
-            }
-        }
-    }
-    out.push_str("</svg>");
-    out
-}
-
-/// What the audit page adds to the shared page style: the ranked rows and the matrices.
+/// What the audit page adds to the shared page style: the ranked rows and the drawings.
 const AUDIT_STYLE: &str = r#"
 th, td { padding: 2pt 4pt; font-size: 8.5pt; }
 .stop td:first-child { background: hsl(0, 75%, 62%); } .review td:first-child { background: hsl(42, 90%, 72%); }
-.matrix { page-break-inside: avoid; margin: 6pt 0 12pt; }
-.legend span { display: inline-block; width: 12px; height: 12px; border: 1px solid #555; vertical-align: middle; margin: 0 3pt 0 8pt; }
+.drawing { overflow-x: auto; max-width: 100%; page-break-inside: avoid; margin: 6pt 0 12pt; }
+.drawing svg { display: block; }
+@media print { .drawing { overflow: visible; } .drawing svg { max-width: 100%; height: auto; } }
 "#;
+
+/// Names of places in a sentence, the first `most` of them.
+fn some_names(names: &[String], most: usize) -> String {
+    let shown: Vec<String> = names.iter().take(most).map(|n| esc(n)).collect();
+    let mut out = match shown.len() {
+        0 => String::new(),
+        1 => shown[0].clone(),
+        k => format!("{} and {}", shown[..k - 1].join(", "), shown[k - 1]),
+    };
+    if names.len() > most {
+        out = format!("{}, and {} more", shown.join(", "), names.len() - most);
+    }
+    out
+}
 
 /// The report as one self-contained HTML page.
 pub fn audit_html(r: &AuditReport) -> String {
+    use super::drawing;
     let mut out = String::new();
     let c = &r.counts;
     let _ = writeln!(out, "<h1>Storeroom audit: {}</h1>", esc(&r.name));
@@ -292,21 +230,49 @@ pub fn audit_html(r: &AuditReport) -> String {
         );
     }
     let _ = writeln!(out, "</tbody>\n</table>");
+    if !r.cabinets.is_empty() || !r.clear_cabinets.is_empty() {
+        let _ = writeln!(out, "<h2>Cabinets</h2>");
+    }
     if !r.cabinets.is_empty() {
         let _ = writeln!(
             out,
-            "<h2>Cabinets</h2>\n<p class=\"legend\">Darker is further past the level;<span style=\"background:{}\"></span>stop<span style=\"background:{}\"></span>review; a diagonal marks pairs in different spill zones of the same cabinet.</p>",
-            cell_colour(Severity::Stop, 10.0),
-            cell_colour(Severity::Review, 10.0)
+            "<div class=\"drawing\">{}</div>",
+            drawing::pairs_chart(r)
+        );
+        let _ = writeln!(
+            out,
+            "<p>Each matrix holds every container of the cabinet, grouped by spill zone (each zone's own block is outlined); the cell where a row and a column cross is that pair. Point at a cell for the two containers, the verdict and what decided it.</p>\n<div class=\"drawing\">{}</div>",
+            drawing::legend_svg(r.cabinets.iter().any(|m| !m.apart.is_empty()))
         );
         for m in &r.cabinets {
+            let _ = writeln!(out, "<h3>{}</h3>", esc(&m.cabinet));
+            let drawn = drawing::drawn_matrix(m);
+            if drawn.ids.len() < m.ids.len() {
+                let _ = writeln!(
+                    out,
+                    "<p>This cabinet holds {} containers, too many to draw every pair; the {} in a pair past a review level are drawn.</p>",
+                    m.ids.len(),
+                    drawn.ids.len()
+                );
+            }
             let _ = writeln!(
                 out,
-                "<div class=\"matrix\"><h3>{}</h3>{}</div>",
-                esc(&m.cabinet),
-                matrix_svg(m)
+                "<div class=\"drawing\">{}</div>",
+                drawing::matrix_svg(&drawn)
             );
         }
+    }
+    if !r.clear_cabinets.is_empty() {
+        let _ = writeln!(
+            out,
+            "<p class=\"clear-cabinets\">No pair reaches a review level in {}{}.</p>",
+            if r.clear_cabinets.len() == 1 {
+                "cabinet "
+            } else {
+                "the cabinets "
+            },
+            some_names(&r.clear_cabinets, 40)
+        );
     }
     if let Some(s) = &r.suggestion {
         let _ = writeln!(
@@ -327,7 +293,18 @@ pub fn audit_html(r: &AuditReport) -> String {
                 esc(&m.to)
             );
         }
+        for u in &s.unresolved {
+            let _ = writeln!(out, "<li>Not resolved: {}</li>", esc(u));
+        }
         let _ = writeln!(out, "</ul>");
+        for change in &s.cabinets {
+            let _ = writeln!(
+                out,
+                "<h3>{}</h3>\n<div class=\"drawing\">{}</div>",
+                esc(&change.cabinet),
+                drawing::moves_svg(change, &s.moves)
+            );
+        }
     }
     out.push_str(&crate::output::render::closing_lists(
         &r.assumptions,
