@@ -10,7 +10,6 @@ pub mod chem;
 pub mod embedded;
 pub mod judge;
 pub mod output;
-pub mod plot;
 pub mod pour;
 pub mod procedure;
 pub mod record;

@@ -4,7 +4,8 @@
 mod common;
 use common::catalog;
 use offgas::report::Severity;
-use offgas::store::audit::{AuditReport, AuditSettings, Auditor, Level, PairJudge};
+use offgas::store::audit::{AuditSettings, Auditor, PairJudge};
+use offgas::store::report::{AuditReport, Level};
 use offgas::store::Inventory;
 
 fn store(text: &str) -> Inventory {
@@ -144,7 +145,7 @@ fn the_suggestion_says_so_when_there_is_no_room() {
 #[test]
 fn the_html_report_is_well_formed_and_self_contained() {
     let r = run(&demo_store());
-    let html = offgas::store::view::audit_html(&r);
+    let html = offgas::output::audit::audit_html(&r);
     assert!(html.starts_with("<!DOCTYPE html>") && html.trim_end().ends_with("</html>"));
     for external in [
         "http://", "https://", "<link", "<script", "src=", "@import", "url(",

@@ -203,7 +203,7 @@ fn the_report_says_what_holds_the_ligand_and_what_would_precipitate() {
         offgas::output::render::View {
             color: false,
             all_pairs: false,
-            charset: offgas::plot::spark::Charset::Unicode,
+            charset: offgas::output::plot::spark::Charset::Unicode,
         },
     );
     let line = format!("cyanide {:.0} % held by metals", b[0].bound_percent);

@@ -7,7 +7,8 @@
 mod common;
 use common::catalog;
 use offgas::report::Severity;
-use offgas::store::audit::{AuditReport, AuditSettings, Auditor, PairJudge};
+use offgas::store::audit::{AuditSettings, Auditor, PairJudge};
+use offgas::store::report::AuditReport;
 use offgas::store::Inventory;
 use scraper::{ElementRef, Html, Selector};
 use std::collections::{BTreeSet, HashMap};
@@ -102,7 +103,7 @@ fn cases() -> &'static [Case] {
         for (name, inv) in [("demo", demo_store()), ("mixed shelf", mixed_shelf())] {
             for suggest in [false, true] {
                 let r = audit(&inv, suggest);
-                let page = offgas::store::view::audit_html(&r);
+                let page = offgas::output::audit::audit_html(&r);
                 out.push((name, inv.clone(), r, page));
             }
         }
@@ -435,7 +436,7 @@ fn each_moved_container_is_drawn_leaving_and_arriving() {
 fn cabinets_with_no_finding_are_named_as_clear() {
     let r = audit(&mixed_shelf(), false);
     assert_eq!(r.clear_cabinets, ["Lab 2 / Cabinet B", "Lab 2 / Cabinet C"]);
-    let doc = Html::parse_document(&offgas::store::view::audit_html(&r));
+    let doc = Html::parse_document(&offgas::output::audit::audit_html(&r));
     let sentence: String = doc
         .select(&sel("p.clear-cabinets"))
         .flat_map(|p| p.text())
@@ -448,14 +449,14 @@ fn cabinets_with_no_finding_are_named_as_clear() {
     // The demo has a finding in each of its cabinets.
     let demo = audit(&demo_store(), false);
     assert!(demo.clear_cabinets.is_empty());
-    assert!(!offgas::store::view::audit_html(&demo).contains("class=\"clear-cabinets\""));
+    assert!(!offgas::output::audit::audit_html(&demo).contains("class=\"clear-cabinets\""));
 }
 
 #[test]
 fn pairs_across_spill_zones_are_drawn_as_not_paired_when_only_spill_zones_are_paired() {
     let inv = mixed_shelf();
     let r = audit_with(&inv, false, false);
-    let page = offgas::store::view::audit_html(&r);
+    let page = offgas::output::audit::audit_html(&r);
     let doc = Html::parse_document(&page);
     assert!(doc.errors.is_empty(), "{:?}", doc.errors);
     let m = &r.cabinets[0];
@@ -486,5 +487,5 @@ fn pairs_across_spill_zones_are_drawn_as_not_paired_when_only_spill_zones_are_pa
     // With every pair of a cabinet paired, no key for it.
     let all = audit(&inv, false);
     assert!(all.cabinets.iter().all(|m| m.apart.is_empty()));
-    assert!(!offgas::store::view::audit_html(&all).contains("data-class=\"not-paired\""));
+    assert!(!offgas::output::audit::audit_html(&all).contains("data-class=\"not-paired\""));
 }

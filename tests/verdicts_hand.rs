@@ -493,7 +493,7 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
         offgas::output::render::View {
             color: false,
             all_pairs: false,
-            charset: offgas::plot::spark::Charset::Unicode,
+            charset: offgas::output::plot::spark::Charset::Unicode,
         },
     );
     // Where a partial pressure passes the atmosphere's, the words say what that means.
@@ -524,7 +524,7 @@ fn messages_never_show_negative_zero_or_a_partial_pressure_as_ppm() {
             offgas::output::render::View {
                 color: false,
                 all_pairs: false,
-                charset: offgas::plot::spark::Charset::Unicode,
+                charset: offgas::output::plot::spark::Charset::Unicode,
             },
         );
         assert!(!text.contains("-0.0") && !text.contains("-0 "), "{text}");

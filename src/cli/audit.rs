@@ -158,9 +158,9 @@ pub fn run(a: AuditArgs) -> Result<u8> {
         ));
     }
     let text = match a.format {
-        Format::Table => offgas::store::view::audit_table(&report),
-        Format::Markdown => offgas::store::view::audit_markdown(&report),
-        Format::Html => offgas::store::view::audit_html(&report),
+        Format::Table => offgas::output::audit::audit_table(&report),
+        Format::Markdown => offgas::output::audit::audit_markdown(&report),
+        Format::Html => offgas::output::audit::audit_html(&report),
         Format::Json => serde_json::to_string_pretty(&report)? + "\n",
     };
     a.out.deliver(&text, "the audit report")?;

@@ -371,7 +371,7 @@ pub(crate) fn read_batch(cat: &Catalog, path: &Path) -> Result<Batch> {
 pub(crate) fn view(all_pairs: bool, to_terminal: bool) -> View {
     let color =
         to_terminal && std::env::var_os("NO_COLOR").is_none() && std::io::stdout().is_terminal();
-    let charset = offgas::plot::spark::Charset::from_locale(|k| std::env::var(k).ok());
+    let charset = offgas::output::plot::spark::Charset::from_locale(|k| std::env::var(k).ok());
     View {
         color,
         all_pairs,

@@ -224,14 +224,14 @@ fn pairs_html(r: &CheckReport, all_pairs: bool, out: &mut String) {
 /// The course of the pour: each reported gas, then pH and temperature, both orders on the
 /// same axes.
 fn plots_html(r: &CheckReport, out: &mut String) {
-    let gases = crate::plot::pour::gas_charts(r);
+    let gases = crate::output::plot::pour::gas_charts(r);
     if r.poured_as_written.path.is_empty() {
         return;
     }
     out.push_str("<h2>Along the pour</h2>\n<p class=\"small\">Solid line and round points: the stream poured into the container, as written. Dashed line and square points: the container's contents poured into the stream. The share poured in runs from the first drop to all of it; both orders end in the same mixture.</p>\n");
     for c in gases
         .iter()
-        .chain(crate::plot::pour::state_charts(r).iter())
+        .chain(crate::output::plot::pour::state_charts(r).iter())
     {
         out.push_str("<figure class=\"plot\">");
         out.push_str(&c.svg());

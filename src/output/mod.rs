@@ -5,8 +5,11 @@
 //! tag.
 //! Layout only: every number comes from a report, and nothing here computes chemistry.
 
+pub mod audit;
+pub mod audit_drawing;
 pub mod check_page;
 pub mod page;
+pub mod plot;
 pub mod render;
 pub mod sheet;
 pub mod tag;

@@ -16,7 +16,7 @@ pub struct View {
     pub color: bool,
     pub all_pairs: bool,
     /// Characters the courses under the verdict may use.
-    pub charset: crate::plot::spark::Charset,
+    pub charset: crate::output::plot::spark::Charset,
 }
 
 /// Columns of a gas's course under the verdict.
@@ -25,8 +25,8 @@ const COURSE_WIDTH: usize = 24;
 /// One line per gas that reaches a tenth of its review level along the pour as written:
 /// its course on a log scale over four decades below its peak, the peak's column between
 /// brackets.
-pub fn course_lines(r: &CheckReport, charset: crate::plot::spark::Charset) -> Vec<String> {
-    use crate::plot::spark;
+pub fn course_lines(r: &CheckReport, charset: crate::output::plot::spark::Charset) -> Vec<String> {
+    use crate::output::plot::spark;
     let o = &r.poured_as_written;
     o.gas_peaks
         .iter()
@@ -53,7 +53,7 @@ pub fn course_lines(r: &CheckReport, charset: crate::plot::spark::Charset) -> Ve
                     spark::Charset::Ascii => peak.formula.clone(),
                 },
                 spark::line(&values, hi - 4.0, hi, Some(mark), charset),
-                crate::plot::chart::short_number(peak.headspace_ppm),
+                crate::output::plot::chart::short_number(peak.headspace_ppm),
                 peak.fraction_added * 100.0
             ))
         })

@@ -182,7 +182,7 @@ pub fn procedure_markdown(r: &ProcedureReport) -> String {
         out.push('\n');
     }
     let _ = writeln!(out, "## Steps\n");
-    let course = crate::plot::steps::step_lines(r);
+    let course = crate::output::plot::steps::step_lines(r);
     if course.len() > 1 {
         let _ = writeln!(
             out,
@@ -244,7 +244,7 @@ figure.steps figcaption { flex-basis: 100%; font-size: 8.5pt; color: #333; }
 
 /// The vessel's pH and the worst gas of each step as two small charts side by side.
 fn step_figure(r: &ProcedureReport) -> String {
-    use crate::plot::steps;
+    use crate::output::plot::steps;
     let charts: Vec<String> = std::iter::once(steps::ph_chart(r))
         .chain(steps::gas_chart(r))
         .map(|c| c.svg())
@@ -252,7 +252,7 @@ fn step_figure(r: &ProcedureReport) -> String {
     format!(
         "<figure class=\"steps\">{}<figcaption>The pH of the vessel after each step, and the gas of each step that comes closest to its review level (at its worst point while adding), as a multiple of that level on a log scale; ratios under {} are drawn on the floor. Drains leave no point.</figcaption></figure>\n",
         charts.concat(),
-        crate::plot::chart::short_number(steps::RATIO_FLOOR)
+        crate::output::plot::chart::short_number(steps::RATIO_FLOOR)
     )
 }
 

@@ -32,10 +32,9 @@
 
 pub mod audit;
 pub mod csv_import;
-pub mod drawing;
 pub mod generate;
+pub mod report;
 pub mod suggest;
-pub mod view;
 
 use crate::basics::quantity::{parse_amount, parse_volume, Amount};
 use crate::catalog::{Catalog, PhysicalState, SubstanceId};

@@ -3,11 +3,11 @@
 //! moves that lower the number of review pairs are taken while they help (local search).
 //! Fewest moves: a container is only moved to resolve a conflict it is part of.
 
-use super::audit::{Level, PairJudge};
+use super::audit::PairJudge;
+use super::report::{CabinetChange, Level, Move, Suggestion, ZoneContents};
 use super::{split_path, Inventory};
 use crate::report::Severity;
 use rayon::prelude::*;
-use serde::Serialize;
 use std::collections::HashMap;
 use std::time::{Duration, Instant};
 
@@ -15,55 +15,6 @@ use std::time::{Duration, Instant};
 const MAX_PASSES: usize = 6;
 /// The longest the search runs; what it found by then is reported, with a note.
 const BUDGET: Duration = Duration::from_secs(30);
-
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Move {
-    pub id: String,
-    pub from: String,
-    pub to: String,
-}
-
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Suggestion {
-    pub moves: Vec<Move>,
-    pub stop_pairs_before: usize,
-    pub stop_pairs_after: usize,
-    pub review_pairs_before: usize,
-    pub review_pairs_after: usize,
-    /// True when every stop pair is gone.
-    pub complete: bool,
-    /// Containers whose stop pairs could not be removed, with why.
-    pub unresolved: Vec<String>,
-    pub note: String,
-    /// Each cabinet a move leaves or enters (sorted), as it stands before and after the moves.
-    pub cabinets: Vec<CabinetChange>,
-}
-
-/// The containers of one spill zone.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct ZoneContents {
-    /// The spill zone, levels joined by " / ".
-    pub zone: String,
-    /// Places it holds: the inventory's capacity, or its containers plus the spare places
-    /// assumed.
-    pub capacity: usize,
-    /// Its containers' ids, sorted.
-    pub ids: Vec<String>,
-}
-
-/// A cabinet touched by the moves: its spill zones before and after, and its pairs.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct CabinetChange {
-    /// The cabinet, levels joined by " / ".
-    pub cabinet: String,
-    /// Every spill zone of the cabinet, in the same order before and after.
-    pub before: Vec<ZoneContents>,
-    pub after: Vec<ZoneContents>,
-    pub stop_pairs_before: usize,
-    pub stop_pairs_after: usize,
-    pub review_pairs_before: usize,
-    pub review_pairs_after: usize,
-}
 
 struct Tray {
     path: String,

@@ -146,7 +146,7 @@ fn count_label(v: f64) -> String {
     if v.fract() == 0.0 {
         format!("{v:.0}")
     } else {
-        crate::plot::chart::short_number(v)
+        crate::output::plot::chart::short_number(v)
     }
 }
 

@@ -1,10 +1,10 @@
 //! The audit report for a terminal (findings and per-cabinet matrices) and as one
 //! self-contained HTML page with an inline SVG matrix per cabinet. Layout only.
 
-use super::audit::{AuditCounts, AuditReport, CabinetMatrix, Level};
-use super::counted;
 use crate::output::page::{esc, prose};
 use crate::report::Severity;
+use crate::store::counted;
+use crate::store::report::{AuditCounts, AuditReport, CabinetMatrix, Level};
 use std::fmt::Write;
 
 /// Most containers a terminal matrix shows before it lists findings only.
@@ -203,7 +203,7 @@ fn some_names(names: &[String], most: usize) -> String {
 
 /// The report as one self-contained HTML page.
 pub fn audit_html(r: &AuditReport) -> String {
-    use super::drawing;
+    use crate::output::audit_drawing as drawing;
     let mut out = String::new();
     let c = &r.counts;
     let _ = writeln!(out, "<h1>Storeroom audit: {}</h1>", esc(&r.name));
@@ -321,11 +321,11 @@ fn cell(s: &str) -> String {
 
 /// The audit as markdown, for tickets: findings and moves; the matrices need a page
 /// (`--format html`). Layout only, from the report's public fields.
-// This belongs beside `audit_table` in `crate::store::view`; it lives here until that
+// This belongs beside `audit_table` in `crate::output::audit`; it lives here until that
 // module's owner takes it over.
 pub fn audit_markdown(r: &AuditReport) -> String {
     use crate::report::Severity;
-    use crate::store::audit::Level;
+    use crate::store::report::Level;
     use std::fmt::Write;
     let mut out = String::new();
     let c = &r.counts;

@@ -7,10 +7,10 @@
 //! key swatch `data-class`, every container chip `data-id` and `data-state`, so a test can
 //! check the picture against the report.
 
-use super::audit::{AuditReport, CabinetMatrix, Level, MatrixCell};
-use super::suggest::{CabinetChange, Move, ZoneContents};
-use crate::plot::bars::{hatch_lines, BarClass, BarRow, Bars, Fill};
+use crate::output::plot::bars::{hatch_lines, BarClass, BarRow, Bars, Fill};
 use crate::report::Severity;
+use crate::store::report::{AuditReport, CabinetMatrix, Level, MatrixCell};
+use crate::store::report::{CabinetChange, Move, ZoneContents};
 use svg::node::element::{Element, Group, Line, Polygon, Rectangle, Text, Title};
 use svg::node::Node;
 
