@@ -1,6 +1,7 @@
 //! The audit report for a terminal (findings and per-cabinet matrices) and as one
 //! self-contained HTML page with an inline SVG matrix per cabinet. Layout only.
 
+use crate::output::audit_drawing as drawing;
 use crate::output::page::{esc, prose};
 use crate::report::Severity;
 use crate::store::counted;
@@ -90,6 +91,21 @@ pub fn audit_table(r: &AuditReport) -> String {
             if n == 1 { "it" } else { "each" }
         );
     }
+    findings_text(&mut out, r);
+    cabinets_text(&mut out, r);
+    if let Some(s) = &r.suggestion {
+        moves_text(&mut out, s);
+    }
+    out.push_str(&crate::output::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::output::render::ListStyle::Terminal,
+    ));
+    out
+}
+
+/// The findings, worst first (the first 50; the rest are counted).
+fn findings_text(out: &mut String, r: &AuditReport) {
     let stops = r
         .findings
         .iter()
@@ -134,6 +150,10 @@ pub fn audit_table(r: &AuditReport) -> String {
             r.findings.len() - 50
         );
     }
+}
+
+/// Each cabinet's matrix, where it is small enough for a terminal.
+fn cabinets_text(out: &mut String, r: &AuditReport) {
     for m in &r.cabinets {
         let _ = writeln!(
             out,
@@ -153,29 +173,25 @@ pub fn audit_table(r: &AuditReport) -> String {
             );
         }
     }
-    if let Some(s) = &r.suggestion {
-        let _ = writeln!(
-            out,
-            "\nSuggested moves: {} (stop pairs {} → {}, review pairs {} → {})",
-            s.note.trim_end_matches('.'),
-            s.stop_pairs_before,
-            s.stop_pairs_after,
-            s.review_pairs_before,
-            s.review_pairs_after
-        );
-        for m in &s.moves {
-            let _ = writeln!(out, "  move {} from {} to {}", m.id, m.from, m.to);
-        }
-        for u in &s.unresolved {
-            let _ = writeln!(out, "  not resolved: {u}");
-        }
+}
+
+/// The suggested moves and what they leave unresolved.
+fn moves_text(out: &mut String, s: &crate::store::report::Suggestion) {
+    let _ = writeln!(
+        out,
+        "\nSuggested moves: {} (stop pairs {} → {}, review pairs {} → {})",
+        s.note.trim_end_matches('.'),
+        s.stop_pairs_before,
+        s.stop_pairs_after,
+        s.review_pairs_before,
+        s.review_pairs_after
+    );
+    for m in &s.moves {
+        let _ = writeln!(out, "  move {} from {} to {}", m.id, m.from, m.to);
     }
-    out.push_str(&crate::output::render::closing_lists(
-        &r.assumptions,
-        &r.cautions,
-        crate::output::render::ListStyle::Terminal,
-    ));
-    out
+    for u in &s.unresolved {
+        let _ = writeln!(out, "  not resolved: {u}");
+    }
 }
 
 /// What the audit page adds to the shared page style: the ranked rows and the drawings.
@@ -203,7 +219,6 @@ fn some_names(names: &[String], most: usize) -> String {
 
 /// The report as one self-contained HTML page.
 pub fn audit_html(r: &AuditReport) -> String {
-    use crate::output::audit_drawing as drawing;
     let mut out = String::new();
     let c = &r.counts;
     let _ = writeln!(out, "<h1>Storeroom audit: {}</h1>", esc(&r.name));
@@ -214,6 +229,21 @@ pub fn audit_html(r: &AuditReport) -> String {
         esc(&counts_sentence(c)),
         r.severity.word().to_uppercase()
     );
+    findings_html(&mut out, r);
+    cabinets_html(&mut out, r);
+    if let Some(s) = &r.suggestion {
+        moves_html(&mut out, s);
+    }
+    out.push_str(&crate::output::render::closing_lists(
+        &r.assumptions,
+        &r.cautions,
+        crate::output::render::ListStyle::Html,
+    ));
+    crate::output::page::page(&format!("Storeroom audit: {}", r.name), AUDIT_STYLE, &out)
+}
+
+/// Every finding, worst first, as a table.
+fn findings_html(out: &mut String, r: &AuditReport) {
     let _ = writeln!(out, "<h2>Findings</h2>\n<table>\n<thead><tr><th>Verdict</th><th>Container</th><th>Meets</th><th>Where</th><th>Gas</th><th>× review level</th><th>Why</th></tr></thead>\n<tbody>");
     for f in &r.findings {
         let _ = writeln!(
@@ -230,6 +260,10 @@ pub fn audit_html(r: &AuditReport) -> String {
         );
     }
     let _ = writeln!(out, "</tbody>\n</table>");
+}
+
+/// The bars per cabinet, the legend, each cabinet's matrix, and the clear cabinets named.
+fn cabinets_html(out: &mut String, r: &AuditReport) {
     if !r.cabinets.is_empty() || !r.clear_cabinets.is_empty() {
         let _ = writeln!(out, "<h2>Cabinets</h2>");
     }
@@ -274,44 +308,40 @@ pub fn audit_html(r: &AuditReport) -> String {
             some_names(&r.clear_cabinets, 40)
         );
     }
-    if let Some(s) = &r.suggestion {
+}
+
+/// The suggested moves in words, then each cabinet they touch drawn before and after.
+fn moves_html(out: &mut String, s: &crate::store::report::Suggestion) {
+    let _ = writeln!(
+        out,
+        "<h2>Suggested moves</h2><p>{} Stop pairs {} → {}, review pairs {} → {}.</p><ul>",
+        prose(&s.note),
+        s.stop_pairs_before,
+        s.stop_pairs_after,
+        s.review_pairs_before,
+        s.review_pairs_after
+    );
+    for m in &s.moves {
         let _ = writeln!(
             out,
-            "<h2>Suggested moves</h2><p>{} Stop pairs {} → {}, review pairs {} → {}.</p><ul>",
-            prose(&s.note),
-            s.stop_pairs_before,
-            s.stop_pairs_after,
-            s.review_pairs_before,
-            s.review_pairs_after
+            "<li>Move {} from {} to {}</li>",
+            esc(&m.id),
+            esc(&m.from),
+            esc(&m.to)
         );
-        for m in &s.moves {
-            let _ = writeln!(
-                out,
-                "<li>Move {} from {} to {}</li>",
-                esc(&m.id),
-                esc(&m.from),
-                esc(&m.to)
-            );
-        }
-        for u in &s.unresolved {
-            let _ = writeln!(out, "<li>Not resolved: {}</li>", esc(u));
-        }
-        let _ = writeln!(out, "</ul>");
-        for change in &s.cabinets {
-            let _ = writeln!(
-                out,
-                "<h3>{}</h3>\n<div class=\"drawing\">{}</div>",
-                esc(&change.cabinet),
-                drawing::moves_svg(change, &s.moves)
-            );
-        }
     }
-    out.push_str(&crate::output::render::closing_lists(
-        &r.assumptions,
-        &r.cautions,
-        crate::output::render::ListStyle::Html,
-    ));
-    crate::output::page::page(&format!("Storeroom audit: {}", r.name), AUDIT_STYLE, &out)
+    for u in &s.unresolved {
+        let _ = writeln!(out, "<li>Not resolved: {}</li>", esc(u));
+    }
+    let _ = writeln!(out, "</ul>");
+    for change in &s.cabinets {
+        let _ = writeln!(
+            out,
+            "<h3>{}</h3>\n<div class=\"drawing\">{}</div>",
+            esc(&change.cabinet),
+            drawing::moves_svg(change, &s.moves)
+        );
+    }
 }
 
 /// Markdown cells hold no line breaks or pipes.
@@ -324,9 +354,6 @@ fn cell(s: &str) -> String {
 // This belongs beside `audit_table` in `crate::output::audit`; it lives here until that
 // module's owner takes it over.
 pub fn audit_markdown(r: &AuditReport) -> String {
-    use crate::report::Severity;
-    use crate::store::report::Level;
-    use std::fmt::Write;
     let mut out = String::new();
     let c = &r.counts;
     let _ = writeln!(out, "# Storeroom audit: {}\n", r.name);
@@ -351,31 +378,7 @@ pub fn audit_markdown(r: &AuditReport) -> String {
         "## Findings\n\n{stops} pairs to stop, {reviews} to review, worst first.\n"
     );
     if !r.findings.is_empty() {
-        let _ = writeln!(
-            out,
-            "| verdict | container | meets | where | gas | × review level | why |"
-        );
-        let _ = writeln!(out, "|---|---|---|---|---|---:|---|");
-        for f in &r.findings {
-            let _ = writeln!(
-                out,
-                "| {} | {} ({}), {} | {} ({}), {} | same {} | {} | {:.1} | {} |",
-                f.severity.word().to_uppercase(),
-                cell(&f.a.id),
-                cell(&f.a.contents),
-                cell(&f.a.location),
-                cell(&f.b.id),
-                cell(&f.b.contents),
-                cell(&f.b.location),
-                match f.level {
-                    Level::Tray => "spill zone",
-                    Level::Cabinet => "cabinet",
-                },
-                cell(f.gas.as_deref().unwrap_or("-")),
-                f.worst_ratio,
-                cell(&f.headline)
-            );
-        }
+        findings_markdown(&mut out, r);
     }
     if !r.skipped_rows.is_empty() {
         let _ = writeln!(
@@ -392,21 +395,7 @@ pub fn audit_markdown(r: &AuditReport) -> String {
         );
     }
     if let Some(s) = &r.suggestion {
-        let _ = writeln!(
-            out,
-            "\n## Suggested moves\n\n{} Stop pairs {} → {}, review pairs {} → {}.\n",
-            s.note,
-            s.stop_pairs_before,
-            s.stop_pairs_after,
-            s.review_pairs_before,
-            s.review_pairs_after
-        );
-        for m in &s.moves {
-            let _ = writeln!(out, "- Move {} from {} to {}", m.id, m.from, m.to);
-        }
-        for u in &s.unresolved {
-            let _ = writeln!(out, "- Not resolved: {u}");
-        }
+        moves_markdown(&mut out, s);
     }
     out.push_str(&crate::output::render::closing_lists(
         &r.assumptions,
@@ -414,4 +403,52 @@ pub fn audit_markdown(r: &AuditReport) -> String {
         crate::output::render::ListStyle::Markdown,
     ));
     out
+}
+
+/// The findings as a markdown table.
+fn findings_markdown(out: &mut String, r: &AuditReport) {
+    let _ = writeln!(
+        out,
+        "| verdict | container | meets | where | gas | × review level | why |"
+    );
+    let _ = writeln!(out, "|---|---|---|---|---|---:|---|");
+    for f in &r.findings {
+        let _ = writeln!(
+            out,
+            "| {} | {} ({}), {} | {} ({}), {} | same {} | {} | {:.1} | {} |",
+            f.severity.word().to_uppercase(),
+            cell(&f.a.id),
+            cell(&f.a.contents),
+            cell(&f.a.location),
+            cell(&f.b.id),
+            cell(&f.b.contents),
+            cell(&f.b.location),
+            match f.level {
+                Level::Tray => "spill zone",
+                Level::Cabinet => "cabinet",
+            },
+            cell(f.gas.as_deref().unwrap_or("-")),
+            f.worst_ratio,
+            cell(&f.headline)
+        );
+    }
+}
+
+/// The suggested moves as a list.
+fn moves_markdown(out: &mut String, s: &crate::store::report::Suggestion) {
+    let _ = writeln!(
+        out,
+        "\n## Suggested moves\n\n{} Stop pairs {} → {}, review pairs {} → {}.\n",
+        s.note,
+        s.stop_pairs_before,
+        s.stop_pairs_after,
+        s.review_pairs_before,
+        s.review_pairs_after
+    );
+    for m in &s.moves {
+        let _ = writeln!(out, "- Move {} from {} to {}", m.id, m.from, m.to);
+    }
+    for u in &s.unresolved {
+        let _ = writeln!(out, "- Not resolved: {u}");
+    }
 }
