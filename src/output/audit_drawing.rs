@@ -307,14 +307,62 @@ pub fn matrix_svg(m: &CabinetMatrix) -> String {
     let mut doc = root(width, height, "matrix");
     doc.assign("aria-label", format!("pair matrix of {}", m.cabinet));
     doc.append(Title::new(format!("Pairs of {}", m.cabinet)));
-    // Spill zones: runs of equal zones in `zones`.
+    let blocks = zone_blocks(&m.zones);
+    label_ids(&mut doc, m, gx, gy, repeat);
+    for &(start, end) in &blocks {
+        let (y0, y1) = (gy + CELL * start as f64, gy + CELL * end as f64);
+        doc.append(line(
+            zone_w - 6.0,
+            y0 + 2.0,
+            zone_w - 6.0,
+            y1 - 2.0,
+            "#555",
+            1.5,
+        ));
+        doc.append(
+            text(zone_w - 11.0, (y0 + y1) / 2.0 + 4.0, &short[start], "end")
+                .set("class", "zone")
+                .set("font-style", "italic"),
+        );
+    }
+    let (cells, overlays) = cell_grid(m, gx, gy);
+    doc.append(cells);
+    doc.append(overlays);
+    // Each spill zone's own block outlined: the pairs inside it share the zone.
+    for &(start, end) in &blocks {
+        let (p, s) = (CELL * start as f64, CELL * (end - start) as f64);
+        doc.append(
+            Rectangle::new()
+                .set("x", round(gx + p))
+                .set("y", round(gy + p))
+                .set("width", s)
+                .set("height", s)
+                .set("fill", "none")
+                .set("stroke", INK)
+                .set("stroke-width", 2.2)
+                .set("class", "zone-block")
+                .set("pointer-events", "none"),
+        );
+    }
+    doc.to_string()
+}
+
+/// The spill zones of a matrix as runs of equal zones, (first, past the last) position.
+fn zone_blocks(zones: &[String]) -> Vec<(usize, usize)> {
     let mut blocks: Vec<(usize, usize)> = Vec::new();
-    for k in 0..n {
+    for k in 0..zones.len() {
         match blocks.last_mut() {
-            Some((_, end)) if m.zones[*end - 1] == m.zones[k] => *end = k + 1,
+            Some((_, end)) if zones[*end - 1] == zones[k] => *end = k + 1,
             _ => blocks.push((k, k + 1)),
         }
     }
+    blocks
+}
+
+/// Each container's id beside its row and over its column (and, on a large matrix, again
+/// on the far sides).
+fn label_ids(doc: &mut Element, m: &CabinetMatrix, gx: f64, gy: f64, repeat: bool) {
+    let n = m.ids.len();
     for (k, id) in m.ids.iter().enumerate() {
         let y = gy + CELL * k as f64 + CELL / 2.0 + 4.0;
         doc.append(text(gx - 5.0, y, id, "end").set("class", "row-id"));
@@ -341,22 +389,11 @@ pub fn matrix_svg(m: &CabinetMatrix) -> String {
             );
         }
     }
-    for &(start, end) in &blocks {
-        let (y0, y1) = (gy + CELL * start as f64, gy + CELL * end as f64);
-        doc.append(line(
-            zone_w - 6.0,
-            y0 + 2.0,
-            zone_w - 6.0,
-            y1 - 2.0,
-            "#555",
-            1.5,
-        ));
-        doc.append(
-            text(zone_w - 11.0, (y0 + y1) / 2.0 + 4.0, &short[start], "end")
-                .set("class", "zone")
-                .set("font-style", "italic"),
-        );
-    }
+}
+
+/// Every cell of the matrix, with its caption and data, and the marks drawn over the cells.
+fn cell_grid(m: &CabinetMatrix, gx: f64, gy: f64) -> (Group, Group) {
+    let n = m.ids.len();
     let mut finding: std::collections::HashMap<(usize, usize), &MatrixCell> = Default::default();
     for c in &m.cells {
         finding.insert((c.i.min(c.j), c.i.max(c.j)), c);
@@ -401,25 +438,7 @@ pub fn matrix_svg(m: &CabinetMatrix) -> String {
             }
         }
     }
-    doc.append(cells);
-    doc.append(overlays);
-    // Each spill zone's own block outlined: the pairs inside it share the zone.
-    for &(start, end) in &blocks {
-        let (p, s) = (CELL * start as f64, CELL * (end - start) as f64);
-        doc.append(
-            Rectangle::new()
-                .set("x", round(gx + p))
-                .set("y", round(gy + p))
-                .set("width", s)
-                .set("height", s)
-                .set("fill", "none")
-                .set("stroke", INK)
-                .set("stroke-width", 2.2)
-                .set("class", "zone-block")
-                .set("pointer-events", "none"),
-        );
-    }
-    doc.to_string()
+    (cells, overlays)
 }
 
 /// The key to the matrices: a swatch for every kind of cell, drawn as the cells are, and
