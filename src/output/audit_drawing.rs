@@ -663,32 +663,7 @@ fn panel(
                 ),
                 "start",
             ));
-        let mut chips: Vec<(String, ChipState, String)> = z
-            .ids
-            .iter()
-            .map(|id| {
-                let arriving = moves.iter().find(|m| &m.id == id && m.to == z.zone);
-                match arriving {
-                    Some(m) if after => (
-                        id.clone(),
-                        ChipState::Arrives,
-                        format!("{id} arrives from {}", m.from),
-                    ),
-                    _ => (id.clone(), ChipState::Stays, format!("{id} stays")),
-                }
-            })
-            .collect();
-        if !after {
-            for ch in &mut chips {
-                if let Some(m) = moves.iter().find(|m| m.id == ch.0 && m.from == z.zone) {
-                    ch.1 = ChipState::Leaves;
-                    ch.2 = format!("{} leaves for {}", ch.0, m.to);
-                }
-            }
-        }
-        for _ in 0..free.min(FREE_SHOWN) {
-            chips.push((String::new(), ChipState::Free, "a free place".into()));
-        }
+        let chips = zone_chips(z, after, moves, free);
         for (k, (id, state, title)) in chips.iter().enumerate() {
             let cx = x0 + 8.0 + (k % per_row) as f64 * (chip_w + CHIP_GAP);
             let cy = y + 24.0 + (k / per_row) as f64 * (CHIP_H + CHIP_GAP);
@@ -697,6 +672,43 @@ fn panel(
         y += h + 8.0;
     }
     g
+}
+
+/// The chips of one spill zone: each container (staying, leaving or arriving, with what it
+/// says on hover) and up to `FREE_SHOWN` free places.
+fn zone_chips(
+    z: &ZoneContents,
+    after: bool,
+    moves: &[Move],
+    free: usize,
+) -> Vec<(String, ChipState, String)> {
+    let mut chips: Vec<(String, ChipState, String)> = z
+        .ids
+        .iter()
+        .map(|id| {
+            let arriving = moves.iter().find(|m| &m.id == id && m.to == z.zone);
+            match arriving {
+                Some(m) if after => (
+                    id.clone(),
+                    ChipState::Arrives,
+                    format!("{id} arrives from {}", m.from),
+                ),
+                _ => (id.clone(), ChipState::Stays, format!("{id} stays")),
+            }
+        })
+        .collect();
+    if !after {
+        for ch in &mut chips {
+            if let Some(m) = moves.iter().find(|m| m.id == ch.0 && m.from == z.zone) {
+                ch.1 = ChipState::Leaves;
+                ch.2 = format!("{} leaves for {}", ch.0, m.to);
+            }
+        }
+    }
+    for _ in 0..free.min(FREE_SHOWN) {
+        chips.push((String::new(), ChipState::Free, "a free place".into()));
+    }
+    chips
 }
 
 fn chip(x: f64, y: f64, w: f64, id: &str, state: ChipState, title: &str, zone: &str) -> Group {
