@@ -711,6 +711,27 @@ fn zone_chips(
     chips
 }
 
+/// The key to the chips, in a row at `y`: leaving, arriving, staying, a free place.
+fn chip_key(doc: &mut Element, key_y: f64) {
+    let mut x = 8.0;
+    for (state, words) in [
+        (ChipState::Leaves, "leaves its spill zone"),
+        (ChipState::Arrives, "arrives"),
+        (ChipState::Stays, "stays"),
+        (ChipState::Free, "a free place"),
+    ] {
+        let sample = match state {
+            ChipState::Free => "",
+            _ => "ID",
+        };
+        let mut k = chip(x, key_y, 44.0, sample, state, words, "");
+        k.assign("class", "chip-key");
+        doc.append(k);
+        doc.append(text(x + 50.0, key_y + CHIP_H / 2.0 + 4.0, words, "start"));
+        x += 62.0 + CHAR * words.chars().count() as f64;
+    }
+}
+
 fn chip(x: f64, y: f64, w: f64, id: &str, state: ChipState, title: &str, zone: &str) -> Group {
     let (fill, stroke, width, dash, ink) = match state {
         ChipState::Stays => ("#ffffff", "#555", 1.0, None, INK),
@@ -859,24 +880,7 @@ pub fn moves_svg(c: &CabinetChange, moves: &[Move]) -> String {
             )
             .set("fill", INK),
     );
-    // The key to the chips.
-    let mut x = 8.0;
-    for (state, words) in [
-        (ChipState::Leaves, "leaves its spill zone"),
-        (ChipState::Arrives, "arrives"),
-        (ChipState::Stays, "stays"),
-        (ChipState::Free, "a free place"),
-    ] {
-        let sample = match state {
-            ChipState::Free => "",
-            _ => "ID",
-        };
-        let mut k = chip(x, key_y, 44.0, sample, state, words, "");
-        k.assign("class", "chip-key");
-        doc.append(k);
-        doc.append(text(x + 50.0, key_y + CHIP_H / 2.0 + 4.0, words, "start"));
-        x += 62.0 + CHAR * words.chars().count() as f64;
-    }
+    chip_key(&mut doc, key_y);
     doc.to_string()
 }
 
