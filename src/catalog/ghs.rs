@@ -6,7 +6,7 @@
 //! when the program is built (`build.rs`), like the rest of the bundled data, and read back
 //! from the binary image by `embedded::ghs`.
 
-use super::{Catalog, CatalogError};
+use super::{Catalog, CatalogError, Src};
 use serde::{Deserialize, Serialize};
 
 /// Which part of GHS a hazard class belongs to.
@@ -90,6 +90,12 @@ struct GhsFile {
     classes: Vec<ClassHazards>,
 }
 
+impl GhsFile {
+    fn lists_hazard(&self, id: &str) -> bool {
+        self.hazard_classes.iter().any(|h| h.id == id)
+    }
+}
+
 /// The loaded table, every reference resolved.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct GhsTable {
@@ -101,90 +107,11 @@ pub struct GhsTable {
 impl GhsTable {
     /// Parses the table and checks it against the catalog's hazard classes.
     pub fn parse(file: &str, text: &str, cat: &Catalog) -> Result<GhsTable, CatalogError> {
-        let parsed: GhsFile = serde_yaml::from_str(text).map_err(|e| CatalogError::Parse {
-            file: file.to_string(),
-            line: e.location().map(|l| l.line()),
-            message: e.to_string(),
-        })?;
-        // An error about the entry written `key: value` (its `nth` occurrence, from 0), or
-        // about a whole block when `value` is empty.
-        let bad_at = |section: &str, key: &str, value: &str, nth: usize, message: String| {
-            CatalogError::Invalid {
-                file: file.to_string(),
-                line: super::line_of(text, Some(section), key, value, nth),
-                message,
-            }
-        };
-        let cut = parsed.listing.cut_off.value;
-        if !(cut > 0.0 && cut <= 100.0) {
-            return Err(bad_at(
-                "listing",
-                "cut_off",
-                "",
-                0,
-                format!(
-                    "listing.cut_off {cut} must be a share of the contents above 0 and at most 100 %"
-                ),
-            ));
-        }
-        let ph = &parsed.listing.extreme_ph;
-        if ph.at_or_below.partial_cmp(&ph.at_or_above) != Some(std::cmp::Ordering::Less) {
-            return Err(bad_at(
-                "listing",
-                "extreme_ph",
-                "",
-                0,
-                "listing.extreme_ph: at_or_below must lie below at_or_above".into(),
-            ));
-        }
-        let known = |id: &str| parsed.hazard_classes.iter().any(|h| h.id == id);
-        if !known(&ph.hazard) {
-            return Err(bad_at(
-                "listing",
-                "hazard",
-                &ph.hazard,
-                0,
-                format!(
-                    "listing.extreme_ph names `{}`, which is not in hazard_classes",
-                    ph.hazard
-                ),
-            ));
-        }
-        for (i, h) in parsed.hazard_classes.iter().enumerate() {
-            if parsed.hazard_classes[..i].iter().any(|x| x.id == h.id) {
-                return Err(bad_at(
-                    "hazard_classes",
-                    "id",
-                    &h.id,
-                    1,
-                    format!("hazard class `{}` appears twice", h.id),
-                ));
-            }
-        }
-        for (i, c) in parsed.classes.iter().enumerate() {
-            let bad = |nth: usize, m: String| bad_at("classes", "class", &c.class, nth, m);
-            if cat.class(&c.class).is_none() {
-                return Err(bad(
-                    0,
-                    format!("`{}` is not a class of data/classes.yaml", c.class),
-                ));
-            }
-            if parsed.classes[..i].iter().any(|x| x.class == c.class) {
-                return Err(bad(1, format!("class `{}` appears twice", c.class)));
-            }
-            if let Some(g) = c.ghs.iter().find(|g| !known(g)) {
-                return Err(bad(
-                    0,
-                    format!(
-                        "class `{}` names `{g}`, which is not in hazard_classes",
-                        c.class
-                    ),
-                ));
-            }
-            if c.source.trim().is_empty() {
-                return Err(bad(0, format!("class `{}` needs a source", c.class)));
-            }
-        }
+        let parsed: GhsFile = super::parse((file, text))?;
+        let src = Src::new((file, text));
+        check_listing(&parsed, src)?;
+        check_hazard_classes_once(&parsed.hazard_classes, src)?;
+        check_classes(&parsed, cat, src)?;
         Ok(GhsTable {
             listing: parsed.listing,
             hazard_classes: parsed.hazard_classes,
@@ -209,6 +136,95 @@ impl GhsTable {
             .filter(|id| self.of_class(id).is_none())
             .collect()
     }
+}
+
+/// The listing rule: a cut-off that is a share of the contents, an extreme-pH band that is
+/// a band, and a hazard for it that the table lists. (A block as a whole is found by its
+/// key with an empty value.)
+fn check_listing(parsed: &GhsFile, src: Src<'_>) -> Result<(), CatalogError> {
+    let cut = parsed.listing.cut_off.value;
+    if !(cut > 0.0 && cut <= 100.0) {
+        return Err(src.err_in(
+            "listing",
+            "cut_off",
+            "",
+            0,
+            format!(
+                "listing.cut_off {cut} must be a share of the contents above 0 and at most 100 %"
+            ),
+        ));
+    }
+    let ph = &parsed.listing.extreme_ph;
+    if ph.at_or_below.partial_cmp(&ph.at_or_above) != Some(std::cmp::Ordering::Less) {
+        return Err(src.err_in(
+            "listing",
+            "extreme_ph",
+            "",
+            0,
+            "listing.extreme_ph: at_or_below must lie below at_or_above".into(),
+        ));
+    }
+    if !parsed.lists_hazard(&ph.hazard) {
+        return Err(src.err_in(
+            "listing",
+            "hazard",
+            &ph.hazard,
+            0,
+            format!(
+                "listing.extreme_ph names `{}`, which is not in hazard_classes",
+                ph.hazard
+            ),
+        ));
+    }
+    Ok(())
+}
+
+fn check_hazard_classes_once(
+    hazard_classes: &[GhsHazardClass],
+    src: Src<'_>,
+) -> Result<(), CatalogError> {
+    for (i, h) in hazard_classes.iter().enumerate() {
+        if hazard_classes[..i].iter().any(|x| x.id == h.id) {
+            return Err(src.err_in(
+                "hazard_classes",
+                "id",
+                &h.id,
+                1,
+                format!("hazard class `{}` appears twice", h.id),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Each of offgas's classes is one of data/classes.yaml, listed once, naming only hazard
+/// classes of the table, with a source.
+fn check_classes(parsed: &GhsFile, cat: &Catalog, src: Src<'_>) -> Result<(), CatalogError> {
+    for (i, c) in parsed.classes.iter().enumerate() {
+        let bad = |nth: usize, m: String| src.err_in("classes", "class", &c.class, nth, m);
+        if cat.class(&c.class).is_none() {
+            return Err(bad(
+                0,
+                format!("`{}` is not a class of data/classes.yaml", c.class),
+            ));
+        }
+        if parsed.classes[..i].iter().any(|x| x.class == c.class) {
+            return Err(bad(1, format!("class `{}` appears twice", c.class)));
+        }
+        if let Some(g) = c.ghs.iter().find(|g| !parsed.lists_hazard(g)) {
+            return Err(bad(
+                0,
+                format!(
+                    "class `{}` names `{g}`, which is not in hazard_classes",
+                    c.class
+                ),
+            ));
+        }
+        if c.source.trim().is_empty() {
+            return Err(bad(0, format!("class `{}` needs a source", c.class)));
+        }
+    }
+    Ok(())
 }
 
 #[cfg(test)]

@@ -4,7 +4,8 @@
 //! into an `InputError` that names the file, the line where it can be found, and the fix.
 
 use crate::basics::quantity::{
-    parse_amount, parse_temperature, parse_volume, Amount, QuantityError,
+    parse_amount, parse_area_m2, parse_pressure_kpa, parse_temperature, parse_volume, Amount,
+    QuantityError,
 };
 use crate::catalog::{Catalog, PhysicalState, SubstanceId};
 use crate::chem::{Closure, Mixture};
@@ -127,61 +128,20 @@ impl Batch {
             text,
             crate::basics::input_shape::MAX_FILE_BYTES,
         )?;
-        let raw: RawBatch = serde_yaml::from_str(text).map_err(|e| {
-            let line = e.location().map(|l| l.line());
-            let msg = e.to_string();
-            let fix = if msg.contains("unknown field") {
-                Some("the keys a batch file knows are: name, capacity, volume, temperature, closure, density, rated_pressure, surface_area, contents, note".into())
-            } else {
-                Some("check the indentation and the `key: value` form; see data/demo/ for examples".into())
-            };
-            ctx.err(line, format!("not a readable batch file: {msg}"), fix)
-        })?;
-
-        let volume_v = raw.volume.as_ref().ok_or_else(|| {
-            ctx.err(
-                None,
-                "`volume` is missing",
-                Some("add the liquid volume, e.g. `volume: 12 L`".into()),
-            )
-        })?;
-        let mut volume = ctx.quantity("volume", volume_v, parse_volume)?.0;
+        let raw = read_raw(&ctx)?;
+        let written_volume = read_volume(&ctx, &raw)?;
         // An empty container (volume 0) may leave its contents out; anything else must say
         // what it holds.
-        let empty_container = volume == 0.0 && raw.capacity.is_some();
+        let empty_container = written_volume == 0.0 && raw.capacity.is_some();
         let no_contents: &[serde_yaml::Value] = &[];
         let contents = raw.contents.as_deref().unwrap_or(no_contents);
-        // An empty container (it has a capacity and no contents) holds a film of water, so
-        // that the first pour into it has something to meet.
-        if volume == 0.0 && raw.capacity.is_some() && contents.is_empty() {
-            volume = EMPTY_FILM_L;
-        }
-        if volume <= 0.0 {
-            return Err(ctx.err(
-                ctx.key_line("volume"),
-                "`volume` must be above zero",
-                Some("give the liquid volume in the batch, e.g. `volume: 12 L`".into()),
-            ));
-        }
-        let capacity = match &raw.capacity {
-            Some(v) => {
-                let c = ctx.quantity("capacity", v, parse_volume)?.0;
-                if c <= 0.0 {
-                    return Err(ctx.err(
-                        ctx.key_line("capacity"),
-                        "`capacity` must be above zero",
-                        None,
-                    ));
-                }
-                if volume > c * (1.0 + 1e-9) {
-                    return Err(ctx.err(
-                        ctx.key_line("volume"),
-                        format!("`volume` ({volume} L) is more than the `capacity` ({c} L)"),
-                        Some("the liquid cannot exceed the vessel; check both numbers".into()),
-                    ));
-                }
-                Some(c)
-            }
+        let volume = liquid_volume(
+            &ctx,
+            written_volume,
+            raw.capacity.is_some() && contents.is_empty(),
+        )?;
+        let capacity_l = match &raw.capacity {
+            Some(v) => Some(read_capacity(&ctx, v, volume)?),
             None => None,
         };
         let (temperature_k, temperature_given) = match &raw.temperature {
@@ -189,55 +149,32 @@ impl Batch {
             None => (298.15, false),
         };
         check_temperature(&ctx, temperature_k)?;
-        let closure = match raw.closure.as_deref() {
-            None => Closure::Sealed,
-            Some(s) => match s.trim().to_lowercase().as_str() {
-                "sealed" => Closure::Sealed,
-                "vented" => Closure::Vented,
-                "open" => Closure::Open,
-                other => {
-                    return Err(ctx.err(
-                        ctx.key_line("closure"),
-                        format!("`closure: {other}` is not one offgas knows"),
-                        Some("use sealed, vented or open".into()),
-                    ))
-                }
-            },
-        };
+        let closure = read_closure(&ctx, raw.closure.as_deref())?;
         let (density, density_given) = match &raw.density {
-            Some(v) => {
-                let line = ctx.key_line("density");
-                let t = scalar_text(v).unwrap_or_default();
-                let d = parse_density(&t).ok_or_else(|| {
-                    ctx.err(
-                        line,
-                        format!("`density: {t}` is not a density"),
-                        Some("write it like `density: 1.05 g/mL`".into()),
-                    )
-                })?;
-                (d, true)
-            }
+            Some(v) => (read_density(&ctx, v)?, true),
             None => (1.0, false),
         };
-
-        let rated_pressure_kpa = match &raw.rated_pressure {
-            Some(v) => Some(ctx.quantity(
-                "rated_pressure",
-                v,
-                crate::basics::quantity::parse_pressure_kpa,
-            )?),
-            None => None,
-        };
-        let surface_area_m2 = match &raw.surface_area {
-            Some(v) => {
-                Some(ctx.quantity("surface_area", v, crate::basics::quantity::parse_area_m2)?)
-            }
-            None => None,
-        };
+        let rated_pressure_kpa = raw
+            .rated_pressure
+            .as_ref()
+            .map(|v| ctx.quantity("rated_pressure", v, parse_pressure_kpa))
+            .transpose()?;
+        let surface_area_m2 = raw
+            .surface_area
+            .as_ref()
+            .map(|v| ctx.quantity("surface_area", v, parse_area_m2))
+            .transpose()?;
+        if raw.contents.is_none() && !empty_container {
+            return Err(ctx.err(
+                None,
+                "`contents` is missing: offgas cannot tell what the batch holds",
+                Some("list what it holds, e.g. `contents:` then `  - sodium chloride: 9 g/L`; for plain water write `contents: []`".into()),
+            ));
+        }
         let mut batch = Batch {
             file: file.to_string(),
-            name: raw.name.unwrap_or_else(|| file.to_string()),
-            capacity_l: capacity,
+            name: raw.name.clone().unwrap_or_else(|| file.to_string()),
+            capacity_l,
             volume_l: volume,
             temperature_k,
             temperature_given,
@@ -248,62 +185,96 @@ impl Batch {
             surface_area_m2,
             components: Vec::new(),
         };
-        if raw.contents.is_none() && !empty_container {
-            return Err(ctx.err(
-                None,
-                "`contents` is missing: offgas cannot tell what the batch holds",
-                Some("list what it holds, e.g. `contents:` then `  - sodium chloride: 9 g/L`; for plain water write `contents: []`".into()),
-            ));
-        }
         let contents_line = ctx.key_line("contents").unwrap_or(1);
+        let liquid_ml = batch.read_contents(cat, &ctx, contents, contents_line)?;
+        batch.check_contents(cat, &ctx, contents_line, liquid_ml)?;
+        Ok(batch)
+    }
+
+    /// Resolves each contents entry into a component; returns the mL of the liquids listed.
+    fn read_contents(
+        &mut self,
+        cat: &Catalog,
+        ctx: &Ctx<'_>,
+        contents: &[serde_yaml::Value],
+        contents_line: usize,
+    ) -> Result<f64, InputError> {
+        // Entries are found in the text in order, each after the one before.
         let mut search_from = contents_line;
         let mut liquid_ml = 0.0;
         for item in contents {
-            let (written, amount_text) = component_parts(item).ok_or_else(|| {
-                ctx.err(
-                    line_of(text, "-", search_from),
-                    "a contents entry must read `- substance: amount`",
-                    Some("e.g. `- sodium hydroxide: 0.1 mol/L` or `- {substance: sodium hydroxide, amount: 0.1 mol/L}`".into()),
-                )
-            })?;
-            let line = line_of(text, &written, search_from);
-            if let Some(l) = line {
+            let (component, ml) = self.read_component(cat, ctx, item, search_from)?;
+            if let Some(l) = component.line {
                 search_from = l + 1;
             }
-            crate::basics::input_shape::check_name_length(&written).map_err(|m| {
-                ctx.err(
-                    line,
-                    m,
-                    Some("name the substance by its common name, formula or CAS number".into()),
-                )
-            })?;
-            let sid = cat.find_substance(&written).ok_or_else(|| {
-                let close = cat.closest_names(&written, 3);
-                ctx.err(
-                    line,
-                    format!("unknown substance `{written}`"),
-                    Some(format!(
-                        "did you mean: {}? (`offgas lookup NAME` searches names, synonyms, formulas and CAS numbers)",
-                        close.join(", ")
-                    )),
-                )
-            })?;
-            let amount = parse_amount(&amount_text)
-                .map_err(|e| ctx.err(line, format!("`{written}`: {e}"), None))?;
-            check_share_form(cat, sid, amount)
-                .map_err(|(m, fix)| ctx.err(line, format!("`{written}`: {m}"), Some(fix)))?;
-            let (moles, ml) = moles_of(cat, sid, amount, volume, density)
-                .map_err(|m| ctx.err(line, format!("`{written}`: {m}"), None))?;
             liquid_ml += ml;
-            batch.components.push(Component {
-                written,
-                substance: sid,
-                amount,
-                moles,
-                line,
-            });
+            self.components.push(component);
         }
-        let shares: f64 = batch
+        Ok(liquid_ml)
+    }
+
+    /// One contents entry, with the mL of liquid it adds; `search_from` is the line its
+    /// text is looked for from.
+    fn read_component(
+        &self,
+        cat: &Catalog,
+        ctx: &Ctx<'_>,
+        item: &serde_yaml::Value,
+        search_from: usize,
+    ) -> Result<(Component, f64), InputError> {
+        let (written, amount_text) = component_parts(item).ok_or_else(|| {
+            ctx.err(
+                line_of(ctx.text, "-", search_from),
+                "a contents entry must read `- substance: amount`",
+                Some("e.g. `- sodium hydroxide: 0.1 mol/L` or `- {substance: sodium hydroxide, amount: 0.1 mol/L}`".into()),
+            )
+        })?;
+        let line = line_of(ctx.text, &written, search_from);
+        crate::basics::input_shape::check_name_length(&written).map_err(|m| {
+            ctx.err(
+                line,
+                m,
+                Some("name the substance by its common name, formula or CAS number".into()),
+            )
+        })?;
+        let sid = cat.find_substance(&written).ok_or_else(|| {
+            let close = cat.closest_names(&written, 3);
+            ctx.err(
+                line,
+                format!("unknown substance `{written}`"),
+                Some(format!(
+                    "did you mean: {}? (`offgas lookup NAME` searches names, synonyms, formulas and CAS numbers)",
+                    close.join(", ")
+                )),
+            )
+        })?;
+        let amount = parse_amount(&amount_text)
+            .map_err(|e| ctx.err(line, format!("`{written}`: {e}"), None))?;
+        check_share_form(cat, sid, amount)
+            .map_err(|(m, fix)| ctx.err(line, format!("`{written}`: {m}"), Some(fix)))?;
+        let (moles, ml) = moles_of(cat, sid, amount, self.volume_l, self.density_g_per_ml)
+            .map_err(|m| ctx.err(line, format!("`{written}`: {m}"), None))?;
+        let component = Component {
+            written,
+            substance: sid,
+            amount,
+            moles,
+            line,
+        };
+        Ok((component, ml))
+    }
+
+    /// Checks the contents as a whole: the shares, each component's amount, the total
+    /// mass and the liquids' volume. Shares given without a density settle it first.
+    fn check_contents(
+        &mut self,
+        cat: &Catalog,
+        ctx: &Ctx<'_>,
+        contents_line: usize,
+        liquid_ml: f64,
+    ) -> Result<(), InputError> {
+        let volume = self.volume_l;
+        let shares: f64 = self
             .components
             .iter()
             .filter_map(|c| match c.amount {
@@ -318,16 +289,16 @@ impl Batch {
                 Some("check the percentages".into()),
             ));
         }
-        if shares > 0.0 && !density_given {
-            batch.settle_shares(cat, volume).map_err(|(c, m, fix)| {
+        if shares > 0.0 && !self.density_given {
+            self.settle_shares(cat, volume).map_err(|(c, m, fix)| {
                 ctx.err(c.line, format!("`{}`: {m}", c.written), Some(fix))
             })?;
         }
-        for c in &batch.components {
+        for c in &self.components {
             check_reachable(cat, c.substance, c.moles, volume)
                 .map_err(|(m, fix)| ctx.err(c.line, format!("`{}`: {m}", c.written), Some(fix)))?;
         }
-        check_total_mass(cat, &batch.components, volume).map_err(|m| {
+        check_total_mass(cat, &self.components, volume).map_err(|m| {
             ctx.err(
                 Some(contents_line),
                 m,
@@ -344,7 +315,7 @@ impl Batch {
                 Some("raise `volume` or lower the amounts".into()),
             ));
         }
-        Ok(batch)
+        Ok(())
     }
 
     /// A stream-like batch from parts already read elsewhere (an inventory row, a CSV line):
@@ -494,6 +465,104 @@ impl Batch {
         m.headspace_l = (capacity_l - self.volume_l).max(0.0);
         m
     }
+}
+
+/// The file as YAML of the batch's keys; a mistake gets the fix its kind needs.
+fn read_raw(ctx: &Ctx<'_>) -> Result<RawBatch, InputError> {
+    serde_yaml::from_str(ctx.text).map_err(|e| {
+        let line = e.location().map(|l| l.line());
+        let msg = e.to_string();
+        let fix = if msg.contains("unknown field") {
+            Some("the keys a batch file knows are: name, capacity, volume, temperature, closure, density, rated_pressure, surface_area, contents, note".into())
+        } else {
+            Some("check the indentation and the `key: value` form; see data/demo/ for examples".into())
+        };
+        ctx.err(line, format!("not a readable batch file: {msg}"), fix)
+    })
+}
+
+/// The volume as written, L (it must be written).
+fn read_volume(ctx: &Ctx<'_>, raw: &RawBatch) -> Result<f64, InputError> {
+    let v = raw.volume.as_ref().ok_or_else(|| {
+        ctx.err(
+            None,
+            "`volume` is missing",
+            Some("add the liquid volume, e.g. `volume: 12 L`".into()),
+        )
+    })?;
+    Ok(ctx.quantity("volume", v, parse_volume)?.0)
+}
+
+/// The liquid's volume, L, which must be above zero. An empty container (it has a
+/// capacity and no contents) holds a film of water, so that the first pour into it has
+/// something to meet.
+fn liquid_volume(
+    ctx: &Ctx<'_>,
+    written: f64,
+    container_without_contents: bool,
+) -> Result<f64, InputError> {
+    let volume = if written == 0.0 && container_without_contents {
+        EMPTY_FILM_L
+    } else {
+        written
+    };
+    if volume <= 0.0 {
+        return Err(ctx.err(
+            ctx.key_line("volume"),
+            "`volume` must be above zero",
+            Some("give the liquid volume in the batch, e.g. `volume: 12 L`".into()),
+        ));
+    }
+    Ok(volume)
+}
+
+/// The container's capacity, L: above zero and at least the liquid's volume.
+fn read_capacity(ctx: &Ctx<'_>, v: &serde_yaml::Value, volume: f64) -> Result<f64, InputError> {
+    let c = ctx.quantity("capacity", v, parse_volume)?.0;
+    if c <= 0.0 {
+        return Err(ctx.err(
+            ctx.key_line("capacity"),
+            "`capacity` must be above zero",
+            None,
+        ));
+    }
+    if volume > c * (1.0 + 1e-9) {
+        return Err(ctx.err(
+            ctx.key_line("volume"),
+            format!("`volume` ({volume} L) is more than the `capacity` ({c} L)"),
+            Some("the liquid cannot exceed the vessel; check both numbers".into()),
+        ));
+    }
+    Ok(c)
+}
+
+/// The closure; a container is sealed unless it says otherwise.
+fn read_closure(ctx: &Ctx<'_>, written: Option<&str>) -> Result<Closure, InputError> {
+    let Some(s) = written else {
+        return Ok(Closure::Sealed);
+    };
+    match s.trim().to_lowercase().as_str() {
+        "sealed" => Ok(Closure::Sealed),
+        "vented" => Ok(Closure::Vented),
+        "open" => Ok(Closure::Open),
+        other => Err(ctx.err(
+            ctx.key_line("closure"),
+            format!("`closure: {other}` is not one offgas knows"),
+            Some("use sealed, vented or open".into()),
+        )),
+    }
+}
+
+/// The density written, g/mL.
+fn read_density(ctx: &Ctx<'_>, v: &serde_yaml::Value) -> Result<f64, InputError> {
+    let t = scalar_text(v).unwrap_or_default();
+    parse_density(&t).ok_or_else(|| {
+        ctx.err(
+            ctx.key_line("density"),
+            format!("`density: {t}` is not a density"),
+            Some("write it like `density: 1.05 g/mL`".into()),
+        )
+    })
 }
 
 fn check_temperature(ctx: &Ctx<'_>, t_k: f64) -> Result<(), InputError> {

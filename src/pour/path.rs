@@ -135,6 +135,11 @@ pub fn scan<X: Clone>(
     if refine_steps > 0 && wi > 0 && wi + 1 < states.len() && states[wi].score > 0.0 {
         refine(&mut states, wi, refine_steps, tolerance, &at)?;
     }
+    Ok(summarize(&states, detail))
+}
+
+/// What a pour's scan reports, from every state it solved.
+fn summarize<X: Clone>(states: &[PathState<X>], detail: Detail) -> PathScan<X> {
     let worst = states
         .iter()
         .max_by(|a, b| a.score.total_cmp(&b.score))
@@ -156,26 +161,45 @@ pub fn scan<X: Clone>(
         .iter()
         .map(|s| s.state.temperature_k)
         .fold(f64::NEG_INFINITY, f64::max);
-    let mut gas_peaks: Vec<(GasName, f64, f64)> = Vec::new();
-    for s in &states {
+    // The storeroom screen draws no pour, and builds no points for it.
+    let drawn = if detail == Detail::Coarse {
+        &states[..0]
+    } else {
+        states
+    };
+    PathScan {
+        worst,
+        end,
+        profile,
+        ph_range,
+        temperature_max_k,
+        gas_peaks: gas_peaks(states),
+        points: plot_points(drawn),
+    }
+}
+
+/// Each gas at its own highest partial pressure: (gas, fraction added there, Pa); the
+/// first state wins a tie.
+fn gas_peaks<X>(states: &[PathState<X>]) -> Vec<(GasName, f64, f64)> {
+    let mut peaks: Vec<(GasName, f64, f64)> = Vec::new();
+    for s in states {
         for g in &s.state.gases {
-            match gas_peaks.iter_mut().find(|p| p.0 == g.gas) {
+            match peaks.iter_mut().find(|p| p.0 == g.gas) {
                 Some(p) if g.partial_pressure_pa > p.2 => {
                     p.1 = s.fraction_added;
                     p.2 = g.partial_pressure_pa;
                 }
                 Some(_) => {}
-                None => gas_peaks.push((g.gas.clone(), s.fraction_added, g.partial_pressure_pa)),
+                None => peaks.push((g.gas.clone(), s.fraction_added, g.partial_pressure_pa)),
             }
         }
     }
-    // The storeroom screen draws no pour, and builds no points for it.
-    let drawn = if detail == Detail::Coarse {
-        &states[..0]
-    } else {
-        &states[..]
-    };
-    let mut points: Vec<PathPoint> = drawn
+    peaks
+}
+
+/// The states as the plots draw them, in order of fraction.
+fn plot_points<X>(states: &[PathState<X>]) -> Vec<PathPoint> {
+    let mut points: Vec<PathPoint> = states
         .iter()
         .map(|s| PathPoint {
             fraction_added: s.fraction_added,
@@ -190,15 +214,7 @@ pub fn scan<X: Clone>(
         })
         .collect();
     points.sort_by(|a, b| a.fraction_added.total_cmp(&b.fraction_added));
-    Ok(PathScan {
-        worst,
-        end,
-        profile,
-        ph_range,
-        temperature_max_k,
-        gas_peaks,
-        points,
-    })
+    points
 }
 
 /// Brent's search for the highest score between the scanned neighbours of point `wi`:
