@@ -497,14 +497,6 @@ fn evaluate(
     pb: &Profile,
     opts: &CheckOptions,
 ) -> PairOutcome {
-    let fail = |e: &crate::check::CheckError| PairOutcome {
-        severity: Severity::Review,
-        worst_ratio: 0.0,
-        gas: None,
-        headline: not_assessed_headline(e),
-        codes: vec!["not-assessed".into()],
-        computed: false,
-    };
     let (vessel, stream) = match (&a.contents, &b.contents) {
         (Contents::Liquid(x), Contents::Liquid(y)) => (x.clone(), y.clone()),
         (Contents::Liquid(x), Contents::Dry { substance, moles }) => (
@@ -527,30 +519,7 @@ fn evaluate(
                 y.volume_l,
             ),
         ),
-        (Contents::Dry { .. }, Contents::Dry { .. }) => {
-            // Two dry containers: only the rules can say what they do together.
-            let hits = rules.evaluate(cat, &rule_context(pa, pb, 0.0, 14.0));
-            let severity = hits
-                .iter()
-                .map(|h| Severity::from(h.rule.rule.severity))
-                .max()
-                .unwrap_or(Severity::Clear);
-            return PairOutcome {
-                severity,
-                worst_ratio: 0.0,
-                gas: hits
-                    .iter()
-                    .flat_map(|h| h.rule.rule.forms.first())
-                    .next()
-                    .cloned(),
-                headline: hits
-                    .first()
-                    .map(|h| h.rule.rule.message.clone())
-                    .unwrap_or_default(),
-                codes: hits.iter().map(|h| h.rule.rule.id.clone()).collect(),
-                computed: false,
-            };
-        }
+        (Contents::Dry { .. }, Contents::Dry { .. }) => return dry_pair(cat, rules, pa, pb),
     };
     let mut vessel = vessel;
     vessel.capacity_l = Some(vessel.volume_l + stream.volume_l);
@@ -566,7 +535,45 @@ fn evaluate(
             let above = [bars(pa), bars(pb)].concat();
             outcome_of(cat, th, &r, &above, !(pa.dry || pb.dry))
         }
-        Err(e) => fail(&e),
+        Err(e) => not_assessed(&e),
+    }
+}
+
+/// Two dry containers: only the rules can say what they do together, with any pH
+/// condition taken as possible.
+fn dry_pair(cat: &Catalog, rules: &RuleSet, pa: &Profile, pb: &Profile) -> PairOutcome {
+    let hits = rules.evaluate(cat, &rule_context(pa, pb, 0.0, 14.0));
+    let severity = hits
+        .iter()
+        .map(|h| Severity::from(h.rule.rule.severity))
+        .max()
+        .unwrap_or(Severity::Clear);
+    PairOutcome {
+        severity,
+        worst_ratio: 0.0,
+        gas: hits
+            .iter()
+            .flat_map(|h| h.rule.rule.forms.first())
+            .next()
+            .cloned(),
+        headline: hits
+            .first()
+            .map(|h| h.rule.rule.message.clone())
+            .unwrap_or_default(),
+        codes: hits.iter().map(|h| h.rule.rule.id.clone()).collect(),
+        computed: false,
+    }
+}
+
+/// A pair whose check failed is a review, so that nobody reads it as clear.
+fn not_assessed(e: &crate::check::CheckError) -> PairOutcome {
+    PairOutcome {
+        severity: Severity::Review,
+        worst_ratio: 0.0,
+        gas: None,
+        headline: not_assessed_headline(e),
+        codes: vec!["not-assessed".into()],
+        computed: false,
     }
 }
 
@@ -838,18 +845,63 @@ impl Auditor<'_> {
     /// Audits every pair that can meet; findings ranked by severity, level and ratio.
     pub fn audit(&self, inv: &Inventory, progress: &(dyn Fn(usize, usize) + Sync)) -> AuditReport {
         let judge = PairJudge::new(self, inv);
-        let Meetings {
-            pairs,
-            places,
-            cabinets: n_cabinets,
-        } = meeting_pairs(inv, self.settings.cabinet_level);
+        let meetings = meeting_pairs(inv, self.settings.cabinet_level);
+        let pairs = &meetings.pairs;
         let to_check: Vec<(usize, usize)> = pairs
             .iter()
             .filter(|(i, j, _, _)| judge.screen(*i, *j))
             .map(|(i, j, _, _)| (*i, *j))
             .collect();
         judge.judge_all(&to_check, progress);
+        let (findings, by_cabinet) = self.findings(inv, &judge, pairs, &to_check);
+        let cabinets = cabinet_matrices(inv, &meetings, by_cabinet);
+        let clear_cabinets = clear_cabinets(&meetings, &cabinets);
+        let zones: std::collections::HashSet<&[String]> = inv
+            .containers
+            .iter()
+            .map(|c| inv.spill_zone_path(&c.path))
+            .collect();
+        AuditReport {
+            tool: "offgas",
+            version: env!("CARGO_PKG_VERSION"),
+            name: inv.name.clone(),
+            file: inv.file.clone(),
+            severity: findings
+                .iter()
+                .map(|f| f.severity)
+                .max()
+                .unwrap_or(Severity::Clear),
+            counts: AuditCounts {
+                containers: inv.containers.len(),
+                spill_zones: zones.len(),
+                cabinets: meetings.cabinets,
+                pairs_that_can_meet: pairs.len(),
+                pairs_cleared_by_screening: pairs.len() - to_check.len(),
+                pairs_checked: to_check.len(),
+                distinct_checks: judge.distinct_checks(),
+            },
+            findings,
+            cabinets,
+            clear_cabinets,
+            suggestion: None,
+            skipped_rows: Vec::new(),
+            assumptions: audit_assumptions(self, inv),
+            cautions: self.th.cautions.clone(),
+        }
+    }
+
+    /// The checked pairs that are not clear, ranked, and the same pairs by the place whose
+    /// matrix shows them (in the order the pairs were met).
+    fn findings(
+        &self,
+        inv: &Inventory,
+        judge: &PairJudge,
+        pairs: &[Meeting],
+        to_check: &[(usize, usize)],
+    ) -> (Vec<AuditFinding>, HashMap<usize, Vec<CabinetHit>>) {
         let cat = self.cat;
+        // One reference per container and one headline per kind pair, shared by every
+        // finding that names them rather than copied into each.
         let mut refs: HashMap<usize, Arc<ContainerRef>> = HashMap::new();
         let mut cref = |i: usize| {
             refs.entry(i)
@@ -867,7 +919,7 @@ impl Auditor<'_> {
         let mut findings = Vec::new();
         let mut by_cabinet: HashMap<usize, Vec<CabinetHit>> = HashMap::new();
         let checked: std::collections::HashSet<(usize, usize)> = to_check.iter().copied().collect();
-        for &(i, j, level, cabinet) in &pairs {
+        for &(i, j, level, cabinet) in pairs {
             if !checked.contains(&(i, j)) {
                 continue;
             }
@@ -900,114 +952,126 @@ impl Auditor<'_> {
                 computed: o.computed,
             });
         }
-        findings.sort_by(|x, y| {
-            y.severity
-                .cmp(&x.severity)
-                .then(x.level.cmp(&y.level))
-                .then(y.worst_ratio.total_cmp(&x.worst_ratio))
-                .then(x.a.id.cmp(&y.a.id))
-                .then(x.b.id.cmp(&y.b.id))
-        });
-        // Every container of a cabinet, and every container that meets another in a place,
-        // whether its pairs are clear or not.
-        let mut members: HashMap<usize, Vec<usize>> = HashMap::new();
-        let mut meets: std::collections::HashSet<(usize, usize)> = Default::default();
-        for &(i, j, _, k) in &pairs {
-            let m = members.entry(k).or_default();
-            m.push(i);
-            m.push(j);
-            meets.insert((i.min(j), i.max(j)));
-        }
-        for (i, c) in inv.containers.iter().enumerate() {
-            let cabinet = inv.cabinet_path(&c.path).join("/");
-            if let Ok(k) = places[..n_cabinets].binary_search(&cabinet) {
-                members.entry(k).or_default().push(i);
-            }
-        }
-        let zone_of = |i: usize| inv.spill_zone_path(&inv.containers[i].path).join(" / ");
-        let mut cabinets: Vec<CabinetMatrix> = by_cabinet
-            .into_iter()
-            .map(|(place, hits)| {
-                let mut members = members.remove(&place).unwrap_or_default();
-                members.sort_by(|&a, &b| {
-                    zone_of(a)
-                        .cmp(&zone_of(b))
-                        .then(inv.containers[a].id.cmp(&inv.containers[b].id))
-                });
-                members.dedup();
-                let pos = |k: usize| members.iter().position(|&m| m == k).expect("member");
-                let mut apart = Vec::new();
-                for (x, &a) in members.iter().enumerate() {
-                    for (y, &b) in members.iter().enumerate().skip(x + 1) {
-                        if !meets.contains(&(a.min(b), a.max(b))) {
-                            apart.push([x, y]);
-                        }
-                    }
-                }
-                CabinetMatrix {
-                    cabinet: places[place].replace('/', " / "),
-                    ids: members
-                        .iter()
-                        .map(|&m| inv.containers[m].id.clone())
-                        .collect(),
-                    zones: members.iter().map(|&m| zone_of(m)).collect(),
-                    apart,
-                    cells: hits
-                        .into_iter()
-                        .map(|h| MatrixCell {
-                            i: pos(h.i),
-                            j: pos(h.j),
-                            severity: h.severity,
-                            level: h.level,
-                            worst_ratio: h.worst_ratio,
-                            gas: h.gas,
-                            codes: h.codes,
-                        })
-                        .collect(),
-                }
-            })
-            .collect();
-        cabinets.sort_by(|a, b| a.cabinet.cmp(&b.cabinet));
-        let shown: std::collections::HashSet<&str> =
-            cabinets.iter().map(|m| m.cabinet.as_str()).collect();
-        let clear_cabinets: Vec<String> = places[..n_cabinets]
-            .iter()
-            .map(|p| p.replace('/', " / "))
-            .filter(|p| !shown.contains(p.as_str()))
-            .collect();
-        let zones: std::collections::HashSet<&[String]> = inv
-            .containers
-            .iter()
-            .map(|c| inv.spill_zone_path(&c.path))
-            .collect();
-        AuditReport {
-            tool: "offgas",
-            version: env!("CARGO_PKG_VERSION"),
-            name: inv.name.clone(),
-            file: inv.file.clone(),
-            severity: findings
-                .iter()
-                .map(|f| f.severity)
-                .max()
-                .unwrap_or(Severity::Clear),
-            counts: AuditCounts {
-                containers: inv.containers.len(),
-                spill_zones: zones.len(),
-                cabinets: n_cabinets,
-                pairs_that_can_meet: pairs.len(),
-                pairs_cleared_by_screening: pairs.len() - to_check.len(),
-                pairs_checked: to_check.len(),
-                distinct_checks: judge.distinct_checks(),
-            },
-            findings,
-            cabinets,
-            clear_cabinets,
-            suggestion: None,
-            skipped_rows: Vec::new(),
-            assumptions: audit_assumptions(self, inv),
-            cautions: self.th.cautions.clone(),
+        rank(&mut findings);
+        (findings, by_cabinet)
+    }
+}
+
+/// Worst first: by severity, then the nearer level, then the higher ratio; ids break ties.
+fn rank(findings: &mut [AuditFinding]) {
+    findings.sort_by(|x, y| {
+        y.severity
+            .cmp(&x.severity)
+            .then(x.level.cmp(&y.level))
+            .then(y.worst_ratio.total_cmp(&x.worst_ratio))
+            .then(x.a.id.cmp(&y.a.id))
+            .then(x.b.id.cmp(&y.b.id))
+    });
+}
+
+/// Pairs of containers by index, the lower first.
+type PairSet = std::collections::HashSet<(usize, usize)>;
+
+/// Every container of a cabinet, and every container that meets another in a place,
+/// whether its pairs are clear or not (by place; unsorted, with repeats); and every pair
+/// that meets (i < j).
+fn place_members(inv: &Inventory, meetings: &Meetings) -> (HashMap<usize, Vec<usize>>, PairSet) {
+    let mut members: HashMap<usize, Vec<usize>> = HashMap::new();
+    let mut meets: PairSet = Default::default();
+    for &(i, j, _, k) in &meetings.pairs {
+        let m = members.entry(k).or_default();
+        m.push(i);
+        m.push(j);
+        meets.insert((i.min(j), i.max(j)));
+    }
+    for (i, c) in inv.containers.iter().enumerate() {
+        let cabinet = inv.cabinet_path(&c.path).join("/");
+        if let Ok(k) = meetings.places[..meetings.cabinets].binary_search(&cabinet) {
+            members.entry(k).or_default().push(i);
         }
     }
+    (members, meets)
+}
+
+/// A container's spill zone as the matrices show it.
+fn zone_label(inv: &Inventory, i: usize) -> String {
+    inv.spill_zone_path(&inv.containers[i].path).join(" / ")
+}
+
+/// One matrix per place with a pair that is not clear, sorted by place.
+fn cabinet_matrices(
+    inv: &Inventory,
+    meetings: &Meetings,
+    by_cabinet: HashMap<usize, Vec<CabinetHit>>,
+) -> Vec<CabinetMatrix> {
+    let (mut members, meets) = place_members(inv, meetings);
+    let mut cabinets: Vec<CabinetMatrix> = by_cabinet
+        .into_iter()
+        .map(|(place, hits)| {
+            let members = members.remove(&place).unwrap_or_default();
+            matrix(inv, &meetings.places[place], members, &meets, hits)
+        })
+        .collect();
+    cabinets.sort_by(|a, b| a.cabinet.cmp(&b.cabinet));
+    cabinets
+}
+
+/// The matrix of one place: its containers by spill zone and id, the pairs among them
+/// that cannot meet, and the pairs that are not clear.
+fn matrix(
+    inv: &Inventory,
+    place: &str,
+    mut members: Vec<usize>,
+    meets: &PairSet,
+    hits: Vec<CabinetHit>,
+) -> CabinetMatrix {
+    members.sort_by(|&a, &b| {
+        zone_label(inv, a)
+            .cmp(&zone_label(inv, b))
+            .then(inv.containers[a].id.cmp(&inv.containers[b].id))
+    });
+    members.dedup();
+    let pos = |k: usize| members.iter().position(|&m| m == k).expect("member");
+    let mut apart = Vec::new();
+    for (x, &a) in members.iter().enumerate() {
+        for (y, &b) in members.iter().enumerate().skip(x + 1) {
+            if !meets.contains(&(a.min(b), a.max(b))) {
+                apart.push([x, y]);
+            }
+        }
+    }
+    CabinetMatrix {
+        cabinet: place.replace('/', " / "),
+        ids: members
+            .iter()
+            .map(|&m| inv.containers[m].id.clone())
+            .collect(),
+        zones: members.iter().map(|&m| zone_label(inv, m)).collect(),
+        apart,
+        cells: hits
+            .into_iter()
+            .map(|h| MatrixCell {
+                i: pos(h.i),
+                j: pos(h.j),
+                severity: h.severity,
+                level: h.level,
+                worst_ratio: h.worst_ratio,
+                gas: h.gas,
+                codes: h.codes,
+            })
+            .collect(),
+    }
+}
+
+/// The cabinets with no matrix: every pair in them is clear.
+fn clear_cabinets(meetings: &Meetings, matrices: &[CabinetMatrix]) -> Vec<String> {
+    let shown: std::collections::HashSet<&str> =
+        matrices.iter().map(|m| m.cabinet.as_str()).collect();
+    meetings.places[..meetings.cabinets]
+        .iter()
+        .map(|p| p.replace('/', " / "))
+        .filter(|p| !shown.contains(p.as_str()))
+        .collect()
 }
 
 fn audit_assumptions(a: &Auditor, inv: &Inventory) -> Vec<String> {

@@ -92,57 +92,13 @@ impl ColumnMapping {
         let mut problems = Vec::new();
         for (key, headers) in &pairs {
             let key = key.trim();
-            let Some(k) = KEYS.iter().find(|k| **k == key) else {
-                problems.push(format!(
-                    "`{key}` is not a field (the fields are: {})",
-                    KEYS.join(", ")
-                ));
-                continue;
-            };
-            let names: Vec<String> = match headers {
-                Headers::Joined(h) if *k == MULTI => {
-                    h.split('+').map(|p| p.trim().to_string()).collect()
+            match field_headers(key, headers) {
+                Err(problem) => problems.push(problem),
+                Ok((k, names)) => {
+                    if given.insert(k, names).is_some() {
+                        problems.push(format!("`{key}` is given twice"));
+                    }
                 }
-                Headers::Joined(h) => vec![h.trim().to_string()],
-                Headers::List(l) => l.iter().map(|p| p.trim().to_string()).collect(),
-            };
-            if names.len() > 1 && *k != MULTI {
-                problems.push(format!(
-                    "`{key}` names {} columns; only `{MULTI}` can be built from several",
-                    names.len()
-                ));
-                continue;
-            }
-            if names.iter().all(|n| n.is_empty()) {
-                problems.push(format!("`{key}` has no header name"));
-                continue;
-            }
-            if names.iter().any(|n| n.is_empty()) {
-                problems.push(format!(
-                    "`{key}` has an empty header name among its columns (`{}`)",
-                    names.join("+")
-                ));
-                continue;
-            }
-            if let Some(dup) = names
-                .iter()
-                .enumerate()
-                .find(|(i, n)| names[..*i].iter().any(|m| m.eq_ignore_ascii_case(n)))
-                .map(|(_, n)| n)
-            {
-                problems.push(format!("`{key}` names the column `{dup}` twice"));
-                continue;
-            }
-            if names.len() > super::MAX_LOCATION_LEVELS {
-                problems.push(format!(
-                    "`{key}` joins {} columns; a location has at most {} levels",
-                    names.len(),
-                    super::MAX_LOCATION_LEVELS
-                ));
-                continue;
-            }
-            if given.insert(k, names).is_some() {
-                problems.push(format!("`{key}` is given twice"));
             }
         }
         let missing: Vec<&str> = REQUIRED
@@ -193,6 +149,52 @@ impl ColumnMapping {
             [] => "the location column".into(),
         }
     }
+}
+
+/// The field `key` names and its header names, trimmed, or what is wrong with them.
+fn field_headers(key: &str, headers: &Headers) -> Result<(&'static str, Vec<String>), String> {
+    let Some(k) = KEYS.iter().find(|k| **k == key) else {
+        return Err(format!(
+            "`{key}` is not a field (the fields are: {})",
+            KEYS.join(", ")
+        ));
+    };
+    let names: Vec<String> = match headers {
+        Headers::Joined(h) if *k == MULTI => h.split('+').map(|p| p.trim().to_string()).collect(),
+        Headers::Joined(h) => vec![h.trim().to_string()],
+        Headers::List(l) => l.iter().map(|p| p.trim().to_string()).collect(),
+    };
+    if names.len() > 1 && *k != MULTI {
+        return Err(format!(
+            "`{key}` names {} columns; only `{MULTI}` can be built from several",
+            names.len()
+        ));
+    }
+    if names.iter().all(|n| n.is_empty()) {
+        return Err(format!("`{key}` has no header name"));
+    }
+    if names.iter().any(|n| n.is_empty()) {
+        return Err(format!(
+            "`{key}` has an empty header name among its columns (`{}`)",
+            names.join("+")
+        ));
+    }
+    if let Some(dup) = names
+        .iter()
+        .enumerate()
+        .find(|(i, n)| names[..*i].iter().any(|m| m.eq_ignore_ascii_case(n)))
+        .map(|(_, n)| n)
+    {
+        return Err(format!("`{key}` names the column `{dup}` twice"));
+    }
+    if names.len() > super::MAX_LOCATION_LEVELS {
+        return Err(format!(
+            "`{key}` joins {} columns; a location has at most {} levels",
+            names.len(),
+            super::MAX_LOCATION_LEVELS
+        ));
+    }
+    Ok((k, names))
 }
 
 /// Reads a command-line mapping such as
@@ -305,15 +307,49 @@ pub fn import(
     mapping: &ColumnMapping,
     skip_bad_rows: bool,
 ) -> Result<(Inventory, Vec<SkippedRow>), Vec<InputError>> {
-    let file_err = |message: String, fix: Option<String>| {
-        vec![InputError {
-            file: file.to_string(),
-            line: Some(1),
-            message,
-            fix,
-        }]
-    };
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let (mut reader, headers) = open_csv(file, text)?;
+    let cols =
+        find_columns(&headers, mapping).map_err(|(m, fix)| header_error(file, m, Some(fix)))?;
+    let (groups, mut bad) = read_rows(&mut reader, &cols, mapping);
+    let (containers, skipped_with) = build_containers(cat, file, mapping, &groups, &mut bad);
+    bad.sort_by_key(|b| b.row);
+    if !bad.is_empty() && !skip_bad_rows {
+        return Err(refusal(file, bad));
+    }
+    let skipped = skipped_rows(bad, skipped_with);
+    let (meet_depth, cabinet_depth) =
+        depths_from_the_end(containers.iter().map(|c| c.path.as_slice()));
+    let inventory = Inventory {
+        file: file.to_string(),
+        name: file.to_string(),
+        meet_depth,
+        cabinet_depth,
+        rooms: Vec::new(),
+        locations: Vec::new(),
+        containers,
+    };
+    Ok((inventory, skipped))
+}
+
+/// A problem with the file as a whole, reported on its header row.
+fn header_error(file: &str, message: String, fix: Option<String>) -> Vec<InputError> {
+    vec![InputError {
+        file: file.to_string(),
+        line: Some(1),
+        message,
+        fix,
+    }]
+}
+
+/// A CSV reader over text held in memory.
+type TextReader<'t> = csv::Reader<&'t [u8]>;
+
+/// A reader past the header row, and the header's names, trimmed.
+fn open_csv<'t>(
+    file: &str,
+    text: &'t str,
+) -> Result<(TextReader<'t>, Vec<String>), Vec<InputError>> {
     let mut reader = csv::ReaderBuilder::new()
         .delimiter(delimiter(text))
         .flexible(true)
@@ -321,22 +357,32 @@ pub fn import(
     let headers: Vec<String> = match reader.headers() {
         Ok(h) => h.iter().map(|s| s.trim().to_string()).collect(),
         Err(e) => {
-            return Err(file_err(
+            return Err(header_error(
+                file,
                 format!("the header row cannot be read: {e}"),
                 None,
             ))
         }
     };
     if headers.iter().all(|h| h.is_empty()) {
-        return Err(file_err(
+        return Err(header_error(
+            file,
             "the file has no header row".into(),
             Some(
                 "the first row names the columns, e.g. `id,substance,amount,size,location`".into(),
             ),
         ));
     }
-    let cols = find_columns(&headers, mapping).map_err(|(m, fix)| file_err(m, Some(fix)))?;
+    Ok((reader, headers))
+}
 
+/// The data rows grouped by container id, in the order the ids first appear, and the rows
+/// that cannot be read or name no container. Blank rows are passed over.
+fn read_rows(
+    reader: &mut TextReader,
+    cols: &Columns,
+    mapping: &ColumnMapping,
+) -> (Vec<(String, Vec<Row>)>, Vec<Bad>) {
     let mut bad: Vec<Bad> = Vec::new();
     let mut groups: Vec<(String, Vec<Row>)> = Vec::new();
     let mut group_of: HashMap<String, usize> = HashMap::new();
@@ -367,30 +413,7 @@ pub fn import(
         if record.iter().all(|c| c.trim().is_empty()) {
             continue;
         }
-        let cell = |i: Option<usize>| {
-            i.and_then(|i| record.get(i))
-                .unwrap_or("")
-                .trim()
-                .to_string()
-        };
-        // The location's columns joined outermost first, empty cells skipped.
-        let location = cols
-            .location
-            .iter()
-            .map(|&i| cell(Some(i)))
-            .filter(|c| !c.is_empty())
-            .collect::<Vec<_>>()
-            .join(" / ");
-        let r = Row {
-            row,
-            id: cell(Some(cols.id)),
-            substance: cell(Some(cols.substance)),
-            amount: cell(Some(cols.amount)),
-            unit: cell(cols.unit),
-            size: cell(Some(cols.size)),
-            location,
-            volume: cell(cols.volume),
-        };
+        let r = row_cells(&record, row, cols);
         if r.id.is_empty() {
             bad.push(Bad {
                 row,
@@ -411,10 +434,50 @@ pub fn import(
             }
         }
     }
+    (groups, bad)
+}
 
+/// One record's cells by field, trimmed.
+fn row_cells(record: &csv::StringRecord, row: usize, cols: &Columns) -> Row {
+    let cell = |i: Option<usize>| {
+        i.and_then(|i| record.get(i))
+            .unwrap_or("")
+            .trim()
+            .to_string()
+    };
+    // The location's columns joined outermost first, empty cells skipped.
+    let location = cols
+        .location
+        .iter()
+        .map(|&i| cell(Some(i)))
+        .filter(|c| !c.is_empty())
+        .collect::<Vec<_>>()
+        .join(" / ");
+    Row {
+        row,
+        id: cell(Some(cols.id)),
+        substance: cell(Some(cols.substance)),
+        amount: cell(Some(cols.amount)),
+        unit: cell(cols.unit),
+        size: cell(Some(cols.size)),
+        location,
+        volume: cell(cols.volume),
+    }
+}
+
+/// The containers that can be built, in the order of their ids; the problems of the
+/// others go to `bad`, and their good rows are returned as (row, id, first bad row),
+/// since they are skipped with them.
+fn build_containers(
+    cat: &Catalog,
+    file: &str,
+    mapping: &ColumnMapping,
+    groups: &[(String, Vec<Row>)],
+    bad: &mut Vec<Bad>,
+) -> (Vec<StoredContainer>, Vec<(usize, String, usize)>) {
     let mut containers = Vec::with_capacity(groups.len());
     let mut skipped_with: Vec<(usize, String, usize)> = Vec::new();
-    for (id, rows) in &groups {
+    for (id, rows) in groups {
         match container(cat, file, mapping, id, rows) {
             Ok(c) => containers.push(c),
             Err(errs) => {
@@ -428,19 +491,23 @@ pub fn import(
             }
         }
     }
-    bad.sort_by_key(|b| b.row);
+    (containers, skipped_with)
+}
 
-    if !bad.is_empty() && !skip_bad_rows {
-        return Err(bad
-            .into_iter()
-            .map(|b| InputError {
-                file: file.to_string(),
-                line: Some(b.row),
-                message: format!("row {}: {}", b.row, b.message),
-                fix: b.fix,
-            })
-            .collect());
-    }
+/// Every bad row as an error, for an import that stops.
+fn refusal(file: &str, bad: Vec<Bad>) -> Vec<InputError> {
+    bad.into_iter()
+        .map(|b| InputError {
+            file: file.to_string(),
+            line: Some(b.row),
+            message: format!("row {}: {}", b.row, b.message),
+            fix: b.fix,
+        })
+        .collect()
+}
+
+/// The bad rows and the rows skipped with them, in row order, for an import that goes on.
+fn skipped_rows(bad: Vec<Bad>, skipped_with: Vec<(usize, String, usize)>) -> Vec<SkippedRow> {
     let mut skipped: Vec<SkippedRow> = bad
         .into_iter()
         .map(|b| SkippedRow {
@@ -458,18 +525,7 @@ pub fn import(
         id: Some(id),
     }));
     skipped.sort_by_key(|s| s.row);
-    let (meet_depth, cabinet_depth) =
-        depths_from_the_end(containers.iter().map(|c| c.path.as_slice()));
-    let inventory = Inventory {
-        file: file.to_string(),
-        name: file.to_string(),
-        meet_depth,
-        cabinet_depth,
-        rooms: Vec::new(),
-        locations: Vec::new(),
-        containers,
-    };
-    Ok((inventory, skipped))
+    skipped
 }
 
 /// The separator of the header line: a comma, or the semicolon or tab some spreadsheets
@@ -614,6 +670,32 @@ fn amount_text(r: &Row, m: &ColumnMapping) -> Result<String, (String, Option<Str
     Ok(r.amount.clone())
 }
 
+/// A container's problems as they are found, each naming the container.
+struct Problems<'a> {
+    id: &'a str,
+    bad: Vec<Bad>,
+}
+
+impl Problems<'_> {
+    fn add(&mut self, row: usize, message: String, fix: Option<String>) {
+        self.bad.push(Bad {
+            row,
+            id: Some(self.id.to_string()),
+            message: format!("container `{}`: {message}", self.id),
+            fix,
+        });
+    }
+}
+
+/// A container's location, size and liquid volume, each with the row it was first given
+/// on.
+#[derive(Default)]
+struct SharedCells {
+    location: Option<(usize, Vec<String>)>,
+    size: Option<(usize, f64)>,
+    volume: Option<(usize, f64)>,
+}
+
 /// One container from its rows (one for a neat reagent, one or more for a solution).
 fn container(
     cat: &Catalog,
@@ -622,26 +704,67 @@ fn container(
     id: &str,
     rows: &[Row],
 ) -> Result<StoredContainer, Vec<Bad>> {
-    let mut bad = Vec::new();
-    let mut add = |row: usize, message: String, fix: Option<String>| {
-        bad.push(Bad {
-            row,
-            id: Some(id.to_string()),
-            message: format!("container `{id}`: {message}"),
-            fix,
-        });
+    let mut problems = Problems {
+        id,
+        bad: Vec::new(),
     };
+    let cells = shared_cells(m, rows, &mut problems);
+    let first = rows[0].row;
+    if cells.location.is_none() && rows.iter().all(|r| r.location.is_empty()) {
+        problems.add(
+            first,
+            format!("no location in {}", m.location_columns()),
+            Some(location_fix(m)),
+        );
+    }
+    if cells.size.is_none() && rows.iter().all(|r| r.size.is_empty()) {
+        problems.add(
+            first,
+            format!("no container size in the `{}` column", m.size),
+            Some("give it with its unit, e.g. `2.5 L`".into()),
+        );
+    }
+    let contents = match cells.volume {
+        None => neat_rows(cat, file, m, id, rows, &mut problems),
+        Some((_, volume_l)) => solution(cat, file, m, id, rows, volume_l, &mut problems),
+    };
+    if let (Some(Contents::Liquid(b)), Some((row, size_l))) = (&contents, cells.size) {
+        if b.volume_l > size_l * (1.0 + 1e-9) {
+            problems.add(
+                row,
+                format!("holds {} L, more than its size of {size_l} L", b.volume_l),
+                Some(
+                    "check the amount (or volume) and the container size, with their units".into(),
+                ),
+            );
+        }
+    }
+    match (
+        problems.bad.is_empty(),
+        cells.location,
+        cells.size,
+        contents,
+    ) {
+        (true, Some((_, path)), Some((_, size_l)), Some(contents)) => Ok(StoredContainer {
+            id: id.to_string(),
+            path,
+            size_l,
+            contents,
+            line: Some(first),
+        }),
+        _ => Err(problems.bad),
+    }
+}
 
-    // Location, size and volume: the first filled cell; any other filled cell must agree.
-    let mut location: Option<(usize, Vec<String>)> = None;
-    let mut size: Option<(usize, f64)> = None;
-    let mut volume: Option<(usize, f64)> = None;
+/// Location, size and volume: the first filled cell; any other filled cell must agree.
+fn shared_cells(m: &ColumnMapping, rows: &[Row], problems: &mut Problems) -> SharedCells {
+    let mut cells = SharedCells::default();
     for r in rows {
         if !r.location.is_empty() {
-            match (parse_location(&r.location), &location) {
-                (Err(msg), _) => add(r.row, msg, Some(location_fix(m))),
-                (Ok(path), None) => location = Some((r.row, path)),
-                (Ok(path), Some((first, p))) if *p != path => add(
+            match (parse_location(&r.location), &cells.location) {
+                (Err(msg), _) => problems.add(r.row, msg, Some(location_fix(m))),
+                (Ok(path), None) => cells.location = Some((r.row, path)),
+                (Ok(path), Some((first, p))) if *p != path => problems.add(
                     r.row,
                     format!("location `{}` differs from `{}` on row {first}", r.location, p.join(" / ")),
                     Some("a container stands in one place: give each container its own id, or correct the location".into()),
@@ -650,17 +773,17 @@ fn container(
             }
         }
         for (cell, what, slot) in [
-            (&r.size, "size", &mut size),
-            (&r.volume, "volume", &mut volume),
+            (&r.size, "size", &mut cells.size),
+            (&r.volume, "volume", &mut cells.volume),
         ] {
             if cell.is_empty() {
                 continue;
             }
             match parse_volume(cell) {
-                Err(e) => add(r.row, format!("{what}: {e}"), comma_fix(cell)),
+                Err(e) => problems.add(r.row, format!("{what}: {e}"), comma_fix(cell)),
                 Ok(l) => match slot {
                     None => *slot = Some((r.row, l.0)),
-                    Some((first, v)) if (*v - l.0).abs() > 1e-9 * v.abs().max(1.0) => add(
+                    Some((first, v)) if (*v - l.0).abs() > 1e-9 * v.abs().max(1.0) => problems.add(
                         r.row,
                         format!("{what} `{cell}` differs from the {what} on row {first} ({v} L)"),
                         Some(format!("a container has one {what}: correct it, or leave the cell empty on the later rows")),
@@ -670,86 +793,67 @@ fn container(
             }
         }
     }
+    cells
+}
+
+/// The contents of a container without a liquid volume: a neat reagent, on one row.
+fn neat_rows(
+    cat: &Catalog,
+    file: &str,
+    m: &ColumnMapping,
+    id: &str,
+    rows: &[Row],
+    problems: &mut Problems,
+) -> Option<Contents> {
     let first = rows[0].row;
-    if location.is_none() && rows.iter().all(|r| r.location.is_empty()) {
-        add(
-            first,
-            format!("no location in {}", m.location_columns()),
-            Some(location_fix(m)),
+    for r in &rows[1..] {
+        problems.add(
+            r.row,
+            format!("the id is also on row {first}, and neither row gives a liquid volume"),
+            Some("give every container its own id; only a solution (rows with a volume) spans several rows".into()),
         );
     }
-    if size.is_none() && rows.iter().all(|r| r.size.is_empty()) {
-        add(
-            first,
-            format!("no container size in the `{}` column", m.size),
-            Some("give it with its unit, e.g. `2.5 L`".into()),
-        );
-    }
+    neat(cat, file, m, id, &rows[0])
+        .map_err(|(msg, fix)| problems.add(first, msg, fix))
+        .ok()
+}
 
-    let contents = match volume {
-        None => {
-            for r in &rows[1..] {
-                add(
-                    r.row,
-                    format!("the id is also on row {first}, and neither row gives a liquid volume"),
-                    Some("give every container its own id; only a solution (rows with a volume) spans several rows".into()),
-                );
-            }
-            neat(cat, file, m, id, &rows[0])
-                .map_err(|(msg, fix)| add(first, msg, fix))
+/// The contents of a solution, one substance a row.
+fn solution(
+    cat: &Catalog,
+    file: &str,
+    m: &ColumnMapping,
+    id: &str,
+    rows: &[Row],
+    volume_l: f64,
+    problems: &mut Problems,
+) -> Option<Contents> {
+    // Each row is checked on its own, so that every bad row is named.
+    let mut items = Vec::new();
+    for r in rows {
+        let item = if r.substance.is_empty() {
+            Err((
+                format!("no substance in the `{}` column", m.substance),
+                None,
+            ))
+        } else {
+            amount_text(r, m).map(|a| (r.substance.clone(), a, Some(r.row)))
+        };
+        match item.and_then(|it| {
+            Batch::from_parts(cat, file, id, volume_l, std::slice::from_ref(&it))
+                .map(|_| it)
+                .map_err(|e| (e.message, e.fix.or_else(|| comma_fix(&r.amount))))
+        }) {
+            Ok(it) => items.push(it),
+            Err((msg, fix)) => problems.add(r.row, without_name(&msg, id), fix),
+        }
+    }
+    (items.len() == rows.len())
+        .then(|| Batch::from_parts(cat, file, id, volume_l, &items).map(Contents::Liquid))
+        .and_then(|b| {
+            b.map_err(|e| problems.add(rows[0].row, without_name(&e.message, id), e.fix))
                 .ok()
-        }
-        Some((_, volume_l)) => {
-            // Each row is checked on its own, so that every bad row is named.
-            let mut items = Vec::new();
-            for r in rows {
-                let item = if r.substance.is_empty() {
-                    Err((
-                        format!("no substance in the `{}` column", m.substance),
-                        None,
-                    ))
-                } else {
-                    amount_text(r, m).map(|a| (r.substance.clone(), a, Some(r.row)))
-                };
-                match item.and_then(|it| {
-                    Batch::from_parts(cat, file, id, volume_l, std::slice::from_ref(&it))
-                        .map(|_| it)
-                        .map_err(|e| (e.message, e.fix.or_else(|| comma_fix(&r.amount))))
-                }) {
-                    Ok(it) => items.push(it),
-                    Err((msg, fix)) => add(r.row, without_name(&msg, id), fix),
-                }
-            }
-            (items.len() == rows.len())
-                .then(|| Batch::from_parts(cat, file, id, volume_l, &items).map(Contents::Liquid))
-                .and_then(|b| {
-                    b.map_err(|e| add(first, without_name(&e.message, id), e.fix))
-                        .ok()
-                })
-        }
-    };
-
-    if let (Some(Contents::Liquid(b)), Some((row, size_l))) = (&contents, size) {
-        if b.volume_l > size_l * (1.0 + 1e-9) {
-            add(
-                row,
-                format!("holds {} L, more than its size of {size_l} L", b.volume_l),
-                Some(
-                    "check the amount (or volume) and the container size, with their units".into(),
-                ),
-            );
-        }
-    }
-    match (bad.is_empty(), location, size, contents) {
-        (true, Some((_, path)), Some((_, size_l)), Some(contents)) => Ok(StoredContainer {
-            id: id.to_string(),
-            path,
-            size_l,
-            contents,
-            line: Some(first),
-        }),
-        _ => Err(bad),
-    }
+        })
 }
 
 /// A neat reagent from its row: a mass or moles, or a volume of a liquid.

@@ -14,7 +14,7 @@
 use super::{neat_contents, Contents, Inventory, LocationSpec, RoomSpec, StoredContainer};
 use crate::basics::quantity::Amount;
 use crate::catalog::{Catalog, PhysicalState};
-use crate::pour::batch::Batch;
+use crate::pour::batch::{Batch, Component};
 use std::fmt::Write as _;
 
 /// The building every synthetic location path starts with.
@@ -354,32 +354,14 @@ fn apportion(n: usize, weights: &[f64]) -> Vec<usize> {
 /// Builds a synthetic storeroom of the given shape. The same catalog, shape and seed
 /// always give the same inventory.
 pub fn synthetic_store(cat: &Catalog, shape: &StoreShape) -> Inventory {
+    // Every draw below comes from one generator, in a fixed order: reordering the steps
+    // would give another storeroom for the same seed.
     let mut rng = Rng::new(shape.seed);
     let file = format!("synthetic storeroom (seed {})", shape.seed);
     let cabinets = shape.cabinets.max(1);
     let trays = shape.trays_per_cabinet.max(1);
-    let n_rooms = shape.rooms.clamp(1, cabinets);
-
-    let rooms: Vec<RoomSpec> = (0..n_rooms)
-        .map(|r| RoomSpec {
-            path: vec![BUILDING.to_string(), format!("Room {}", r + 1)],
-            // 30–120 m3 and 4–10 air changes an hour, in half steps.
-            volume_m3: 30.0 + 0.5 * rng.below(181) as f64,
-            air_changes_per_hour: 4.0 + 0.5 * rng.below(13) as f64,
-        })
-        .collect();
-
-    // Trays in building order; cabinet c stands in room c * rooms / cabinets.
-    let mut tray_paths: Vec<Vec<String>> = Vec::with_capacity(cabinets * trays);
-    for c in 0..cabinets {
-        let room = &rooms[c * n_rooms / cabinets];
-        for t in 0..trays {
-            let mut p = room.path.clone();
-            p.push(format!("Cabinet {}", c + 1));
-            p.push(format!("Tray {}", t + 1));
-            tray_paths.push(p);
-        }
-    }
+    let rooms = synthetic_rooms(&mut rng, shape.rooms.clamp(1, cabinets));
+    let tray_paths = tray_paths(&rooms, cabinets, trays);
 
     // Uneven but bounded: tray weights 0.5–1.5, so no tray holds more than about three
     // times another, or much more than one and a half times the mean.
@@ -393,47 +375,8 @@ pub fn synthetic_store(cat: &Catalog, shape: &StoreShape) -> Inventory {
             capacity: n + 2 + rng.below(4),
         })
         .collect();
-
-    // Every container gets a slot; the slots are shuffled so that ids, like the order
-    // things were bought in, do not follow the shelves.
-    let mut slots: Vec<usize> = counts
-        .iter()
-        .enumerate()
-        .flat_map(|(i, &n)| std::iter::repeat_n(i, n))
-        .collect();
-    for i in (1..slots.len()).rev() {
-        let j = rng.below(i + 1);
-        slots.swap(i, j);
-    }
-
-    let cumulative: Vec<f64> = REAGENTS
-        .iter()
-        .scan(0.0, |acc, r| {
-            *acc += r.weight;
-            Some(*acc)
-        })
-        .collect();
-    let total_weight = *cumulative.last().expect("the reagent table is not empty");
-
-    let containers: Vec<StoredContainer> = slots
-        .iter()
-        .enumerate()
-        .map(|(i, &slot)| {
-            let id = format!("SYN-{:06}", i + 1);
-            let x = rng.unit() * total_weight;
-            let k = cumulative
-                .partition_point(|&c| c <= x)
-                .min(REAGENTS.len() - 1);
-            let (size_l, contents) = draw_contents(cat, &file, &id, &REAGENTS[k], &mut rng);
-            StoredContainer {
-                id,
-                path: tray_paths[slot].clone(),
-                size_l,
-                contents,
-                line: None,
-            }
-        })
-        .collect();
+    let slots = shuffled_slots(&mut rng, &counts);
+    let containers = draw_containers(cat, &file, &slots, &tray_paths, &mut rng);
 
     Inventory {
         name: format!(
@@ -447,6 +390,84 @@ pub fn synthetic_store(cat: &Catalog, shape: &StoreShape) -> Inventory {
         locations,
         containers,
     }
+}
+
+fn synthetic_rooms(rng: &mut Rng, n_rooms: usize) -> Vec<RoomSpec> {
+    (0..n_rooms)
+        .map(|r| RoomSpec {
+            path: vec![BUILDING.to_string(), format!("Room {}", r + 1)],
+            // 30–120 m3 and 4–10 air changes an hour, in half steps.
+            volume_m3: 30.0 + 0.5 * rng.below(181) as f64,
+            air_changes_per_hour: 4.0 + 0.5 * rng.below(13) as f64,
+        })
+        .collect()
+}
+
+/// Trays in building order; cabinet c stands in room c * rooms / cabinets.
+fn tray_paths(rooms: &[RoomSpec], cabinets: usize, trays: usize) -> Vec<Vec<String>> {
+    let mut tray_paths: Vec<Vec<String>> = Vec::with_capacity(cabinets * trays);
+    for c in 0..cabinets {
+        let room = &rooms[c * rooms.len() / cabinets];
+        for t in 0..trays {
+            let mut p = room.path.clone();
+            p.push(format!("Cabinet {}", c + 1));
+            p.push(format!("Tray {}", t + 1));
+            tray_paths.push(p);
+        }
+    }
+    tray_paths
+}
+
+/// Every container gets a slot (the index of its tray); the slots are shuffled so that
+/// ids, like the order things were bought in, do not follow the shelves.
+fn shuffled_slots(rng: &mut Rng, counts: &[usize]) -> Vec<usize> {
+    let mut slots: Vec<usize> = counts
+        .iter()
+        .enumerate()
+        .flat_map(|(i, &n)| std::iter::repeat_n(i, n))
+        .collect();
+    for i in (1..slots.len()).rev() {
+        let j = rng.below(i + 1);
+        slots.swap(i, j);
+    }
+    slots
+}
+
+/// One container per slot, its reagent drawn from the weighted table.
+fn draw_containers(
+    cat: &Catalog,
+    file: &str,
+    slots: &[usize],
+    tray_paths: &[Vec<String>],
+    rng: &mut Rng,
+) -> Vec<StoredContainer> {
+    let cumulative: Vec<f64> = REAGENTS
+        .iter()
+        .scan(0.0, |acc, r| {
+            *acc += r.weight;
+            Some(*acc)
+        })
+        .collect();
+    let total_weight = *cumulative.last().expect("the reagent table is not empty");
+    slots
+        .iter()
+        .enumerate()
+        .map(|(i, &slot)| {
+            let id = format!("SYN-{:06}", i + 1);
+            let x = rng.unit() * total_weight;
+            let k = cumulative
+                .partition_point(|&c| c <= x)
+                .min(REAGENTS.len() - 1);
+            let (size_l, contents) = draw_contents(cat, file, &id, &REAGENTS[k], rng);
+            StoredContainer {
+                id,
+                path: tray_paths[slot].clone(),
+                size_l,
+                contents,
+                line: None,
+            }
+        })
+        .collect()
 }
 
 /// A YAML double-quoted string.
@@ -533,86 +554,104 @@ pub fn to_yaml(cat: &Catalog, inv: &Inventory) -> String {
         "levels:\n  spill_zone: {}\n  cabinet: {}",
         inv.meet_depth, inv.cabinet_depth
     );
-    if !inv.rooms.is_empty() {
-        y.push_str("rooms:\n");
-        for r in &inv.rooms {
-            let _ = writeln!(
-                y,
-                "  - path: {}\n    volume: \"{} m3\"\n    air_changes: {:?}",
-                quoted(&r.path.join(" / ")),
-                r.volume_m3,
-                r.air_changes_per_hour
-            );
-        }
-    }
-    if !inv.locations.is_empty() {
-        y.push_str("locations:\n");
-        for l in &inv.locations {
-            let _ = writeln!(
-                y,
-                "  - path: {}\n    capacity: {}",
-                quoted(&l.path),
-                l.capacity
-            );
-        }
-    }
+    write_rooms(&mut y, &inv.rooms);
+    write_locations(&mut y, &inv.locations);
     y.push_str("containers:\n");
     for c in &inv.containers {
+        write_container(&mut y, cat, c);
+    }
+    y
+}
+
+fn write_rooms(y: &mut String, rooms: &[RoomSpec]) {
+    if rooms.is_empty() {
+        return;
+    }
+    y.push_str("rooms:\n");
+    for r in rooms {
         let _ = writeln!(
             y,
-            "  - id: {}\n    location: {}\n    size: \"{} L\"",
-            quoted(&c.id),
-            quoted(&c.location()),
-            c.size_l
+            "  - path: {}\n    volume: \"{} m3\"\n    air_changes: {:?}",
+            quoted(&r.path.join(" / ")),
+            r.volume_m3,
+            r.air_changes_per_hour
         );
-        match &c.contents {
-            Contents::Dry { substance, moles } => {
-                let s = cat.substance(*substance);
-                let amount = match s.molar_mass {
-                    Some(mm) => format!("{} g", sig12(moles * mm)),
-                    None => format!("{moles} mol"),
-                };
+    }
+}
+
+fn write_locations(y: &mut String, locations: &[LocationSpec]) {
+    if locations.is_empty() {
+        return;
+    }
+    y.push_str("locations:\n");
+    for l in locations {
+        let _ = writeln!(
+            y,
+            "  - path: {}\n    capacity: {}",
+            quoted(&l.path),
+            l.capacity
+        );
+    }
+}
+
+fn write_container(y: &mut String, cat: &Catalog, c: &StoredContainer) {
+    let _ = writeln!(
+        y,
+        "  - id: {}\n    location: {}\n    size: \"{} L\"",
+        quoted(&c.id),
+        quoted(&c.location()),
+        c.size_l
+    );
+    match &c.contents {
+        Contents::Dry { substance, moles } => {
+            let s = cat.substance(*substance);
+            let amount = match s.molar_mass {
+                Some(mm) => format!("{} g", sig12(moles * mm)),
+                None => format!("{moles} mol"),
+            };
+            let _ = writeln!(
+                y,
+                "    substance: {}\n    amount: {}",
+                quoted(&s.name),
+                quoted(&amount)
+            );
+        }
+        Contents::Liquid(b) => match neat_liquid(cat, b) {
+            Some(only) => {
                 let _ = writeln!(
                     y,
                     "    substance: {}\n    amount: {}",
-                    quoted(&s.name),
-                    quoted(&amount)
+                    quoted(&cat.substance(only.substance).name),
+                    quoted(&amount_text(only.amount))
                 );
             }
-            Contents::Liquid(b) => {
-                let neat = match b.components.as_slice() {
-                    [only] => match only.amount {
-                        Amount::Millilitres(ml) => {
-                            matches!(
-                                cat.substance(only.substance).state,
-                                PhysicalState::Liquid | PhysicalState::Solution
-                            ) && ml / 1e3 == b.volume_l
-                        }
-                        _ => false,
-                    },
-                    _ => false,
-                };
-                if neat {
-                    let only = &b.components[0];
+            None => {
+                let _ = writeln!(y, "    volume: \"{} L\"\n    contents:", b.volume_l);
+                for comp in &b.components {
                     let _ = writeln!(
                         y,
-                        "    substance: {}\n    amount: {}",
-                        quoted(&cat.substance(only.substance).name),
-                        quoted(&amount_text(only.amount))
+                        "      - substance: {}\n        amount: {}",
+                        quoted(&cat.substance(comp.substance).name),
+                        quoted(&amount_text(comp.amount))
                     );
-                } else {
-                    let _ = writeln!(y, "    volume: \"{} L\"\n    contents:", b.volume_l);
-                    for comp in &b.components {
-                        let _ = writeln!(
-                            y,
-                            "      - substance: {}\n        amount: {}",
-                            quoted(&cat.substance(comp.substance).name),
-                            quoted(&amount_text(comp.amount))
-                        );
-                    }
                 }
             }
-        }
+        },
     }
-    y
+}
+
+/// The one component of a batch that is a neat liquid filling it whole, which is
+/// written back as `substance` + `amount`, as it was read.
+fn neat_liquid<'b>(cat: &Catalog, b: &'b Batch) -> Option<&'b Component> {
+    match b.components.as_slice() {
+        [only] => match only.amount {
+            Amount::Millilitres(ml) => (matches!(
+                cat.substance(only.substance).state,
+                PhysicalState::Liquid | PhysicalState::Solution
+            ) && ml / 1e3 == b.volume_l)
+                .then_some(only),
+            _ => None,
+        },
+        _ => None,
+    }
 }

@@ -279,150 +279,206 @@ pub fn neat_contents(
     }
 }
 
+/// An inventory error at `line` of `file`.
+fn input_error(
+    file: &str,
+    line: Option<usize>,
+    message: String,
+    fix: Option<String>,
+) -> InputError {
+    InputError {
+        file: file.to_string(),
+        line,
+        message,
+        fix,
+    }
+}
+
+/// The line of each container's `id`, in order, for messages: YAML errors past parsing
+/// carry no line of their own.
+fn container_lines(text: &str) -> Vec<usize> {
+    text.lines()
+        .enumerate()
+        .filter(|(_, l)| {
+            let t = l.trim_start();
+            t.starts_with("- id:") || (t.starts_with("- {") && t.contains("id:"))
+        })
+        .map(|(i, _)| i + 1)
+        .collect()
+}
+
+/// Stated `levels` as (spill zone, cabinet) depths, if they make sense.
+fn fixed_levels(
+    file: &str,
+    levels: Option<RawLevels>,
+) -> Result<Option<(usize, usize)>, InputError> {
+    let fixed = levels.map(|l| (l.spill_zone, l.cabinet));
+    if let Some((meet, cabinet)) = fixed {
+        if cabinet == 0 || meet < cabinet || meet > MAX_LOCATION_LEVELS {
+            return Err(input_error(
+                file,
+                None,
+                format!("`levels`: the cabinet must be at least one path component, the spill zone at least as deep, and neither deeper than {MAX_LOCATION_LEVELS}"),
+                Some("leave `levels` out to read every location from the end: the last level is the spill zone, the one above it the cabinet".into()),
+            ));
+        }
+    }
+    Ok(fixed)
+}
+
+fn parse_room(file: &str, r: RawRoom) -> Result<RoomSpec, InputError> {
+    let err = |message: String| input_error(file, None, message, None);
+    let v = crate::basics::quantity::parse_room_volume_m3(&r.volume)
+        .map_err(|e| err(format!("room `{}`: {e}", r.path)))?;
+    if !(v > 0.0 && r.air_changes > 0.0) {
+        return Err(err(format!(
+            "room `{}`: volume and air changes must be above zero",
+            r.path
+        )));
+    }
+    let room_path = split_path(&r.path);
+    if room_path.len() > MAX_LOCATION_LEVELS {
+        return Err(err(format!(
+            "room `{}` has {} levels; a location has at most {MAX_LOCATION_LEVELS}",
+            r.path,
+            room_path.len()
+        )));
+    }
+    Ok(RoomSpec {
+        path: room_path,
+        volume_m3: v,
+        air_changes_per_hour: r.air_changes,
+    })
+}
+
+/// Where a container is read, for its messages.
+struct Source<'a> {
+    cat: &'a Catalog,
+    file: &'a str,
+    line: Option<usize>,
+    fixed_levels: Option<(usize, usize)>,
+}
+
+impl Source<'_> {
+    fn container_error(&self, id: &str, m: String, fix: Option<String>) -> InputError {
+        input_error(self.file, self.line, format!("container `{id}`: {m}"), fix)
+    }
+
+    /// One container, its location checked against stated `levels` and its contents
+    /// against its size.
+    fn container(&self, c: RawContainer) -> Result<StoredContainer, InputError> {
+        let cerr = |m: String, fix: Option<String>| self.container_error(&c.id, m, fix);
+        let path = parse_location(&c.location).map_err(|m| {
+            cerr(
+                m,
+                Some("write the levels from the outermost, the spill zone last, e.g. `Store B / Cabinet 2 / Tray 1`".into()),
+            )
+        })?;
+        if let Some((meet, _)) = self.fixed_levels {
+            if path.len() < meet {
+                return Err(cerr(
+                    format!(
+                        "location `{}` has {}; this inventory's `levels` put the spill zone at level {meet}",
+                        c.location,
+                        counted(path.len(), "level", "levels")
+                    ),
+                    Some("write the whole path, or leave `levels` out to read every location from the end".into()),
+                ));
+            }
+        }
+        let size_l = parse_volume(&c.size)
+            .map_err(|e| cerr(format!("size: {e}"), None))?
+            .0;
+        let contents = self.contents(&c)?;
+        let held = match &contents {
+            Contents::Liquid(b) => b.volume_l,
+            Contents::Dry { .. } => 0.0,
+        };
+        if held > size_l * (1.0 + 1e-9) {
+            return Err(cerr(
+                format!("holds {held} L, more than its size of {size_l} L"),
+                None,
+            ));
+        }
+        Ok(StoredContainer {
+            id: c.id,
+            path,
+            size_l,
+            contents,
+            line: self.line,
+        })
+    }
+
+    /// A neat reagent (`substance` and `amount`) or a solution (`volume` and `contents`).
+    fn contents(&self, c: &RawContainer) -> Result<Contents, InputError> {
+        let (cat, file) = (self.cat, self.file);
+        match (&c.substance, &c.amount, &c.volume) {
+            (Some(s), Some(a), None) if c.contents.is_empty() => {
+                neat_contents(cat, file, &c.id, s, a, self.line)
+            }
+            (None, None, Some(v)) if !c.contents.is_empty() => {
+                // The batch reader reads a solution as its own file would give it.
+                let mut m = serde_yaml::Mapping::new();
+                m.insert("name".into(), c.id.clone().into());
+                m.insert("volume".into(), v.clone().into());
+                m.insert("contents".into(), serde_yaml::Value::Sequence(c.contents.clone()));
+                let text = serde_yaml::to_string(&m).unwrap_or_default();
+                let b = Batch::parse(cat, &format!("{file} (container {})", c.id), &text)
+                    .map_err(|e| self.container_error(&c.id, e.message, e.fix))?;
+                Ok(Contents::Liquid(b))
+            }
+            _ => Err(self.container_error(
+                &c.id,
+                "give either `substance` and `amount` (a neat reagent) or `volume` and `contents` (a solution)".into(),
+                None,
+            )),
+        }
+    }
+}
+
 impl Inventory {
     pub fn parse(cat: &Catalog, file: &str, text: &str) -> Result<Inventory, InputError> {
-        let err = |line: Option<usize>, message: String, fix: Option<String>| InputError {
-            file: file.to_string(),
-            line,
-            message,
-            fix,
-        };
         crate::basics::input_shape::check_yaml_shape(
             file,
             text,
             crate::basics::input_shape::MAX_INVENTORY_BYTES,
         )?;
         let raw: RawInventory = serde_yaml::from_str(text).map_err(|e| {
-            err(
+            input_error(
+                file,
                 e.location().map(|l| l.line()),
                 format!("not a readable inventory: {e}"),
                 Some("an inventory knows: name, levels, rooms, locations, containers (each with id, location, size, and substance + amount or volume + contents)".into()),
             )
         })?;
-        let fixed_levels = raw.levels.map(|l| (l.spill_zone, l.cabinet));
-        if let Some((meet, cabinet)) = fixed_levels {
-            if cabinet == 0 || meet < cabinet || meet > MAX_LOCATION_LEVELS {
-                return Err(err(
-                    None,
-                    format!("`levels`: the cabinet must be at least one path component, the spill zone at least as deep, and neither deeper than {MAX_LOCATION_LEVELS}"),
-                    Some("leave `levels` out to read every location from the end: the last level is the spill zone, the one above it the cabinet".into()),
-                ));
-            }
-        }
-        let id_lines: Vec<usize> = text
-            .lines()
-            .enumerate()
-            .filter(|(_, l)| {
-                let t = l.trim_start();
-                t.starts_with("- id:") || (t.starts_with("- {") && t.contains("id:"))
-            })
-            .map(|(i, _)| i + 1)
-            .collect();
-        let mut rooms = Vec::new();
-        for r in raw.rooms {
-            let v = crate::basics::quantity::parse_room_volume_m3(&r.volume)
-                .map_err(|e| err(None, format!("room `{}`: {e}", r.path), None))?;
-            if !(v > 0.0 && r.air_changes > 0.0) {
-                return Err(err(
-                    None,
-                    format!(
-                        "room `{}`: volume and air changes must be above zero",
-                        r.path
-                    ),
-                    None,
-                ));
-            }
-            let room_path = split_path(&r.path);
-            if room_path.len() > MAX_LOCATION_LEVELS {
-                return Err(err(
-                    None,
-                    format!(
-                        "room `{}` has {} levels; a location has at most {MAX_LOCATION_LEVELS}",
-                        r.path,
-                        room_path.len()
-                    ),
-                    None,
-                ));
-            }
-            rooms.push(RoomSpec {
-                path: room_path,
-                volume_m3: v,
-                air_changes_per_hour: r.air_changes,
-            });
-        }
+        let fixed_levels = fixed_levels(file, raw.levels)?;
+        let id_lines = container_lines(text);
+        let rooms = raw
+            .rooms
+            .into_iter()
+            .map(|r| parse_room(file, r))
+            .collect::<Result<Vec<_>, _>>()?;
         let mut containers = Vec::with_capacity(raw.containers.len());
         let mut seen = std::collections::HashSet::new();
         for (i, c) in raw.containers.into_iter().enumerate() {
-            let line = id_lines.get(i).copied();
-            let cerr = |m: String, fix: Option<String>| {
-                err(line, format!("container `{}`: {m}", c.id), fix)
+            let source = Source {
+                cat,
+                file,
+                line: id_lines.get(i).copied(),
+                fixed_levels,
             };
             if !seen.insert(c.id.clone()) {
-                return Err(cerr(
+                return Err(source.container_error(
+                    &c.id,
                     "the id appears twice".into(),
                     Some("give every container its own id".into()),
                 ));
             }
-            let path = parse_location(&c.location).map_err(|m| {
-                cerr(
-                    m,
-                    Some("write the levels from the outermost, the spill zone last, e.g. `Store B / Cabinet 2 / Tray 1`".into()),
-                )
-            })?;
-            if let Some((meet, _)) = fixed_levels {
-                if path.len() < meet {
-                    return Err(cerr(
-                        format!(
-                            "location `{}` has {}; this inventory's `levels` put the spill zone at level {meet}",
-                            c.location,
-                            counted(path.len(), "level", "levels")
-                        ),
-                        Some("write the whole path, or leave `levels` out to read every location from the end".into()),
-                    ));
-                }
-            }
-            let size_l = parse_volume(&c.size)
-                .map_err(|e| cerr(format!("size: {e}"), None))?
-                .0;
-            let contents = match (&c.substance, &c.amount, &c.volume) {
-                (Some(s), Some(a), None) if c.contents.is_empty() => neat_contents(cat, file, &c.id, s, a, line)?,
-                (None, None, Some(v)) if !c.contents.is_empty() => {
-                    let mut m = serde_yaml::Mapping::new();
-                    m.insert("name".into(), c.id.clone().into());
-                    m.insert("volume".into(), v.clone().into());
-                    m.insert("contents".into(), serde_yaml::Value::Sequence(c.contents.clone()));
-                    let text = serde_yaml::to_string(&m).unwrap_or_default();
-                    let b = Batch::parse(cat, &format!("{file} (container {})", c.id), &text)
-                        .map_err(|e| cerr(e.message, e.fix))?;
-                    Contents::Liquid(b)
-                }
-                _ => {
-                    return Err(cerr(
-                        "give either `substance` and `amount` (a neat reagent) or `volume` and `contents` (a solution)".into(),
-                        None,
-                    ))
-                }
-            };
-            let held = match &contents {
-                Contents::Liquid(b) => b.volume_l,
-                Contents::Dry { .. } => 0.0,
-            };
-            if held > size_l * (1.0 + 1e-9) {
-                return Err(cerr(
-                    format!("holds {held} L, more than its size of {size_l} L"),
-                    None,
-                ));
-            }
-            containers.push(StoredContainer {
-                id: c.id,
-                path,
-                size_l,
-                contents,
-                line,
-            });
+            containers.push(source.container(c)?);
         }
         for l in &raw.locations {
-            parse_location(&l.path).map_err(|m| err(None, format!("`locations`: {m}"), None))?;
+            parse_location(&l.path)
+                .map_err(|m| input_error(file, None, format!("`locations`: {m}"), None))?;
         }
         let (meet_depth, cabinet_depth) = fixed_levels
             .unwrap_or_else(|| depths_from_the_end(containers.iter().map(|c| c.path.as_slice())));

@@ -63,12 +63,6 @@ impl Layout<'_> {
         (stops, reviews)
     }
 
-    fn count(&self) -> (usize, usize) {
-        self.count_by_cabinet()
-            .values()
-            .fold((0, 0), |(s, r), &(a, b)| (s + a, r + b))
-    }
-
     /// (stops, reviews) of each cabinet that holds a container.
     fn count_by_cabinet(&self) -> HashMap<String, (usize, usize)> {
         let mut out = HashMap::new();
@@ -157,82 +151,136 @@ impl Layout<'_> {
     }
 }
 
-/// Proposes moves; `spare` free places are assumed in trays the inventory gives no capacity.
-pub fn suggest(
-    inv: &Inventory,
-    judge: &PairJudge,
-    cabinet_level: bool,
-    spare: usize,
-) -> Suggestion {
-    let mut index: HashMap<String, usize> = HashMap::new();
-    let mut trays: Vec<Tray> = Vec::new();
-    let tray_of = |path: &[String]| inv.spill_zone_path(path).join("/");
-    let add_tray = |path: Vec<String>,
-                    capacity: Option<usize>,
-                    trays: &mut Vec<Tray>,
-                    index: &mut HashMap<String, usize>| {
-        let key = tray_of(&path);
-        if let Some(&t) = index.get(&key) {
+/// The search's clock: once the budget is spent, no further move is taken.
+struct Clock {
+    started: Instant,
+    out_of_time: bool,
+}
+
+impl Clock {
+    fn start() -> Clock {
+        Clock {
+            started: Instant::now(),
+            out_of_time: false,
+        }
+    }
+
+    fn expired(&mut self) -> bool {
+        if self.started.elapsed() > BUDGET {
+            self.out_of_time = true;
+        }
+        self.out_of_time
+    }
+}
+
+/// The trays a search may use, keyed by spill zone, each found or added once.
+#[derive(Default)]
+struct TrayList {
+    trays: Vec<Tray>,
+    index: HashMap<String, usize>,
+}
+
+impl TrayList {
+    /// The tray of `path`'s spill zone; a declared capacity replaces whatever it had.
+    fn tray_for(&mut self, inv: &Inventory, path: &[String], capacity: Option<usize>) -> usize {
+        let key = inv.spill_zone_path(path).join("/");
+        if let Some(&t) = self.index.get(&key) {
             if let Some(c) = capacity {
-                trays[t].capacity = c;
+                self.trays[t].capacity = c;
             }
             return t;
         }
-        trays.push(Tray {
+        self.trays.push(Tray {
             path: key.clone(),
-            cabinet: inv.cabinet_path(&path).join("/"),
-            room: inv.room_path(&path).join("/"),
+            cabinet: inv.cabinet_path(path).join("/"),
+            room: inv.room_path(path).join("/"),
             capacity: capacity.unwrap_or(usize::MAX),
         });
-        index.insert(key, trays.len() - 1);
-        trays.len() - 1
-    };
-    for l in &inv.locations {
-        let p = split_path(&l.path);
-        add_tray(p, Some(l.capacity), &mut trays, &mut index);
+        self.index.insert(key, self.trays.len() - 1);
+        self.trays.len() - 1
     }
-    let at: Vec<usize> = inv
+}
+
+/// Declared locations first, so that their capacities hold, then each container's tray;
+/// returns the trays and the tray each container stands in.
+fn trays_of(inv: &Inventory) -> (Vec<Tray>, Vec<usize>) {
+    let mut list = TrayList::default();
+    for l in &inv.locations {
+        list.tray_for(inv, &split_path(&l.path), Some(l.capacity));
+    }
+    let at = inv
         .containers
         .iter()
-        .map(|c| add_tray(c.path.clone(), None, &mut trays, &mut index))
+        .map(|c| list.tray_for(inv, &c.path, None))
         .collect();
-    let mut members = vec![Vec::new(); trays.len()];
-    for (i, &t) in at.iter().enumerate() {
-        members[t].push(i);
-    }
-    for (t, tray) in trays.iter_mut().enumerate() {
-        if tray.capacity == usize::MAX {
-            tray.capacity = members[t].len() + spare;
+    (list.trays, at)
+}
+
+/// Counts and placement of a layout at one moment, to compare before with after.
+struct Snapshot {
+    stops: usize,
+    reviews: usize,
+    by_cabinet: HashMap<String, (usize, usize)>,
+    members: Vec<Vec<usize>>,
+}
+
+impl<'a> Layout<'a> {
+    /// Trays without a declared capacity get room for what they hold plus `spare`.
+    fn new(
+        mut trays: Vec<Tray>,
+        at: Vec<usize>,
+        spare: usize,
+        cabinet_level: bool,
+        judge: &'a PairJudge<'a>,
+    ) -> Layout<'a> {
+        let mut members = vec![Vec::new(); trays.len()];
+        for (i, &t) in at.iter().enumerate() {
+            members[t].push(i);
+        }
+        for (t, tray) in trays.iter_mut().enumerate() {
+            if tray.capacity == usize::MAX {
+                tray.capacity = members[t].len() + spare;
+            }
+        }
+        let cabinet_trays: Vec<Vec<usize>> = trays
+            .iter()
+            .map(|t| {
+                (0..trays.len())
+                    .filter(|&u| trays[u].cabinet == t.cabinet)
+                    .collect()
+            })
+            .collect();
+        Layout {
+            trays,
+            cabinet_trays,
+            at,
+            members,
+            cabinet_level,
+            judge,
         }
     }
-    let cabinet_trays: Vec<Vec<usize>> = trays
-        .iter()
-        .map(|t| {
-            (0..trays.len())
-                .filter(|&u| trays[u].cabinet == t.cabinet)
-                .collect()
-        })
-        .collect();
-    let mut layout = Layout {
-        trays,
-        cabinet_trays,
-        at: at.clone(),
-        members,
-        cabinet_level,
-        judge,
-    };
-    let (stops_before, reviews_before) = layout.count();
-    let by_cabinet_before = layout.count_by_cabinet();
-    let members_before = layout.members.clone();
-    let mut unresolved = Vec::new();
 
-    // Stops first: in passes, the containers in most stop pairs move first; a pass that
-    // moves nothing ends the search. A time budget keeps a hopeless store from hanging it.
-    let started = Instant::now();
-    let mut out_of_time = false;
-    let mut stuck: Vec<bool> = vec![false; inv.containers.len()];
+    fn snapshot(&self) -> Snapshot {
+        let by_cabinet = self.count_by_cabinet();
+        let (stops, reviews) = by_cabinet
+            .values()
+            .fold((0, 0), |(s, r), &(a, b)| (s + a, r + b));
+        Snapshot {
+            stops,
+            reviews,
+            by_cabinet,
+            members: self.members.clone(),
+        }
+    }
+}
+
+/// Stops first: in passes, the containers in most stop pairs move first; a pass that
+/// moves nothing ends the search. Returns, per container, whether it found no tray to go
+/// to.
+fn separate_stops(layout: &mut Layout, clock: &mut Clock) -> Vec<bool> {
+    let mut stuck: Vec<bool> = vec![false; layout.at.len()];
     for _pass in 0..MAX_PASSES {
-        let mut order: Vec<(usize, usize)> = (0..inv.containers.len())
+        let mut order: Vec<(usize, usize)> = (0..layout.at.len())
             .filter(|&i| !stuck[i])
             .map(|i| (layout.conflicts_in(i, layout.at[i]).0, i))
             .filter(|(s, _)| *s > 0)
@@ -243,8 +291,7 @@ pub fn suggest(
         order.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(&b.1)));
         let mut moved_any = false;
         for (_, i) in order {
-            if started.elapsed() > BUDGET {
-                out_of_time = true;
+            if clock.expired() {
                 break;
             }
             // Earlier moves this pass may already have freed it.
@@ -259,10 +306,38 @@ pub fn suggest(
                 _ => stuck[i] = true,
             }
         }
-        if out_of_time || !moved_any {
+        if clock.out_of_time || !moved_any {
             break;
         }
     }
+    stuck
+}
+
+/// Then reviews: one pass, most-conflicted first, each container taking a move only if
+/// it lowers its review pairs without adding a stop.
+fn lower_reviews(layout: &mut Layout, clock: &mut Clock) {
+    let mut order: Vec<(usize, usize)> = (0..layout.at.len())
+        .map(|i| (layout.conflicts_in(i, layout.at[i]), i))
+        .filter(|((s, r), _)| *s == 0 && *r > 0)
+        .map(|((_, r), i)| (r, i))
+        .collect();
+    order.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(&b.1)));
+    for (_, i) in order {
+        if clock.expired() {
+            break;
+        }
+        let (_, r_here) = layout.conflicts_in(i, layout.at[i]);
+        if let Some((t, (0, r))) = layout.best_tray(i) {
+            if r < r_here {
+                layout.move_to(i, t);
+            }
+        }
+    }
+}
+
+/// The containers the search could not free of a stop pair, each with why.
+fn unresolved_of(inv: &Inventory, layout: &Layout, stuck: &[bool]) -> Vec<String> {
+    let mut unresolved = Vec::new();
     for (i, &is_stuck) in stuck.iter().enumerate() {
         if is_stuck && layout.conflicts_in(i, layout.at[i]).0 > 0 {
             unresolved.push(format!(
@@ -271,39 +346,30 @@ pub fn suggest(
             ));
         }
     }
-    // Then reviews: one pass, most-conflicted first, each container taking a move only if
-    // it lowers its review pairs without adding a stop.
-    if !out_of_time {
-        let mut order: Vec<(usize, usize)> = (0..inv.containers.len())
-            .map(|i| (layout.conflicts_in(i, layout.at[i]), i))
-            .filter(|((s, r), _)| *s == 0 && *r > 0)
-            .map(|((_, r), i)| (r, i))
-            .collect();
-        order.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(&b.1)));
-        for (_, i) in order {
-            if started.elapsed() > BUDGET {
-                out_of_time = true;
-                break;
-            }
-            let (_, r_here) = layout.conflicts_in(i, layout.at[i]);
-            if let Some((t, (0, r))) = layout.best_tray(i) {
-                if r < r_here {
-                    layout.move_to(i, t);
-                }
-            }
-        }
-    }
-    let (stops_after, reviews_after) = layout.count();
-    let moves: Vec<Move> = (0..inv.containers.len())
+    unresolved
+}
+
+/// Each container that ends in another tray than `at`, its first one.
+fn moves_from(inv: &Inventory, layout: &Layout, at: &[usize]) -> Vec<Move> {
+    (0..inv.containers.len())
         .filter(|&i| layout.at[i] != at[i])
         .map(|i| Move {
             id: inv.containers[i].id.clone(),
             from: layout.trays[at[i]].path.replace('/', " / "),
             to: layout.trays[layout.at[i]].path.replace('/', " / "),
         })
-        .collect();
-    let complete = stops_after == 0;
-    let by_cabinet_after = layout.count_by_cabinet();
+        .collect()
+}
+
+/// Every cabinet a move takes a container from or to, sorted, with its trays and pair
+/// counts before and after.
+fn cabinet_changes(
+    inv: &Inventory,
+    layout: &Layout,
+    at: &[usize],
+    before: &Snapshot,
+    after: &Snapshot,
+) -> Vec<CabinetChange> {
     let mut touched: Vec<&str> = (0..inv.containers.len())
         .filter(|&i| layout.at[i] != at[i])
         .flat_map(|i| [at[i], layout.at[i]])
@@ -311,51 +377,74 @@ pub fn suggest(
         .collect();
     touched.sort();
     touched.dedup();
-    let cabinets: Vec<CabinetChange> = touched
+    touched
         .iter()
         .map(|&cabinet| {
-            let before = by_cabinet_before.get(cabinet).copied().unwrap_or((0, 0));
-            let after = by_cabinet_after.get(cabinet).copied().unwrap_or((0, 0));
+            let counts_before = before.by_cabinet.get(cabinet).copied().unwrap_or((0, 0));
+            let counts_after = after.by_cabinet.get(cabinet).copied().unwrap_or((0, 0));
             CabinetChange {
                 cabinet: cabinet.replace('/', " / "),
-                before: layout.zones_of(cabinet, &members_before, inv),
-                after: layout.zones_of(cabinet, &layout.members, inv),
-                stop_pairs_before: before.0,
-                stop_pairs_after: after.0,
-                review_pairs_before: before.1,
-                review_pairs_after: after.1,
+                before: layout.zones_of(cabinet, &before.members, inv),
+                after: layout.zones_of(cabinet, &after.members, inv),
+                stop_pairs_before: counts_before.0,
+                stop_pairs_after: counts_after.0,
+                review_pairs_before: counts_before.1,
+                review_pairs_after: counts_after.1,
             }
         })
-        .collect();
-    let note = if out_of_time {
+        .collect()
+}
+
+/// What the search achieved, or why it stopped short.
+fn search_note(out_of_time: bool, stops_after: usize, moves: usize) -> String {
+    if out_of_time {
         format!(
             "The search stopped after {} s with {} left ({} found by then); a store this crowded with pairs that must not meet needs more room or fewer containers per cabinet before moves can help.",
             BUDGET.as_secs(),
             super::counted(stops_after, "stop pair", "stop pairs"),
-            super::counted(
-                layout.at.iter().zip(&at).filter(|(a, b)| a != b).count(),
-                "move",
-                "moves"
-            )
+            super::counted(moves, "move", "moves")
         )
-    } else if complete {
+    } else if stops_after == 0 {
         format!(
             "Every stop pair is removed with {}.",
-            super::counted(moves.len(), "move", "moves")
+            super::counted(moves, "move", "moves")
         )
     } else {
         format!(
             "{} left: there is no free place that keeps them apart. Add trays or cabinets, or remove containers.",
             super::counted(stops_after, "stop pair is", "stop pairs are")
         )
-    };
+    }
+}
+
+/// Proposes moves; `spare` free places are assumed in trays the inventory gives no capacity.
+pub fn suggest(
+    inv: &Inventory,
+    judge: &PairJudge,
+    cabinet_level: bool,
+    spare: usize,
+) -> Suggestion {
+    let (trays, at) = trays_of(inv);
+    let mut layout = Layout::new(trays, at.clone(), spare, cabinet_level, judge);
+    let before = layout.snapshot();
+    // A time budget keeps a hopeless store from hanging the search.
+    let mut clock = Clock::start();
+    let stuck = separate_stops(&mut layout, &mut clock);
+    let unresolved = unresolved_of(inv, &layout, &stuck);
+    if !clock.out_of_time {
+        lower_reviews(&mut layout, &mut clock);
+    }
+    let after = layout.snapshot();
+    let moves = moves_from(inv, &layout, &at);
+    let cabinets = cabinet_changes(inv, &layout, &at, &before, &after);
+    let note = search_note(clock.out_of_time, after.stops, moves.len());
     Suggestion {
         moves,
-        stop_pairs_before: stops_before,
-        stop_pairs_after: stops_after,
-        review_pairs_before: reviews_before,
-        review_pairs_after: reviews_after,
-        complete,
+        stop_pairs_before: before.stops,
+        stop_pairs_after: after.stops,
+        review_pairs_before: before.reviews,
+        review_pairs_after: after.reviews,
+        complete: after.stops == 0,
         unresolved,
         note,
         cabinets,
