@@ -834,28 +834,102 @@ fn solve_with(
     near: Option<&Equilibrium>,
     constants: &mut TemperatureConstants,
 ) -> Result<Equilibrium, SolveError> {
-    let phys = &cat.physical;
-    let t_k = m.temperature_k;
-    constants.select(cat, t_k);
-    let vl = m.liquid_l;
-    let vg = if m.closure == Closure::Open {
-        // An open vessel's air is the room: the liquid keeps its gas, which is the
-        // conservative figure for what reaches a face at the opening.
-        0.0
-    } else {
-        m.headspace_l.max(0.0)
-    };
+    constants.select(cat, m.temperature_k);
+    let vessel = Vessel::of(m);
+    let (strong_charge, strong_ionic) = strong_ion_sums(cat, m)?;
+    let mut p = Prepared::bare(&vessel, strong_charge, strong_ionic, constants.kw, s);
+    p.add_families(cat, m, constants, &vessel)?;
+    p.add_links(cat, m.temperature_k, &vessel);
+    p.complexation = Complexation::new(
+        cat,
+        &p.terms,
+        &m.ions,
+        vessel.liquid_l,
+        m.temperature_k,
+        near,
+    )
+    .map(Box::new);
 
-    // Henry's law holds on the molal scale: per mol/L of liquid, a mol/kg of water is
-    // 1/water_kg_per_l; the constants are for dilute solution, where that is 1/0.997.
-    // Below half a kilogram of water per litre the liquid is mostly something else and
-    // outside the aqueous model: the scale is held there rather than followed to infinity.
-    let water_kg_per_l = match m.water_kg {
-        Some(w) => (w / vl).max(MIN_WATER_KG_PER_L),
-        None => DILUTE_WATER_KG_PER_L,
+    // Only a mixture whose ionic strength could pass the dilute range may need the model for
+    // concentrated mixtures; whether it does is read off the dilute solve.
+    let could_be_concentrated = ionic_strength_bound(cat, &m.ions, &m.families, vessel.liquid_l)
+        * vessel.molal
+        > cat.pitzer.dilute_below;
+    let (ionic, ln_x) = starting_point(near, strong_ionic, &p.terms);
+    let activity = Activity {
+        phys: &cat.physical,
+        debye_huckel_a: constants.debye_huckel_a,
+        molal_scale: vessel.molal_scale,
     };
-    let molal = 1.0 / water_kg_per_l;
-    let molal_scale = DILUTE_WATER_KG_PER_L / water_kg_per_l;
+    let mut root = if p.complexation.as_ref().is_some_and(|cx| cx.has_solids()) {
+        find_root_held(&mut p, ln_x, ionic, s, &activity)?
+    } else {
+        find_root(&mut p, ln_x, ionic, s, &activity)?
+    };
+    // Above the dilute range the ion-interaction model takes over, from the dilute root;
+    // below it Davies, which is cheaper and gives the same coefficients there.
+    if could_be_concentrated && root.ionic * vessel.molal > cat.pitzer.dilute_below {
+        p.concentrated = Some(concentrated_model(cat, m, &p, constants, &vessel));
+        hold_concentrated_at(&mut p, &root);
+        let dilute_iterations = root.iterations;
+        root = find_root_concentrated(&mut p, root.x.ln(), s, &activity)?;
+        root.iterations += dilute_iterations;
+    }
+    let mut eq = assemble(cat, m, &p, &root, vessel.gas_l);
+    eq.molal_ionic_strength = eq.ionic_strength * vessel.molal;
+    if let Some(conc) = &p.concentrated {
+        describe_concentrated(&mut eq, conc, &p.terms);
+    }
+    Ok(eq)
+}
+
+/// The volumes a solve works with, and the molal scale of its liquid.
+struct Vessel {
+    liquid_l: f64,
+    /// The headspace that shares the gases with the liquid, L.
+    gas_l: f64,
+    /// mol/kg of water per mol/L of liquid.
+    molal: f64,
+    /// The molal scale over dilute solution's, on which Henry's law constants are given.
+    molal_scale: f64,
+}
+
+impl Vessel {
+    fn of(m: &Mixture) -> Self {
+        let vl = m.liquid_l;
+        let gas_l = if m.closure == Closure::Open {
+            // An open vessel's air is the room: the liquid keeps its gas, which is the
+            // conservative figure for what reaches a face at the opening.
+            0.0
+        } else {
+            m.headspace_l.max(0.0)
+        };
+        // Henry's law holds on the molal scale: per mol/L of liquid, a mol/kg of water is
+        // 1/water_kg_per_l; the constants are for dilute solution, where that is 1/0.997.
+        // Below half a kilogram of water per litre the liquid is mostly something else and
+        // outside the aqueous model: the scale is held there rather than followed to infinity.
+        let water_kg_per_l = match m.water_kg {
+            Some(w) => (w / vl).max(MIN_WATER_KG_PER_L),
+            None => DILUTE_WATER_KG_PER_L,
+        };
+        Vessel {
+            liquid_l: vl,
+            gas_l,
+            molal: 1.0 / water_kg_per_l,
+            molal_scale: DILUTE_WATER_KG_PER_L / water_kg_per_l,
+        }
+    }
+
+    /// Moles in the headspace per mole in the liquid, per unit of the volatile form and
+    /// before its activity, for a Henry's law constant `hcp` (mol/(m3 Pa)).
+    fn gas_factor(&self, hcp: f64, phys: &crate::catalog::physical::Physical, t_k: f64) -> f64 {
+        (self.gas_l / self.liquid_l) / (hcp * phys.r * t_k)
+    }
+}
+
+/// The strong ions' charge and Σ z² c, mol/L.
+fn strong_ion_sums(cat: &Catalog, m: &Mixture) -> Result<(f64, f64), SolveError> {
+    let vl = m.liquid_l;
     let mut strong_charge = 0.0;
     let mut strong_ionic = 0.0;
     for &(ion, n) in &m.ions {
@@ -866,61 +940,103 @@ fn solve_with(
         strong_charge += z * n / vl;
         strong_ionic += z * z * n / vl;
     }
-    let mut p = Prepared {
-        molal,
-        terms: SmallVec::new(),
-        links: SmallVec::new(),
-        complexation: None,
-        hold_davies: false,
-        strong_charge,
-        strong_ionic,
-        kw: constants.kw,
-        kw_eff: constants.kw,
-        inv_gamma_h: 1.0,
-        inv_gamma_oh: 1.0,
-        gamma1: 1.0,
-        powers_used: (MAX_POWER, MAX_POWER),
-        concentrated: None,
-        davies_limit: s.activity_limit,
-    };
-    for &(fid, n) in &m.families {
-        if !(n.is_finite() && n >= 0.0) {
-            return Err(SolveError::BadTotals);
+    Ok((strong_charge, strong_ionic))
+}
+
+/// Where the search starts: the ionic strength and ln a(H+) of the neighbouring state, or
+/// the strong ions plus each family half-charged at pH 7.
+fn starting_point(near: Option<&Equilibrium>, strong_ionic: f64, terms: &[Term]) -> (f64, f64) {
+    match near {
+        Some(e) if e.ionic_strength.is_finite() && e.ph.is_finite() => {
+            (e.ionic_strength, -e.ph * std::f64::consts::LN_10)
         }
-        if fid == cat.water || n == 0.0 {
-            continue;
-        }
-        let mut term = *constants.family(cat, fid, t_k);
-        for &g in &term.gamma_power[..term.n] {
-            p.powers_used = (p.powers_used.0.min(g), p.powers_used.1.max(g));
-        }
-        let gas_factor = if term.hcp > 0.0 && vg > 0.0 {
-            (vg / vl) / (term.hcp * phys.r * t_k)
-        } else {
-            0.0
-        };
-        term.c_total = n / vl;
-        term.gas_factor = gas_factor * molal_scale;
-        term.base_gas_factor = gas_factor;
-        term.henry = molal_scale;
-        p.terms.push(term);
+        _ => (
+            0.5 * strong_ionic + 0.5 * terms.iter().map(|t| t.c_total).sum::<f64>(),
+            (1e-7f64).ln(),
+        ),
     }
-    if !cat.combined.is_empty() {
+}
+
+impl<'c> Prepared<'c> {
+    /// A mixture of the strong ions alone, with ideal coefficients.
+    fn bare(
+        vessel: &Vessel,
+        strong_charge: f64,
+        strong_ionic: f64,
+        kw: f64,
+        s: &SolverSettings,
+    ) -> Self {
+        Prepared {
+            molal: vessel.molal,
+            terms: SmallVec::new(),
+            links: SmallVec::new(),
+            complexation: None,
+            hold_davies: false,
+            strong_charge,
+            strong_ionic,
+            kw,
+            kw_eff: kw,
+            inv_gamma_h: 1.0,
+            inv_gamma_oh: 1.0,
+            gamma1: 1.0,
+            powers_used: (MAX_POWER, MAX_POWER),
+            concentrated: None,
+            davies_limit: s.activity_limit,
+        }
+    }
+
+    /// A term for each family the mixture holds (water and empty families aside).
+    fn add_families(
+        &mut self,
+        cat: &Catalog,
+        m: &Mixture,
+        constants: &mut TemperatureConstants,
+        vessel: &Vessel,
+    ) -> Result<(), SolveError> {
+        let t_k = m.temperature_k;
+        for &(fid, n) in &m.families {
+            if !(n.is_finite() && n >= 0.0) {
+                return Err(SolveError::BadTotals);
+            }
+            if fid == cat.water || n == 0.0 {
+                continue;
+            }
+            let mut term = *constants.family(cat, fid, t_k);
+            for &g in &term.gamma_power[..term.n] {
+                self.powers_used = (self.powers_used.0.min(g), self.powers_used.1.max(g));
+            }
+            let gas_factor = if term.hcp > 0.0 && vessel.gas_l > 0.0 {
+                vessel.gas_factor(term.hcp, &cat.physical, t_k)
+            } else {
+                0.0
+            };
+            term.c_total = n / vessel.liquid_l;
+            term.gas_factor = gas_factor * vessel.molal_scale;
+            term.base_gas_factor = gas_factor;
+            term.henry = vessel.molal_scale;
+            self.terms.push(term);
+        }
+        Ok(())
+    }
+
+    /// A link for each combined species whose two parent families the mixture holds.
+    fn add_links(&mut self, cat: &Catalog, t_k: f64, vessel: &Vessel) {
+        let phys = &cat.physical;
         for (ci, c) in cat.combined.iter().enumerate() {
-            let find = |f: FamilyId| p.terms.iter().position(|t| t.family == f);
+            let find = |f: FamilyId| self.terms.iter().position(|t| t.family == f);
             let (Some(a), Some(b)) = (find(c.first.0), find(c.second.0)) else {
                 continue;
             };
             let d = &c.data;
             let log_k = log_k_at(phys, d.log_k_formation, d.dh_formation, t_k);
             let gas_factor = match &d.volatile {
-                Some(v) if vg > 0.0 => {
+                Some(v) if vessel.gas_l > 0.0 => {
                     let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();
-                    (vg / vl) / (hcp * phys.r * t_k)
+                    vessel.gas_factor(hcp, phys, t_k)
                 }
                 _ => 0.0,
             };
-            p.links.push(Link {
+            self.links.push(Link {
                 catalog_index: ci,
                 first: (a, c.first.1),
                 second: (b, c.second.1),
@@ -932,83 +1048,62 @@ fn solve_with(
             });
         }
     }
+}
 
-    p.complexation = Complexation::new(cat, &p.terms, &m.ions, vl, t_k, near).map(Box::new);
+/// The model for concentrated mixtures, set up for the mixture's ions, terms and complexes.
+fn concentrated_model<'c>(
+    cat: &'c Catalog,
+    m: &Mixture,
+    p: &Prepared,
+    constants: &TemperatureConstants,
+    vessel: &Vessel,
+) -> Concentrated<'c> {
+    let complex_charges = p
+        .complexation
+        .as_ref()
+        .map(|cx| cx.charges().collect::<SmallVec<[i32; 24]>>())
+        .unwrap_or_default();
+    Concentrated::new(
+        cat,
+        &m.ions,
+        vessel.liquid_l,
+        &p.terms,
+        vessel.molal,
+        vessel.molal_scale,
+        constants.a_phi,
+        constants.debye_huckel_a,
+        m.temperature_k,
+        &complex_charges,
+    )
+}
 
-    // Only a mixture whose ionic strength could pass the dilute range may need the model for
-    // concentrated mixtures; whether it does is read off the dilute solve.
-    let could_be_concentrated =
-        ionic_strength_bound(cat, &m.ions, &m.families, vl) * molal > cat.pitzer.dilute_below;
-
-    // Ionic strength: from the neighbouring state, or the strong ions plus each family
-    // half-charged.
-    let (ionic, ln_x) = match near {
-        Some(e) if e.ionic_strength.is_finite() && e.ph.is_finite() => {
-            (e.ionic_strength, -e.ph * std::f64::consts::LN_10)
+/// Sets where the concentrated model's coefficients are held, from the composition at the
+/// dilute root, with the complexes (and the free totals they leave) as the coefficients will
+/// read them.
+fn hold_concentrated_at(p: &mut Prepared, root: &Root) {
+    let h = root.x * p.inv_gamma_h;
+    let oh = p.kw_eff * p.inv_gamma_oh / root.x;
+    let free_terms = p.complexation.is_some().then(|| {
+        let (terms, bound) = p.linked_terms(root.x);
+        if let (Some(b), Some(conc)) = (bound, p.concentrated.as_mut()) {
+            conc.set_complexes(&b.concentrations, &b.ions_bound);
         }
-        _ => (
-            0.5 * strong_ionic + 0.5 * p.terms.iter().map(|t| t.c_total).sum::<f64>(),
-            (1e-7f64).ln(),
-        ),
-    };
-    let activity = Activity {
-        phys,
-        debye_huckel_a: constants.debye_huckel_a,
-        molal_scale,
-    };
-    let mut root = if p.complexation.as_ref().is_some_and(|cx| cx.has_solids()) {
-        find_root_held(&mut p, ln_x, ionic, s, &activity)?
-    } else {
-        find_root(&mut p, ln_x, ionic, s, &activity)?
-    };
-    // Above the dilute range the ion-interaction model takes over, from the dilute root;
-    // below it Davies, which is cheaper and gives the same coefficients there.
-    if could_be_concentrated && root.ionic * molal > cat.pitzer.dilute_below {
-        p.concentrated = Some(Concentrated::new(
-            cat,
-            &m.ions,
-            vl,
-            &p.terms,
-            molal,
-            molal_scale,
-            constants.a_phi,
-            constants.debye_huckel_a,
-            t_k,
-            &p.complexation
-                .as_ref()
-                .map(|cx| cx.charges().collect::<SmallVec<[i32; 24]>>())
-                .unwrap_or_default(),
-        ));
-        let dilute_iterations = root.iterations;
-        let h = root.x * p.inv_gamma_h;
-        let oh = p.kw_eff * p.inv_gamma_oh / root.x;
-        // The hold is read from the composition at the dilute root, with the complexes (and
-        // the free totals they leave) as the coefficients will read them.
-        let free_terms = p.complexation.is_some().then(|| {
-            let (terms, bound) = p.linked_terms(root.x);
-            if let (Some(b), Some(conc)) = (bound, p.concentrated.as_mut()) {
-                conc.set_complexes(&b.concentrations, &b.ions_bound);
-            }
-            terms
-        });
-        if let Some(conc) = p.concentrated.as_mut() {
-            conc.hold_at_range(free_terms.as_deref().unwrap_or(&p.terms), root.x, h, oh);
-        }
-        root = find_root_concentrated(&mut p, root.x.ln(), s, &activity)?;
-        root.iterations += dilute_iterations;
+        terms
+    });
+    if let Some(conc) = p.concentrated.as_mut() {
+        conc.hold_at_range(free_terms.as_deref().unwrap_or(&p.terms), root.x, h, oh);
     }
-    let mut eq = assemble(cat, m, &p, &root, vg);
-    eq.molal_ionic_strength = eq.ionic_strength * molal;
-    if let Some(conc) = &p.concentrated {
-        eq.activity_model = ActivityModelUsed::IonInteraction;
-        eq.molal_ionic_strength = conc.ionic_strength();
-        let (range, set_by) = conc.validated_range();
-        eq.activity_range = range;
-        eq.activity_detail = Some(Box::new(conc.detail(&p.terms, set_by)));
-        eq.activity_limited = eq.molal_ionic_strength > eq.activity_range;
-        eq.water_activity = conc.summary.water_activity;
-    }
-    Ok(eq)
+}
+
+/// Writes what the model for concentrated mixtures made of the solution into `eq`.
+fn describe_concentrated(eq: &mut Equilibrium, conc: &Concentrated, terms: &[Term]) {
+    eq.activity_model = ActivityModelUsed::IonInteraction;
+    eq.molal_ionic_strength = conc.ionic_strength();
+    let (range, set_by) = conc.validated_range();
+    eq.activity_range = range;
+    eq.activity_detail = Some(Box::new(conc.detail(terms, set_by)));
+    eq.activity_limited = eq.molal_ionic_strength > eq.activity_range;
+    eq.water_activity = conc.summary.water_activity;
 }
 
 /// The largest change of any ln γ at which the concentrated model's coefficients count as
