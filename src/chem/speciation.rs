@@ -1265,88 +1265,147 @@ fn find_root(
     s: &SolverSettings,
     a: &Activity,
 ) -> Result<Root, SolveError> {
-    let limit = s.activity_limit;
-    let coefficients = |i: f64| Gammas::davies_with_a(a.phys, a.debye_huckel_a, i.min(limit));
-    let mut ionic = start_ionic;
     // The concentrated model's coefficients are held for this search and set between
     // searches (`find_root_concentrated`).
-    let frozen = p.concentrated.is_some() || p.hold_davies;
-    if !frozen {
-        p.set_activity(&coefficients(ionic));
+    let held = p.concentrated.is_some() || p.hold_davies;
+    let mut davies = DaviesFollower {
+        ionic: start_ionic,
+        limit: s.activity_limit,
+        held,
+    };
+    if !held {
+        p.set_activity(&davies.coefficients(a));
     }
-    let (mut lo, mut hi) = (LN_X_LO, LN_X_HI);
-    // True when the coefficients changed since the bracket was last the full one.
-    let mut stale = false;
-    let mut x = start.clamp(lo, hi);
+    let mut bracket = Bracket::full();
+    let mut x = start.clamp(bracket.lo, bracket.hi);
     for it in 1..=s.max_iterations {
         let ax = x.exp();
         let pt = p.eval(ax);
         if !(pt.f.is_finite() && pt.ionic.is_finite()) {
             return Err(SolveError::NoConvergence(it));
         }
-        if pt.f > 0.0 {
-            hi = x;
-        } else {
-            lo = x;
-        }
+        bracket.narrow(x, pt.f);
         let newton = if pt.dfdlnx > 0.0 {
             x - pt.f / pt.dfdlnx
         } else {
             f64::NAN
         };
-        let settled = if frozen {
-            true
-        } else {
-            // Above the limit the coefficients no longer change with I.
-            let ionic_settled = (pt.ionic - ionic).abs() <= 1e-10 * pt.ionic.max(1e-12)
-                || (ionic > limit && pt.ionic > limit);
-            let neutrals_settled = p.update_neutral_activity(ax, a.molal_scale);
-            if !ionic_settled {
-                ionic = pt.ionic;
-                p.set_activity(&coefficients(ionic));
-            }
-            ionic_settled && neutrals_settled
+        let settled = davies.follow(p, &pt, ax, a);
+        bracket.stale |= !settled;
+        let root_at = |ln_x: f64| Root {
+            x: ln_x.exp(),
+            ionic: pt.ionic,
+            limited: davies.limited(),
+            iterations: it,
         };
-        stale |= !settled;
         // A Newton step below the tolerance, with coefficients that the step no longer
         // changes, is the root (the step may land on one of the bracket's ends).
         if newton.is_finite() && (newton - x).abs() < s.tolerance {
             if settled {
-                return Ok(Root {
-                    x: newton.exp(),
-                    ionic: pt.ionic,
-                    limited: ionic > limit,
-                    iterations: it,
-                });
+                return Ok(root_at(newton));
             }
             x = newton;
             continue;
         }
-        if hi - lo < s.tolerance {
-            if lo <= LN_X_LO || hi >= LN_X_HI {
-                // Pressed against the end of the full bracket: the charge balance keeps
-                // its sign over the whole range.
+        if bracket.width() < s.tolerance {
+            if bracket.against_full_ends() {
+                // The charge balance keeps its sign over the whole range.
                 return Err(SolveError::NoBracket);
             }
-            if !stale && settled {
+            if !bracket.stale && settled {
                 // Closed on a root that rounding keeps the Newton step from confirming.
-                return Ok(Root {
-                    x: (0.5 * (lo + hi)).exp(),
-                    ionic: pt.ionic,
-                    limited: ionic > limit,
-                    iterations: it,
-                });
+                return Ok(root_at(bracket.middle()));
             }
-            (lo, hi) = (LN_X_LO, LN_X_HI);
-            stale = false;
+            bracket = Bracket::full();
         }
-        x = if newton.is_finite() && newton > lo && newton < hi {
-            newton
-        } else {
-            0.5 * (lo + hi)
-        };
+        x = bracket.guarded(newton);
     }
     Err(SolveError::NoConvergence(s.max_iterations))
+}
+
+/// The interval of ln x known to hold the root.
+struct Bracket {
+    lo: f64,
+    hi: f64,
+    /// True when the coefficients changed since the bracket was last the full one.
+    stale: bool,
+}
+
+impl Bracket {
+    fn full() -> Self {
+        Bracket {
+            lo: LN_X_LO,
+            hi: LN_X_HI,
+            stale: false,
+        }
+    }
+
+    /// Keeps the side of `ln_x` on which the charge balance `f` changes sign.
+    fn narrow(&mut self, ln_x: f64, f: f64) {
+        if f > 0.0 {
+            self.hi = ln_x;
+        } else {
+            self.lo = ln_x;
+        }
+    }
+
+    fn width(&self) -> f64 {
+        self.hi - self.lo
+    }
+
+    fn middle(&self) -> f64 {
+        0.5 * (self.lo + self.hi)
+    }
+
+    /// True when the bracket has closed on an end of the full range, where no root is.
+    fn against_full_ends(&self) -> bool {
+        self.lo <= LN_X_LO || self.hi >= LN_X_HI
+    }
+
+    /// The Newton step where it stays inside the bracket, else bisection.
+    fn guarded(&self, newton: f64) -> f64 {
+        if newton.is_finite() && newton > self.lo && newton < self.hi {
+            newton
+        } else {
+            self.middle()
+        }
+    }
+}
+
+/// Davies' coefficients following a search's iterates through their ionic strength.
+struct DaviesFollower {
+    /// The ionic strength the coefficients were last set at.
+    ionic: f64,
+    /// Above it Davies is outside its validity and the coefficients no longer change with I.
+    limit: f64,
+    /// True when the coefficients are held through the search, set between searches.
+    held: bool,
+}
+
+impl DaviesFollower {
+    fn coefficients(&self, a: &Activity) -> Gammas {
+        Gammas::davies_with_a(a.phys, a.debye_huckel_a, self.ionic.min(self.limit))
+    }
+
+    fn limited(&self) -> bool {
+        self.ionic > self.limit
+    }
+
+    /// Moves the coefficients to the ionic strength and neutral forms at the iterate `ax`;
+    /// true when they were already there.
+    fn follow(&mut self, p: &mut Prepared, pt: &Point, ax: f64, a: &Activity) -> bool {
+        if self.held {
+            return true;
+        }
+        let ionic_settled = (pt.ionic - self.ionic).abs() <= 1e-10 * pt.ionic.max(1e-12)
+            || (self.ionic > self.limit && pt.ionic > self.limit);
+        let neutrals_settled = p.update_neutral_activity(ax, a.molal_scale);
+        if !ionic_settled {
+            self.ionic = pt.ionic;
+            p.set_activity(&self.coefficients(a));
+        }
+        ionic_settled && neutrals_settled
+    }
 }
 
 fn liquid_total(t: &Term, volatile_share: f64) -> f64 {
@@ -1358,40 +1417,103 @@ fn liquid_total(t: &Term, volatile_share: f64) -> f64 {
 }
 
 fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> Equilibrium {
-    let phys = &cat.physical;
-    let t_k = m.temperature_k;
     let x = root.x;
     let h = x * p.inv_gamma_h;
     let oh = p.kw_eff * p.inv_gamma_oh / x;
-    let mut families = Vec::with_capacity(p.terms.len());
     let volatile_terms = p.terms.iter().filter(|t| t.hcp > 0.0).count();
     let mut gases = Vec::with_capacity(volatile_terms + p.links.len());
-    let mut charge = h - oh + p.strong_charge;
-    let mut scale = h + oh + p.strong_ionic;
+    let mut tally = ChargeTally {
+        charge: h - oh + p.strong_charge,
+        scale: h + oh + p.strong_ionic,
+    };
     // Only a linked or complexed family's total changes with x; the common case needs no copy.
     let linked = (!p.links.is_empty() || p.complexation.is_some()).then(|| p.linked_terms(x));
     let terms = linked.as_ref().map_or(&p.terms, |l| &l.0);
+    let families = family_states(cat, m, terms, x, vg, &mut tally, &mut gases);
+    let combined = combined_states(cat, m, p, x, &mut tally, &mut gases);
+    let (complexes, solids) = match (&p.complexation, &linked) {
+        (Some(cx), Some((_, Some(b)))) => complex_states(cat, cx, b, &mut tally),
+        _ => (Vec::new(), Vec::new()),
+    };
+    Equilibrium {
+        ph: -x.log10(),
+        ionic_strength: root.ionic,
+        temperature_k: m.temperature_k,
+        liquid_l: m.liquid_l,
+        headspace_l: m.headspace_l,
+        closure: m.closure,
+        h_mol_per_l: h,
+        oh_mol_per_l: oh,
+        families,
+        combined,
+        complexes,
+        solids,
+        gases,
+        relative_charge_residual: tally.relative_residual(),
+        activity_limited: root.limited,
+        activity_model: ActivityModelUsed::Davies,
+        molal_ionic_strength: root.ionic,
+        activity_range: p.davies_limit,
+        water_activity: 1.0,
+        activity_detail: None,
+        iterations: root.iterations,
+    }
+}
+
+/// The liquid's charge and the sum of its absolute charge concentrations, added up species
+/// by species as the state is written out.
+struct ChargeTally {
+    charge: f64,
+    scale: f64,
+}
+
+impl ChargeTally {
+    fn add(&mut self, z: f64, c: f64) {
+        self.charge += z * c;
+        self.scale += z.abs() * c;
+    }
+
+    /// The charge balance's residual over the scale of the charges in it.
+    fn relative_residual(&self) -> f64 {
+        if self.scale > 0.0 {
+            self.charge.abs() / self.scale
+        } else {
+            0.0
+        }
+    }
+}
+
+/// Each family's species at x (`terms` with the links and complexes' shares taken), and the
+/// gas of each volatile family.
+fn family_states(
+    cat: &Catalog,
+    m: &Mixture,
+    terms: &[Term],
+    x: f64,
+    vg: f64,
+    tally: &mut ChargeTally,
+    gases: &mut Vec<GasState>,
+) -> Vec<FamilyState> {
+    let phys = &cat.physical;
+    let mut families = Vec::with_capacity(terms.len());
     let totals_mol = m
         .families
         .iter()
         .filter(|&&(fid, n)| fid != cat.water && n != 0.0);
     for (t, &(fid, n)) in terms.iter().zip(totals_mol) {
-        let fam = cat.family(fid);
         let mut w = [0.0; MAX_STEPS + 1];
         let d = weights(t, x, &mut w);
         let c_aq = liquid_total(t, w[t.volatile] / d);
         let fractions: SpeciesValues = w[..=t.n].iter().map(|wj| wj / d).collect();
         let concentrations: SpeciesValues = fractions.iter().map(|a| a * c_aq).collect();
         for (j, c) in concentrations.iter().enumerate() {
-            let z = (t.z0 - j as i32) as f64;
-            charge += z * c;
-            scale += z.abs() * c;
+            tally.add((t.z0 - j as i32) as f64, *c);
         }
-        if let Some(v) = &fam.volatile {
+        if let Some(v) = &cat.family(fid).volatile {
             // c in mol/L → mol/m3; p = c / Hcp on the molal scale, with the neutral form's
             // activity coefficient.
             let pa = concentrations[t.volatile] * 1e3 * t.henry / t.hcp;
-            let moles_in_gas = pa * (vg / 1e3) / (phys.r * t_k);
+            let moles_in_gas = pa * (vg / 1e3) / (phys.r * m.temperature_k);
             gases.push(GasState {
                 family: fid,
                 from_combined: false,
@@ -1407,14 +1529,26 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
             fractions,
         });
     }
+    families
+}
+
+/// Each combined species at x, and the gas of each volatile one.
+fn combined_states(
+    cat: &Catalog,
+    m: &Mixture,
+    p: &Prepared,
+    x: f64,
+    tally: &mut ChargeTally,
+    gases: &mut Vec<GasState>,
+) -> Vec<CombinedState> {
+    let phys = &cat.physical;
+    let t_k = m.temperature_k;
     let mut combined = Vec::with_capacity(p.links.len());
     for l in &p.links {
         let c = &cat.combined[l.catalog_index];
         let y = p.link_amount(l, x);
         let c_aq = y / (1.0 + l.gas_factor);
-        let z = l.charge as f64;
-        charge += z * c_aq;
-        scale += z.abs() * c_aq;
+        tally.add(l.charge as f64, c_aq);
         let moles_in_gas = (y - c_aq) * m.liquid_l;
         if let Some(v) = &c.data.volatile {
             let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();
@@ -1434,53 +1568,35 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
             moles_in_gas,
         });
     }
-    let mut complexes = Vec::new();
-    let mut solids = Vec::new();
-    if let (Some(cx), Some((_, Some(b)))) = (&p.complexation, &linked) {
-        for &(si, amount) in &b.solids {
-            solids.push(SolidState {
-                catalog_index: si,
-                formula: cat.solids[si].formula.clone(),
-                mol_per_l: amount,
-            });
-        }
-        complexes.reserve(b.concentrations.len());
-        // The complexes' charge, with a strong-ion metal's bound share taken off its own.
-        charge += b.charge;
-        for (ci, &c) in cx.catalog_indexes().zip(&b.concentrations) {
-            scale += f64::from(cat.complexes[ci].charge.abs()) * c;
-            complexes.push(ComplexState {
-                catalog_index: ci,
-                formula: cat.complexes[ci].formula.clone(),
-                concentration: c,
-            });
-        }
+    combined
+}
+
+/// The metal complexes and the solids that formed, from what the complexation bound.
+fn complex_states(
+    cat: &Catalog,
+    cx: &Complexation,
+    b: &Bound,
+    tally: &mut ChargeTally,
+) -> (Vec<ComplexState>, Vec<SolidState>) {
+    let solids = b
+        .solids
+        .iter()
+        .map(|&(si, amount)| SolidState {
+            catalog_index: si,
+            formula: cat.solids[si].formula.clone(),
+            mol_per_l: amount,
+        })
+        .collect();
+    let mut complexes = Vec::with_capacity(b.concentrations.len());
+    // The complexes' charge, with a strong-ion metal's bound share taken off its own.
+    tally.charge += b.charge;
+    for (ci, &c) in cx.catalog_indexes().zip(&b.concentrations) {
+        tally.scale += f64::from(cat.complexes[ci].charge.abs()) * c;
+        complexes.push(ComplexState {
+            catalog_index: ci,
+            formula: cat.complexes[ci].formula.clone(),
+            concentration: c,
+        });
     }
-    Equilibrium {
-        ph: -x.log10(),
-        ionic_strength: root.ionic,
-        temperature_k: t_k,
-        liquid_l: m.liquid_l,
-        headspace_l: m.headspace_l,
-        closure: m.closure,
-        h_mol_per_l: h,
-        oh_mol_per_l: oh,
-        families,
-        combined,
-        complexes,
-        solids,
-        gases,
-        relative_charge_residual: if scale > 0.0 {
-            charge.abs() / scale
-        } else {
-            0.0
-        },
-        activity_limited: root.limited,
-        activity_model: ActivityModelUsed::Davies,
-        molal_ionic_strength: root.ionic,
-        activity_range: p.davies_limit,
-        water_activity: 1.0,
-        activity_detail: None,
-        iterations: root.iterations,
-    }
+    (complexes, solids)
 }
