@@ -834,28 +834,102 @@ fn solve_with(
     near: Option<&Equilibrium>,
     constants: &mut TemperatureConstants,
 ) -> Result<Equilibrium, SolveError> {
-    let phys = &cat.physical;
-    let t_k = m.temperature_k;
-    constants.select(cat, t_k);
-    let vl = m.liquid_l;
-    let vg = if m.closure == Closure::Open {
-        // An open vessel's air is the room: the liquid keeps its gas, which is the
-        // conservative figure for what reaches a face at the opening.
-        0.0
-    } else {
-        m.headspace_l.max(0.0)
-    };
+    constants.select(cat, m.temperature_k);
+    let vessel = Vessel::of(m);
+    let (strong_charge, strong_ionic) = strong_ion_sums(cat, m)?;
+    let mut p = Prepared::bare(&vessel, strong_charge, strong_ionic, constants.kw, s);
+    p.add_families(cat, m, constants, &vessel)?;
+    p.add_links(cat, m.temperature_k, &vessel);
+    p.complexation = Complexation::new(
+        cat,
+        &p.terms,
+        &m.ions,
+        vessel.liquid_l,
+        m.temperature_k,
+        near,
+    )
+    .map(Box::new);
 
-    // Henry's law holds on the molal scale: per mol/L of liquid, a mol/kg of water is
-    // 1/water_kg_per_l; the constants are for dilute solution, where that is 1/0.997.
-    // Below half a kilogram of water per litre the liquid is mostly something else and
-    // outside the aqueous model: the scale is held there rather than followed to infinity.
-    let water_kg_per_l = match m.water_kg {
-        Some(w) => (w / vl).max(MIN_WATER_KG_PER_L),
-        None => DILUTE_WATER_KG_PER_L,
+    // Only a mixture whose ionic strength could pass the dilute range may need the model for
+    // concentrated mixtures; whether it does is read off the dilute solve.
+    let could_be_concentrated = ionic_strength_bound(cat, &m.ions, &m.families, vessel.liquid_l)
+        * vessel.molal
+        > cat.pitzer.dilute_below;
+    let (ionic, ln_x) = starting_point(near, strong_ionic, &p.terms);
+    let activity = Activity {
+        phys: &cat.physical,
+        debye_huckel_a: constants.debye_huckel_a,
+        molal_scale: vessel.molal_scale,
     };
-    let molal = 1.0 / water_kg_per_l;
-    let molal_scale = DILUTE_WATER_KG_PER_L / water_kg_per_l;
+    let mut root = if p.complexation.as_ref().is_some_and(|cx| cx.has_solids()) {
+        find_root_held(&mut p, ln_x, ionic, s, &activity)?
+    } else {
+        find_root(&mut p, ln_x, ionic, s, &activity)?
+    };
+    // Above the dilute range the ion-interaction model takes over, from the dilute root;
+    // below it Davies, which is cheaper and gives the same coefficients there.
+    if could_be_concentrated && root.ionic * vessel.molal > cat.pitzer.dilute_below {
+        p.concentrated = Some(concentrated_model(cat, m, &p, constants, &vessel));
+        hold_concentrated_at(&mut p, &root);
+        let dilute_iterations = root.iterations;
+        root = find_root_concentrated(&mut p, root.x.ln(), s, &activity)?;
+        root.iterations += dilute_iterations;
+    }
+    let mut eq = assemble(cat, m, &p, &root, vessel.gas_l);
+    eq.molal_ionic_strength = eq.ionic_strength * vessel.molal;
+    if let Some(conc) = &p.concentrated {
+        describe_concentrated(&mut eq, conc, &p.terms);
+    }
+    Ok(eq)
+}
+
+/// The volumes a solve works with, and the molal scale of its liquid.
+struct Vessel {
+    liquid_l: f64,
+    /// The headspace that shares the gases with the liquid, L.
+    gas_l: f64,
+    /// mol/kg of water per mol/L of liquid.
+    molal: f64,
+    /// The molal scale over dilute solution's, on which Henry's law constants are given.
+    molal_scale: f64,
+}
+
+impl Vessel {
+    fn of(m: &Mixture) -> Self {
+        let vl = m.liquid_l;
+        let gas_l = if m.closure == Closure::Open {
+            // An open vessel's air is the room: the liquid keeps its gas, which is the
+            // conservative figure for what reaches a face at the opening.
+            0.0
+        } else {
+            m.headspace_l.max(0.0)
+        };
+        // Henry's law holds on the molal scale: per mol/L of liquid, a mol/kg of water is
+        // 1/water_kg_per_l; the constants are for dilute solution, where that is 1/0.997.
+        // Below half a kilogram of water per litre the liquid is mostly something else and
+        // outside the aqueous model: the scale is held there rather than followed to infinity.
+        let water_kg_per_l = match m.water_kg {
+            Some(w) => (w / vl).max(MIN_WATER_KG_PER_L),
+            None => DILUTE_WATER_KG_PER_L,
+        };
+        Vessel {
+            liquid_l: vl,
+            gas_l,
+            molal: 1.0 / water_kg_per_l,
+            molal_scale: DILUTE_WATER_KG_PER_L / water_kg_per_l,
+        }
+    }
+
+    /// Moles in the headspace per mole in the liquid, per unit of the volatile form and
+    /// before its activity, for a Henry's law constant `hcp` (mol/(m3 Pa)).
+    fn gas_factor(&self, hcp: f64, phys: &crate::catalog::physical::Physical, t_k: f64) -> f64 {
+        (self.gas_l / self.liquid_l) / (hcp * phys.r * t_k)
+    }
+}
+
+/// The strong ions' charge and Σ z² c, mol/L.
+fn strong_ion_sums(cat: &Catalog, m: &Mixture) -> Result<(f64, f64), SolveError> {
+    let vl = m.liquid_l;
     let mut strong_charge = 0.0;
     let mut strong_ionic = 0.0;
     for &(ion, n) in &m.ions {
@@ -866,61 +940,103 @@ fn solve_with(
         strong_charge += z * n / vl;
         strong_ionic += z * z * n / vl;
     }
-    let mut p = Prepared {
-        molal,
-        terms: SmallVec::new(),
-        links: SmallVec::new(),
-        complexation: None,
-        hold_davies: false,
-        strong_charge,
-        strong_ionic,
-        kw: constants.kw,
-        kw_eff: constants.kw,
-        inv_gamma_h: 1.0,
-        inv_gamma_oh: 1.0,
-        gamma1: 1.0,
-        powers_used: (MAX_POWER, MAX_POWER),
-        concentrated: None,
-        davies_limit: s.activity_limit,
-    };
-    for &(fid, n) in &m.families {
-        if !(n.is_finite() && n >= 0.0) {
-            return Err(SolveError::BadTotals);
+    Ok((strong_charge, strong_ionic))
+}
+
+/// Where the search starts: the ionic strength and ln a(H+) of the neighbouring state, or
+/// the strong ions plus each family half-charged at pH 7.
+fn starting_point(near: Option<&Equilibrium>, strong_ionic: f64, terms: &[Term]) -> (f64, f64) {
+    match near {
+        Some(e) if e.ionic_strength.is_finite() && e.ph.is_finite() => {
+            (e.ionic_strength, -e.ph * std::f64::consts::LN_10)
         }
-        if fid == cat.water || n == 0.0 {
-            continue;
-        }
-        let mut term = *constants.family(cat, fid, t_k);
-        for &g in &term.gamma_power[..term.n] {
-            p.powers_used = (p.powers_used.0.min(g), p.powers_used.1.max(g));
-        }
-        let gas_factor = if term.hcp > 0.0 && vg > 0.0 {
-            (vg / vl) / (term.hcp * phys.r * t_k)
-        } else {
-            0.0
-        };
-        term.c_total = n / vl;
-        term.gas_factor = gas_factor * molal_scale;
-        term.base_gas_factor = gas_factor;
-        term.henry = molal_scale;
-        p.terms.push(term);
+        _ => (
+            0.5 * strong_ionic + 0.5 * terms.iter().map(|t| t.c_total).sum::<f64>(),
+            (1e-7f64).ln(),
+        ),
     }
-    if !cat.combined.is_empty() {
+}
+
+impl<'c> Prepared<'c> {
+    /// A mixture of the strong ions alone, with ideal coefficients.
+    fn bare(
+        vessel: &Vessel,
+        strong_charge: f64,
+        strong_ionic: f64,
+        kw: f64,
+        s: &SolverSettings,
+    ) -> Self {
+        Prepared {
+            molal: vessel.molal,
+            terms: SmallVec::new(),
+            links: SmallVec::new(),
+            complexation: None,
+            hold_davies: false,
+            strong_charge,
+            strong_ionic,
+            kw,
+            kw_eff: kw,
+            inv_gamma_h: 1.0,
+            inv_gamma_oh: 1.0,
+            gamma1: 1.0,
+            powers_used: (MAX_POWER, MAX_POWER),
+            concentrated: None,
+            davies_limit: s.activity_limit,
+        }
+    }
+
+    /// A term for each family the mixture holds (water and empty families aside).
+    fn add_families(
+        &mut self,
+        cat: &Catalog,
+        m: &Mixture,
+        constants: &mut TemperatureConstants,
+        vessel: &Vessel,
+    ) -> Result<(), SolveError> {
+        let t_k = m.temperature_k;
+        for &(fid, n) in &m.families {
+            if !(n.is_finite() && n >= 0.0) {
+                return Err(SolveError::BadTotals);
+            }
+            if fid == cat.water || n == 0.0 {
+                continue;
+            }
+            let mut term = *constants.family(cat, fid, t_k);
+            for &g in &term.gamma_power[..term.n] {
+                self.powers_used = (self.powers_used.0.min(g), self.powers_used.1.max(g));
+            }
+            let gas_factor = if term.hcp > 0.0 && vessel.gas_l > 0.0 {
+                vessel.gas_factor(term.hcp, &cat.physical, t_k)
+            } else {
+                0.0
+            };
+            term.c_total = n / vessel.liquid_l;
+            term.gas_factor = gas_factor * vessel.molal_scale;
+            term.base_gas_factor = gas_factor;
+            term.henry = vessel.molal_scale;
+            self.terms.push(term);
+        }
+        Ok(())
+    }
+
+    /// A link for each combined species whose two parent families the mixture holds.
+    fn add_links(&mut self, cat: &Catalog, t_k: f64, vessel: &Vessel) {
+        let phys = &cat.physical;
         for (ci, c) in cat.combined.iter().enumerate() {
-            let find = |f: FamilyId| p.terms.iter().position(|t| t.family == f);
+            let find = |f: FamilyId| self.terms.iter().position(|t| t.family == f);
             let (Some(a), Some(b)) = (find(c.first.0), find(c.second.0)) else {
                 continue;
             };
             let d = &c.data;
             let log_k = log_k_at(phys, d.log_k_formation, d.dh_formation, t_k);
             let gas_factor = match &d.volatile {
-                Some(v) if vg > 0.0 => {
+                Some(v) if vessel.gas_l > 0.0 => {
                     let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();
-                    (vg / vl) / (hcp * phys.r * t_k)
+                    vessel.gas_factor(hcp, phys, t_k)
                 }
                 _ => 0.0,
             };
-            p.links.push(Link {
+            self.links.push(Link {
                 catalog_index: ci,
                 first: (a, c.first.1),
                 second: (b, c.second.1),
@@ -932,83 +1048,62 @@ fn solve_with(
             });
         }
     }
+}
 
-    p.complexation = Complexation::new(cat, &p.terms, &m.ions, vl, t_k, near).map(Box::new);
+/// The model for concentrated mixtures, set up for the mixture's ions, terms and complexes.
+fn concentrated_model<'c>(
+    cat: &'c Catalog,
+    m: &Mixture,
+    p: &Prepared,
+    constants: &TemperatureConstants,
+    vessel: &Vessel,
+) -> Concentrated<'c> {
+    let complex_charges = p
+        .complexation
+        .as_ref()
+        .map(|cx| cx.charges().collect::<SmallVec<[i32; 24]>>())
+        .unwrap_or_default();
+    Concentrated::new(
+        cat,
+        &m.ions,
+        vessel.liquid_l,
+        &p.terms,
+        vessel.molal,
+        vessel.molal_scale,
+        constants.a_phi,
+        constants.debye_huckel_a,
+        m.temperature_k,
+        &complex_charges,
+    )
+}
 
-    // Only a mixture whose ionic strength could pass the dilute range may need the model for
-    // concentrated mixtures; whether it does is read off the dilute solve.
-    let could_be_concentrated =
-        ionic_strength_bound(cat, &m.ions, &m.families, vl) * molal > cat.pitzer.dilute_below;
-
-    // Ionic strength: from the neighbouring state, or the strong ions plus each family
-    // half-charged.
-    let (ionic, ln_x) = match near {
-        Some(e) if e.ionic_strength.is_finite() && e.ph.is_finite() => {
-            (e.ionic_strength, -e.ph * std::f64::consts::LN_10)
+/// Sets where the concentrated model's coefficients are held, from the composition at the
+/// dilute root, with the complexes (and the free totals they leave) as the coefficients will
+/// read them.
+fn hold_concentrated_at(p: &mut Prepared, root: &Root) {
+    let h = root.x * p.inv_gamma_h;
+    let oh = p.kw_eff * p.inv_gamma_oh / root.x;
+    let free_terms = p.complexation.is_some().then(|| {
+        let (terms, bound) = p.linked_terms(root.x);
+        if let (Some(b), Some(conc)) = (bound, p.concentrated.as_mut()) {
+            conc.set_complexes(&b.concentrations, &b.ions_bound);
         }
-        _ => (
-            0.5 * strong_ionic + 0.5 * p.terms.iter().map(|t| t.c_total).sum::<f64>(),
-            (1e-7f64).ln(),
-        ),
-    };
-    let activity = Activity {
-        phys,
-        debye_huckel_a: constants.debye_huckel_a,
-        molal_scale,
-    };
-    let mut root = if p.complexation.as_ref().is_some_and(|cx| cx.has_solids()) {
-        find_root_held(&mut p, ln_x, ionic, s, &activity)?
-    } else {
-        find_root(&mut p, ln_x, ionic, s, &activity)?
-    };
-    // Above the dilute range the ion-interaction model takes over, from the dilute root;
-    // below it Davies, which is cheaper and gives the same coefficients there.
-    if could_be_concentrated && root.ionic * molal > cat.pitzer.dilute_below {
-        p.concentrated = Some(Concentrated::new(
-            cat,
-            &m.ions,
-            vl,
-            &p.terms,
-            molal,
-            molal_scale,
-            constants.a_phi,
-            constants.debye_huckel_a,
-            t_k,
-            &p.complexation
-                .as_ref()
-                .map(|cx| cx.charges().collect::<SmallVec<[i32; 24]>>())
-                .unwrap_or_default(),
-        ));
-        let dilute_iterations = root.iterations;
-        let h = root.x * p.inv_gamma_h;
-        let oh = p.kw_eff * p.inv_gamma_oh / root.x;
-        // The hold is read from the composition at the dilute root, with the complexes (and
-        // the free totals they leave) as the coefficients will read them.
-        let free_terms = p.complexation.is_some().then(|| {
-            let (terms, bound) = p.linked_terms(root.x);
-            if let (Some(b), Some(conc)) = (bound, p.concentrated.as_mut()) {
-                conc.set_complexes(&b.concentrations, &b.ions_bound);
-            }
-            terms
-        });
-        if let Some(conc) = p.concentrated.as_mut() {
-            conc.hold_at_range(free_terms.as_deref().unwrap_or(&p.terms), root.x, h, oh);
-        }
-        root = find_root_concentrated(&mut p, root.x.ln(), s, &activity)?;
-        root.iterations += dilute_iterations;
+        terms
+    });
+    if let Some(conc) = p.concentrated.as_mut() {
+        conc.hold_at_range(free_terms.as_deref().unwrap_or(&p.terms), root.x, h, oh);
     }
-    let mut eq = assemble(cat, m, &p, &root, vg);
-    eq.molal_ionic_strength = eq.ionic_strength * molal;
-    if let Some(conc) = &p.concentrated {
-        eq.activity_model = ActivityModelUsed::IonInteraction;
-        eq.molal_ionic_strength = conc.ionic_strength();
-        let (range, set_by) = conc.validated_range();
-        eq.activity_range = range;
-        eq.activity_detail = Some(Box::new(conc.detail(&p.terms, set_by)));
-        eq.activity_limited = eq.molal_ionic_strength > eq.activity_range;
-        eq.water_activity = conc.summary.water_activity;
-    }
-    Ok(eq)
+}
+
+/// Writes what the model for concentrated mixtures made of the solution into `eq`.
+fn describe_concentrated(eq: &mut Equilibrium, conc: &Concentrated, terms: &[Term]) {
+    eq.activity_model = ActivityModelUsed::IonInteraction;
+    eq.molal_ionic_strength = conc.ionic_strength();
+    let (range, set_by) = conc.validated_range();
+    eq.activity_range = range;
+    eq.activity_detail = Some(Box::new(conc.detail(terms, set_by)));
+    eq.activity_limited = eq.molal_ionic_strength > eq.activity_range;
+    eq.water_activity = conc.summary.water_activity;
 }
 
 /// The largest change of any ln γ at which the concentrated model's coefficients count as
@@ -1170,88 +1265,147 @@ fn find_root(
     s: &SolverSettings,
     a: &Activity,
 ) -> Result<Root, SolveError> {
-    let limit = s.activity_limit;
-    let coefficients = |i: f64| Gammas::davies_with_a(a.phys, a.debye_huckel_a, i.min(limit));
-    let mut ionic = start_ionic;
     // The concentrated model's coefficients are held for this search and set between
     // searches (`find_root_concentrated`).
-    let frozen = p.concentrated.is_some() || p.hold_davies;
-    if !frozen {
-        p.set_activity(&coefficients(ionic));
+    let held = p.concentrated.is_some() || p.hold_davies;
+    let mut davies = DaviesFollower {
+        ionic: start_ionic,
+        limit: s.activity_limit,
+        held,
+    };
+    if !held {
+        p.set_activity(&davies.coefficients(a));
     }
-    let (mut lo, mut hi) = (LN_X_LO, LN_X_HI);
-    // True when the coefficients changed since the bracket was last the full one.
-    let mut stale = false;
-    let mut x = start.clamp(lo, hi);
+    let mut bracket = Bracket::full();
+    let mut x = start.clamp(bracket.lo, bracket.hi);
     for it in 1..=s.max_iterations {
         let ax = x.exp();
         let pt = p.eval(ax);
         if !(pt.f.is_finite() && pt.ionic.is_finite()) {
             return Err(SolveError::NoConvergence(it));
         }
-        if pt.f > 0.0 {
-            hi = x;
-        } else {
-            lo = x;
-        }
+        bracket.narrow(x, pt.f);
         let newton = if pt.dfdlnx > 0.0 {
             x - pt.f / pt.dfdlnx
         } else {
             f64::NAN
         };
-        let settled = if frozen {
-            true
-        } else {
-            // Above the limit the coefficients no longer change with I.
-            let ionic_settled = (pt.ionic - ionic).abs() <= 1e-10 * pt.ionic.max(1e-12)
-                || (ionic > limit && pt.ionic > limit);
-            let neutrals_settled = p.update_neutral_activity(ax, a.molal_scale);
-            if !ionic_settled {
-                ionic = pt.ionic;
-                p.set_activity(&coefficients(ionic));
-            }
-            ionic_settled && neutrals_settled
+        let settled = davies.follow(p, &pt, ax, a);
+        bracket.stale |= !settled;
+        let root_at = |ln_x: f64| Root {
+            x: ln_x.exp(),
+            ionic: pt.ionic,
+            limited: davies.limited(),
+            iterations: it,
         };
-        stale |= !settled;
         // A Newton step below the tolerance, with coefficients that the step no longer
         // changes, is the root (the step may land on one of the bracket's ends).
         if newton.is_finite() && (newton - x).abs() < s.tolerance {
             if settled {
-                return Ok(Root {
-                    x: newton.exp(),
-                    ionic: pt.ionic,
-                    limited: ionic > limit,
-                    iterations: it,
-                });
+                return Ok(root_at(newton));
             }
             x = newton;
             continue;
         }
-        if hi - lo < s.tolerance {
-            if lo <= LN_X_LO || hi >= LN_X_HI {
-                // Pressed against the end of the full bracket: the charge balance keeps
-                // its sign over the whole range.
+        if bracket.width() < s.tolerance {
+            if bracket.against_full_ends() {
+                // The charge balance keeps its sign over the whole range.
                 return Err(SolveError::NoBracket);
             }
-            if !stale && settled {
+            if !bracket.stale && settled {
                 // Closed on a root that rounding keeps the Newton step from confirming.
-                return Ok(Root {
-                    x: (0.5 * (lo + hi)).exp(),
-                    ionic: pt.ionic,
-                    limited: ionic > limit,
-                    iterations: it,
-                });
+                return Ok(root_at(bracket.middle()));
             }
-            (lo, hi) = (LN_X_LO, LN_X_HI);
-            stale = false;
+            bracket = Bracket::full();
         }
-        x = if newton.is_finite() && newton > lo && newton < hi {
-            newton
-        } else {
-            0.5 * (lo + hi)
-        };
+        x = bracket.guarded(newton);
     }
     Err(SolveError::NoConvergence(s.max_iterations))
+}
+
+/// The interval of ln x known to hold the root.
+struct Bracket {
+    lo: f64,
+    hi: f64,
+    /// True when the coefficients changed since the bracket was last the full one.
+    stale: bool,
+}
+
+impl Bracket {
+    fn full() -> Self {
+        Bracket {
+            lo: LN_X_LO,
+            hi: LN_X_HI,
+            stale: false,
+        }
+    }
+
+    /// Keeps the side of `ln_x` on which the charge balance `f` changes sign.
+    fn narrow(&mut self, ln_x: f64, f: f64) {
+        if f > 0.0 {
+            self.hi = ln_x;
+        } else {
+            self.lo = ln_x;
+        }
+    }
+
+    fn width(&self) -> f64 {
+        self.hi - self.lo
+    }
+
+    fn middle(&self) -> f64 {
+        0.5 * (self.lo + self.hi)
+    }
+
+    /// True when the bracket has closed on an end of the full range, where no root is.
+    fn against_full_ends(&self) -> bool {
+        self.lo <= LN_X_LO || self.hi >= LN_X_HI
+    }
+
+    /// The Newton step where it stays inside the bracket, else bisection.
+    fn guarded(&self, newton: f64) -> f64 {
+        if newton.is_finite() && newton > self.lo && newton < self.hi {
+            newton
+        } else {
+            self.middle()
+        }
+    }
+}
+
+/// Davies' coefficients following a search's iterates through their ionic strength.
+struct DaviesFollower {
+    /// The ionic strength the coefficients were last set at.
+    ionic: f64,
+    /// Above it Davies is outside its validity and the coefficients no longer change with I.
+    limit: f64,
+    /// True when the coefficients are held through the search, set between searches.
+    held: bool,
+}
+
+impl DaviesFollower {
+    fn coefficients(&self, a: &Activity) -> Gammas {
+        Gammas::davies_with_a(a.phys, a.debye_huckel_a, self.ionic.min(self.limit))
+    }
+
+    fn limited(&self) -> bool {
+        self.ionic > self.limit
+    }
+
+    /// Moves the coefficients to the ionic strength and neutral forms at the iterate `ax`;
+    /// true when they were already there.
+    fn follow(&mut self, p: &mut Prepared, pt: &Point, ax: f64, a: &Activity) -> bool {
+        if self.held {
+            return true;
+        }
+        let ionic_settled = (pt.ionic - self.ionic).abs() <= 1e-10 * pt.ionic.max(1e-12)
+            || (self.ionic > self.limit && pt.ionic > self.limit);
+        let neutrals_settled = p.update_neutral_activity(ax, a.molal_scale);
+        if !ionic_settled {
+            self.ionic = pt.ionic;
+            p.set_activity(&self.coefficients(a));
+        }
+        ionic_settled && neutrals_settled
+    }
 }
 
 fn liquid_total(t: &Term, volatile_share: f64) -> f64 {
@@ -1263,40 +1417,103 @@ fn liquid_total(t: &Term, volatile_share: f64) -> f64 {
 }
 
 fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> Equilibrium {
-    let phys = &cat.physical;
-    let t_k = m.temperature_k;
     let x = root.x;
     let h = x * p.inv_gamma_h;
     let oh = p.kw_eff * p.inv_gamma_oh / x;
-    let mut families = Vec::with_capacity(p.terms.len());
     let volatile_terms = p.terms.iter().filter(|t| t.hcp > 0.0).count();
     let mut gases = Vec::with_capacity(volatile_terms + p.links.len());
-    let mut charge = h - oh + p.strong_charge;
-    let mut scale = h + oh + p.strong_ionic;
+    let mut tally = ChargeTally {
+        charge: h - oh + p.strong_charge,
+        scale: h + oh + p.strong_ionic,
+    };
     // Only a linked or complexed family's total changes with x; the common case needs no copy.
     let linked = (!p.links.is_empty() || p.complexation.is_some()).then(|| p.linked_terms(x));
     let terms = linked.as_ref().map_or(&p.terms, |l| &l.0);
+    let families = family_states(cat, m, terms, x, vg, &mut tally, &mut gases);
+    let combined = combined_states(cat, m, p, x, &mut tally, &mut gases);
+    let (complexes, solids) = match (&p.complexation, &linked) {
+        (Some(cx), Some((_, Some(b)))) => complex_states(cat, cx, b, &mut tally),
+        _ => (Vec::new(), Vec::new()),
+    };
+    Equilibrium {
+        ph: -x.log10(),
+        ionic_strength: root.ionic,
+        temperature_k: m.temperature_k,
+        liquid_l: m.liquid_l,
+        headspace_l: m.headspace_l,
+        closure: m.closure,
+        h_mol_per_l: h,
+        oh_mol_per_l: oh,
+        families,
+        combined,
+        complexes,
+        solids,
+        gases,
+        relative_charge_residual: tally.relative_residual(),
+        activity_limited: root.limited,
+        activity_model: ActivityModelUsed::Davies,
+        molal_ionic_strength: root.ionic,
+        activity_range: p.davies_limit,
+        water_activity: 1.0,
+        activity_detail: None,
+        iterations: root.iterations,
+    }
+}
+
+/// The liquid's charge and the sum of its absolute charge concentrations, added up species
+/// by species as the state is written out.
+struct ChargeTally {
+    charge: f64,
+    scale: f64,
+}
+
+impl ChargeTally {
+    fn add(&mut self, z: f64, c: f64) {
+        self.charge += z * c;
+        self.scale += z.abs() * c;
+    }
+
+    /// The charge balance's residual over the scale of the charges in it.
+    fn relative_residual(&self) -> f64 {
+        if self.scale > 0.0 {
+            self.charge.abs() / self.scale
+        } else {
+            0.0
+        }
+    }
+}
+
+/// Each family's species at x (`terms` with the links and complexes' shares taken), and the
+/// gas of each volatile family.
+fn family_states(
+    cat: &Catalog,
+    m: &Mixture,
+    terms: &[Term],
+    x: f64,
+    vg: f64,
+    tally: &mut ChargeTally,
+    gases: &mut Vec<GasState>,
+) -> Vec<FamilyState> {
+    let phys = &cat.physical;
+    let mut families = Vec::with_capacity(terms.len());
     let totals_mol = m
         .families
         .iter()
         .filter(|&&(fid, n)| fid != cat.water && n != 0.0);
     for (t, &(fid, n)) in terms.iter().zip(totals_mol) {
-        let fam = cat.family(fid);
         let mut w = [0.0; MAX_STEPS + 1];
         let d = weights(t, x, &mut w);
         let c_aq = liquid_total(t, w[t.volatile] / d);
         let fractions: SpeciesValues = w[..=t.n].iter().map(|wj| wj / d).collect();
         let concentrations: SpeciesValues = fractions.iter().map(|a| a * c_aq).collect();
         for (j, c) in concentrations.iter().enumerate() {
-            let z = (t.z0 - j as i32) as f64;
-            charge += z * c;
-            scale += z.abs() * c;
+            tally.add((t.z0 - j as i32) as f64, *c);
         }
-        if let Some(v) = &fam.volatile {
+        if let Some(v) = &cat.family(fid).volatile {
             // c in mol/L → mol/m3; p = c / Hcp on the molal scale, with the neutral form's
             // activity coefficient.
             let pa = concentrations[t.volatile] * 1e3 * t.henry / t.hcp;
-            let moles_in_gas = pa * (vg / 1e3) / (phys.r * t_k);
+            let moles_in_gas = pa * (vg / 1e3) / (phys.r * m.temperature_k);
             gases.push(GasState {
                 family: fid,
                 from_combined: false,
@@ -1312,14 +1529,26 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
             fractions,
         });
     }
+    families
+}
+
+/// Each combined species at x, and the gas of each volatile one.
+fn combined_states(
+    cat: &Catalog,
+    m: &Mixture,
+    p: &Prepared,
+    x: f64,
+    tally: &mut ChargeTally,
+    gases: &mut Vec<GasState>,
+) -> Vec<CombinedState> {
+    let phys = &cat.physical;
+    let t_k = m.temperature_k;
     let mut combined = Vec::with_capacity(p.links.len());
     for l in &p.links {
         let c = &cat.combined[l.catalog_index];
         let y = p.link_amount(l, x);
         let c_aq = y / (1.0 + l.gas_factor);
-        let z = l.charge as f64;
-        charge += z * c_aq;
-        scale += z.abs() * c_aq;
+        tally.add(l.charge as f64, c_aq);
         let moles_in_gas = (y - c_aq) * m.liquid_l;
         if let Some(v) = &c.data.volatile {
             let hcp = v.hcp * (v.hcp_b * (1.0 / t_k - 1.0 / phys.t_ref)).exp();
@@ -1339,53 +1568,35 @@ fn assemble(cat: &Catalog, m: &Mixture, p: &Prepared, root: &Root, vg: f64) -> E
             moles_in_gas,
         });
     }
-    let mut complexes = Vec::new();
-    let mut solids = Vec::new();
-    if let (Some(cx), Some((_, Some(b)))) = (&p.complexation, &linked) {
-        for &(si, amount) in &b.solids {
-            solids.push(SolidState {
-                catalog_index: si,
-                formula: cat.solids[si].formula.clone(),
-                mol_per_l: amount,
-            });
-        }
-        complexes.reserve(b.concentrations.len());
-        // The complexes' charge, with a strong-ion metal's bound share taken off its own.
-        charge += b.charge;
-        for (ci, &c) in cx.catalog_indexes().zip(&b.concentrations) {
-            scale += f64::from(cat.complexes[ci].charge.abs()) * c;
-            complexes.push(ComplexState {
-                catalog_index: ci,
-                formula: cat.complexes[ci].formula.clone(),
-                concentration: c,
-            });
-        }
+    combined
+}
+
+/// The metal complexes and the solids that formed, from what the complexation bound.
+fn complex_states(
+    cat: &Catalog,
+    cx: &Complexation,
+    b: &Bound,
+    tally: &mut ChargeTally,
+) -> (Vec<ComplexState>, Vec<SolidState>) {
+    let solids = b
+        .solids
+        .iter()
+        .map(|&(si, amount)| SolidState {
+            catalog_index: si,
+            formula: cat.solids[si].formula.clone(),
+            mol_per_l: amount,
+        })
+        .collect();
+    let mut complexes = Vec::with_capacity(b.concentrations.len());
+    // The complexes' charge, with a strong-ion metal's bound share taken off its own.
+    tally.charge += b.charge;
+    for (ci, &c) in cx.catalog_indexes().zip(&b.concentrations) {
+        tally.scale += f64::from(cat.complexes[ci].charge.abs()) * c;
+        complexes.push(ComplexState {
+            catalog_index: ci,
+            formula: cat.complexes[ci].formula.clone(),
+            concentration: c,
+        });
     }
-    Equilibrium {
-        ph: -x.log10(),
-        ionic_strength: root.ionic,
-        temperature_k: t_k,
-        liquid_l: m.liquid_l,
-        headspace_l: m.headspace_l,
-        closure: m.closure,
-        h_mol_per_l: h,
-        oh_mol_per_l: oh,
-        families,
-        combined,
-        complexes,
-        solids,
-        gases,
-        relative_charge_residual: if scale > 0.0 {
-            charge.abs() / scale
-        } else {
-            0.0
-        },
-        activity_limited: root.limited,
-        activity_model: ActivityModelUsed::Davies,
-        molal_ionic_strength: root.ionic,
-        activity_range: p.davies_limit,
-        water_activity: 1.0,
-        activity_detail: None,
-        iterations: root.iterations,
-    }
+    (complexes, solids)
 }

@@ -186,108 +186,68 @@ impl Complexation {
         if cat.complexes.is_empty() {
             return None;
         }
-        let term_of = |p: Part| match p {
-            Part::Family(f, j) => terms
-                .iter()
-                .position(|t| t.family == f && j <= t.n)
-                .map(|i| (i, j)),
-            Part::Ion(_) => None,
-        };
-        let phys = &cat.physical;
         let mut out = Complexation {
             metals: SmallVec::new(),
             ligands: SmallVec::new(),
             forms: SmallVec::new(),
         };
         for (metal, list) in &cat.complexes_of_metal {
-            let at = match *metal {
-                Part::Family(..) => term_of(*metal).map(|(i, j)| MetalAt::Term(i, j)),
-                Part::Ion(id) => ions
-                    .iter()
-                    .position(|&(i, n)| i == id && n > 0.0)
-                    .map(|slot| MetalAt::Ion {
-                        total: ions[slot].1 / liquid_l,
-                        slot,
-                    }),
+            let Some(at) = metal_at(*metal, terms, ions, liquid_l) else {
+                continue;
             };
-            let Some(at) = at else { continue };
             let start = out.forms.len();
             for &ci in list {
-                let c = &cat.complexes[ci];
-                let ligand = match c.ligand {
+                let ligand = match cat.complexes[ci].ligand {
                     None => None,
-                    Some(p) => {
-                        let Some((term, species)) = term_of(p) else {
-                            continue;
-                        };
-                        let k = match out
-                            .ligands
-                            .iter()
-                            .position(|l| l.term == term && l.species == species)
-                        {
-                            Some(k) => k,
-                            None => {
-                                let t = &terms[term];
-                                // A neighbouring state's free ligand is where the search
-                                // starts; the result does not depend on it.
-                                let guess = near
-                                    .and_then(|e| e.family(t.family))
-                                    .and_then(|fs| fs.concentrations.get(species).copied())
-                                    .filter(|c| *c > 0.0)
-                                    .map_or(f64::NAN, f64::ln);
-                                out.ligands.push(Ligand {
-                                    term,
-                                    species,
-                                    charge: t.z0 - species as i32,
-                                    guess: Cell::new(guess),
-                                });
-                                out.ligands.len() - 1
-                            }
-                        };
-                        Some(k)
-                    }
+                    Some(p) => match term_of(terms, p) {
+                        Some(species) => Some(out.ligand_index(terms, species, near)),
+                        None => continue,
+                    },
                 };
-                let log_k = log_k_at(phys, c.log_beta, c.dh.unwrap_or(0.0), t_k);
-                let k = (log_k * std::f64::consts::LN_10).exp();
-                out.forms.push(Form {
-                    catalog_index: ci,
-                    metal: out.metals.len(),
-                    ligand,
-                    n: i32::from(c.n),
-                    protons: c.protons,
-                    charge: c.charge,
-                    k,
-                    k_eff: k,
-                });
+                let form = Form::of(cat, ci, out.metals.len(), ligand, t_k);
+                out.forms.push(form);
             }
             if out.forms.len() > start {
-                let charge = match *metal {
-                    Part::Family(f, j) => cat.family(f).species[j].charge,
-                    Part::Ion(id) => cat.ion(id).charge,
-                };
-                let solid = cat
-                    .solids
-                    .iter()
-                    .position(|sd| sd.metal == *metal)
-                    .map(|si| {
-                        let sd = &cat.solids[si];
-                        let log_k = log_k_at(phys, sd.log_k, sd.dh.unwrap_or(0.0), t_k);
-                        let k = (log_k * std::f64::consts::LN_10).exp();
-                        SolidCap {
-                            catalog_index: si,
-                            k,
-                            k_eff: k,
-                        }
-                    });
                 out.metals.push(Metal {
                     at,
-                    charge,
+                    charge: part_charge(cat, *metal),
                     forms: (start, out.forms.len()),
-                    solid,
+                    solid: SolidCap::of(cat, *metal, t_k),
                 });
             }
         }
         (!out.forms.is_empty()).then_some(out)
+    }
+
+    /// The index among `ligands` of the species `(term, species)`, added if it is new.
+    fn ligand_index(
+        &mut self,
+        terms: &[Term],
+        (term, species): (usize, usize),
+        near: Option<&super::Equilibrium>,
+    ) -> usize {
+        let known = self
+            .ligands
+            .iter()
+            .position(|l| l.term == term && l.species == species);
+        if let Some(k) = known {
+            return k;
+        }
+        let t = &terms[term];
+        // A neighbouring state's free ligand is where the search starts; the result does not
+        // depend on it.
+        let guess = near
+            .and_then(|e| e.family(t.family))
+            .and_then(|fs| fs.concentrations.get(species).copied())
+            .filter(|c| *c > 0.0)
+            .map_or(f64::NAN, f64::ln);
+        self.ligands.push(Ligand {
+            term,
+            species,
+            charge: t.z0 - species as i32,
+            guess: Cell::new(guess),
+        });
+        self.ligands.len() - 1
     }
 
     /// Folds Davies' coefficients (γ(z) = γ(1)^(z²)) into each constant.
@@ -348,25 +308,7 @@ impl Complexation {
     /// The complexes at x, for family totals `totals` (mol/L, after any combined species took
     /// their share).
     pub(super) fn solve_at(&self, terms: &[Term], totals: &[f64], x: f64) -> Bound {
-        // Per metal: its total, its total over its free ion (1 for a strong ion), and the
-        // free ion's saturated concentration.
-        let metal_totals: SmallVec<[MetalNow; 4]> = self
-            .metals
-            .iter()
-            .map(|m| {
-                let (total, p) = match m.at {
-                    MetalAt::Term(t, j) => {
-                        let share = liquid_species_fraction(&terms[t], x, j);
-                        (totals[t].max(0.0), 1.0 / share)
-                    }
-                    MetalAt::Ion { total, .. } => (total, 1.0),
-                };
-                let cap = m.solid.map_or(f64::INFINITY, |sd| {
-                    (sd.k_eff * x.powi(m.charge)).max(f64::MIN_POSITIVE)
-                });
-                MetalNow { total, p, cap }
-            })
-            .collect();
+        let metal_totals = self.metals_at(terms, totals, x);
         let ligand_totals: SmallVec<[(f64, f64); 4]> = self
             .ligands
             .iter()
@@ -381,10 +323,63 @@ impl Complexation {
             .iter()
             .map(|f| f.k_eff * x.powi(f.protons))
             .collect();
+        let ln_l = self.free_ligands(&ligand_totals, &base, &metal_totals);
+        let q: SmallVec<[f64; 24]> = self
+            .forms
+            .iter()
+            .zip(&base)
+            .map(|(f, b)| match f.ligand {
+                Some(k) => b * ln_l[k].exp().powi(f.n),
+                None => *b,
+            })
+            .collect();
+        let mut bound = Bound {
+            taken: SmallVec::from_elem(0.0, terms.len()),
+            charge: 0.0,
+            ionic: 0.0,
+            concentrations: SmallVec::from_elem(0.0, self.forms.len()),
+            ions_bound: SmallVec::new(),
+            solids: SmallVec::new(),
+        };
+        for (m, now) in self.metals.iter().zip(&metal_totals) {
+            self.bind_metal(m, now, &q, &mut bound);
+        }
+        bound
+    }
+
+    /// Per metal at x: its total, its total over its free ion (1 for a strong ion), and the
+    /// free ion's saturated concentration.
+    fn metals_at(&self, terms: &[Term], totals: &[f64], x: f64) -> SmallVec<[MetalNow; 4]> {
+        self.metals
+            .iter()
+            .map(|m| {
+                let (total, p) = match m.at {
+                    MetalAt::Term(t, j) => {
+                        let share = liquid_species_fraction(&terms[t], x, j);
+                        (totals[t].max(0.0), 1.0 / share)
+                    }
+                    MetalAt::Ion { total, .. } => (total, 1.0),
+                };
+                let cap = m.solid.map_or(f64::INFINITY, |sd| {
+                    (sd.k_eff * x.powi(m.charge)).max(f64::MIN_POSITIVE)
+                });
+                MetalNow { total, p, cap }
+            })
+            .collect()
+    }
+
+    /// Each ligand's ln L that closes the balances, searched from the last solve's (or from
+    /// the whole total free); it is kept as the next solve's start.
+    fn free_ligands(
+        &self,
+        ligand_totals: &[(f64, f64)],
+        base: &[f64],
+        metal_totals: &[MetalNow],
+    ) -> SmallVec<[f64; 4]> {
         let mut ln_l: SmallVec<[f64; 4]> = self
             .ligands
             .iter()
-            .zip(&ligand_totals)
+            .zip(ligand_totals)
             .map(|(l, &(total, p))| {
                 let ceiling = (total / p).ln();
                 let g = l.guess.get();
@@ -395,73 +390,54 @@ impl Complexation {
                 }
             })
             .collect();
-        let fill_weights = |ln_l: &[f64], q: &mut SmallVec<[f64; 24]>| {
-            q.clear();
-            for (f, b) in self.forms.iter().zip(&base) {
-                q.push(match f.ligand {
-                    Some(k) => b * ln_l[k].exp().powi(f.n),
-                    None => *b,
-                });
-            }
-        };
-        let mut q: SmallVec<[f64; 24]> = SmallVec::new();
         if self.ligands.len() == 1 {
             let (total, p) = ligand_totals[0];
             ln_l[0] = if total > 0.0 {
-                self.solve_ligand(0, &ln_l, total, p, &base, &metal_totals)
+                self.solve_ligand(0, &ln_l, total, p, base, metal_totals)
             } else {
                 f64::NEG_INFINITY
             };
         } else if !self.ligands.is_empty() {
-            self.solve_ligands_jointly(&mut ln_l, &ligand_totals, &base, &metal_totals);
+            self.solve_ligands_jointly(&mut ln_l, ligand_totals, base, metal_totals);
         }
-        if !self.ligands.is_empty() {
-            for (l, &v) in self.ligands.iter().zip(&ln_l) {
-                l.guess.set(v);
-            }
+        for (l, &v) in self.ligands.iter().zip(&ln_l) {
+            l.guess.set(v);
         }
-        fill_weights(&ln_l, &mut q);
-        let mut bound = Bound {
-            taken: SmallVec::from_elem(0.0, terms.len()),
-            charge: 0.0,
-            ionic: 0.0,
-            concentrations: SmallVec::from_elem(0.0, self.forms.len()),
-            ions_bound: SmallVec::new(),
-            solids: SmallVec::new(),
-        };
-        for (mi, m) in self.metals.iter().enumerate() {
-            let now = metal_totals[mi];
-            let (a, b) = m.forms;
-            let s = now.p + q[a..b].iter().sum::<f64>();
-            let free_metal = now.free(s);
-            // What the liquid cannot hold leaves it as the solid.
-            let precipitated = (now.total - free_metal * s).max(0.0);
-            if let (Some(sd), true) = (m.solid, precipitated > 0.0) {
-                bound.solids.push((sd.catalog_index, precipitated));
-            }
-            let mut held = precipitated;
-            for (fi, f) in self.forms[a..b].iter().enumerate() {
-                let c = free_metal * q[a + fi];
-                bound.concentrations[a + fi] = c;
-                held += c;
-                let z = f64::from(f.charge);
-                bound.charge += z * c;
-                bound.ionic += z * z * c;
-                if let Some(k) = f.ligand {
-                    bound.taken[self.ligands[k].term] += f64::from(f.n) * c;
-                }
-            }
-            match m.at {
-                MetalAt::Term(t, _) => bound.taken[t] += held,
-                MetalAt::Ion { slot, .. } => {
-                    let z = f64::from(m.charge);
-                    bound.charge -= z * held;
-                    bound.ionic -= z * z * held;
-                    bound.ions_bound.push((slot, held));
-                }
+        ln_l
+    }
+
+    /// Adds what metal `m` holds at x to `bound`: its complexes (from their weights per free
+    /// metal `q`), the ligands they take, and the solid where the liquid cannot hold it all.
+    fn bind_metal(&self, m: &Metal, now: &MetalNow, q: &[f64], bound: &mut Bound) {
+        let (a, b) = m.forms;
+        let s = now.p + q[a..b].iter().sum::<f64>();
+        let free_metal = now.free(s);
+        // What the liquid cannot hold leaves it as the solid.
+        let precipitated = (now.total - free_metal * s).max(0.0);
+        if let (Some(sd), true) = (m.solid, precipitated > 0.0) {
+            bound.solids.push((sd.catalog_index, precipitated));
+        }
+        let mut held = precipitated;
+        for (fi, f) in self.forms[a..b].iter().enumerate() {
+            let c = free_metal * q[a + fi];
+            bound.concentrations[a + fi] = c;
+            held += c;
+            let z = f64::from(f.charge);
+            bound.charge += z * c;
+            bound.ionic += z * z * c;
+            if let Some(k) = f.ligand {
+                bound.taken[self.ligands[k].term] += f64::from(f.n) * c;
             }
         }
-        bound
+        match m.at {
+            MetalAt::Term(t, _) => bound.taken[t] += held,
+            MetalAt::Ion { slot, .. } => {
+                let z = f64::from(m.charge);
+                bound.charge -= z * held;
+                bound.ionic -= z * z * held;
+                bound.ions_bound.push((slot, held));
+            }
+        }
     }
 
     /// ln L of ligand `k` that closes its balance with the other ligands held.
@@ -511,40 +487,21 @@ impl Complexation {
         base: &[f64],
         metal_totals: &[MetalNow],
     ) {
+        let search = JointSearch::new(self, ligand_totals, base, metal_totals);
         let n = self.ligands.len();
-        let active: SmallVec<[bool; 4]> = ligand_totals.iter().map(|&(t, _)| t > 0.0).collect();
-        let ceiling: SmallVec<[f64; 4]> = ligand_totals
-            .iter()
-            .map(|&(t, p)| {
-                if t > 0.0 {
-                    (t / p).ln()
-                } else {
-                    f64::NEG_INFINITY
-                }
-            })
-            .collect();
-        for k in 0..n {
-            if !active[k] {
-                ln_l[k] = f64::NEG_INFINITY;
+        for (u, &active) in ln_l.iter_mut().zip(&search.active) {
+            if !active {
+                *u = f64::NEG_INFINITY;
             }
         }
-        let mut grad: SmallVec<[f64; 4]> = SmallVec::from_elem(0.0, n);
-        let mut hess: SmallVec<[f64; 16]> = SmallVec::from_elem(0.0, n * n);
-        let mut phi = self.potential(
-            ln_l,
-            ligand_totals,
-            base,
-            metal_totals,
-            &mut grad,
-            &mut hess,
-        );
+        let mut at = search.potential_at(ln_l, &PotentialAt::zero(n));
         for _ in 0..MAX_ROUNDS {
-            let mut step = newton_direction(&hess, &grad, &active);
+            let mut step = newton_direction(&at.hess, &at.grad, &search.active);
             // Newton converges quadratically here: a step this short is the last one, and
             // the potential need not be evaluated after it.
             if step.iter().all(|d| d.abs() < NEWTON_DONE) {
                 for k in 0..n {
-                    if active[k] {
+                    if search.active[k] {
                         ln_l[k] += step[k];
                     }
                 }
@@ -556,31 +513,9 @@ impl Complexation {
             if longest > 20.0 {
                 step.iter_mut().for_each(|d| *d *= 20.0 / longest);
             }
-            let slope: f64 = step.iter().zip(&grad).map(|(d, g)| d * g).sum();
-            let mut t = 1.0;
-            let mut trial: SmallVec<[f64; 4]> = SmallVec::from_slice(ln_l);
-            let mut accepted = false;
-            for _ in 0..60 {
-                for k in 0..n {
-                    if active[k] {
-                        trial[k] =
-                            (ln_l[k] + t * step[k]).clamp(ceiling[k] - LN_SPAN, ceiling[k] + 1.0);
-                    }
-                }
-                let (mut g2, mut h2) = (grad.clone(), hess.clone());
-                let next =
-                    self.potential(&trial, ligand_totals, base, metal_totals, &mut g2, &mut h2);
-                if next <= phi + 1e-4 * t * slope || t * longest < LN_TOLERANCE {
-                    phi = next;
-                    grad = g2;
-                    hess = h2;
-                    accepted = true;
-                    break;
-                }
-                t *= 0.5;
-            }
+            let (trial, accepted) = search.line_search(ln_l, &step, longest, &mut at);
             let moved = (0..n)
-                .filter(|&k| active[k])
+                .filter(|&k| search.active[k])
                 .fold(0.0f64, |a, k| a.max((trial[k] - ln_l[k]).abs()));
             ln_l.copy_from_slice(&trial);
             if !accepted || moved < LN_TOLERANCE {
@@ -731,5 +666,181 @@ impl Complexation {
     /// Each complex's catalog index, in the order of `Bound::concentrations`.
     pub(super) fn catalog_indexes(&self) -> impl Iterator<Item = usize> + '_ {
         self.forms.iter().map(|f| f.catalog_index)
+    }
+}
+
+/// The term and species of a family's species among the solver's terms (None for a strong
+/// ion, or a family the mixture does not hold).
+fn term_of(terms: &[Term], p: Part) -> Option<(usize, usize)> {
+    match p {
+        Part::Family(f, j) => terms
+            .iter()
+            .position(|t| t.family == f && j <= t.n)
+            .map(|i| (i, j)),
+        Part::Ion(_) => None,
+    }
+}
+
+/// Where the mixture holds `metal`, if it holds any.
+fn metal_at(metal: Part, terms: &[Term], ions: &[(IonId, f64)], liquid_l: f64) -> Option<MetalAt> {
+    match metal {
+        Part::Family(..) => term_of(terms, metal).map(|(i, j)| MetalAt::Term(i, j)),
+        Part::Ion(id) => ions
+            .iter()
+            .position(|&(i, n)| i == id && n > 0.0)
+            .map(|slot| MetalAt::Ion {
+                total: ions[slot].1 / liquid_l,
+                slot,
+            }),
+    }
+}
+
+/// The charge of a metal's free ion.
+fn part_charge(cat: &Catalog, metal: Part) -> i32 {
+    match metal {
+        Part::Family(f, j) => cat.family(f).species[j].charge,
+        Part::Ion(id) => cat.ion(id).charge,
+    }
+}
+
+/// A thermodynamic constant at `t_k` from its log K at the reference temperature and its
+/// reaction enthalpy.
+fn constant_at(cat: &Catalog, log_k_ref: f64, dh: Option<f64>, t_k: f64) -> f64 {
+    let log_k = log_k_at(&cat.physical, log_k_ref, dh.unwrap_or(0.0), t_k);
+    (log_k * std::f64::consts::LN_10).exp()
+}
+
+impl Form {
+    /// Complex `ci` of the catalog, formed by metal `metal` with ligand `ligand`, at `t_k`.
+    fn of(cat: &Catalog, ci: usize, metal: usize, ligand: Option<usize>, t_k: f64) -> Self {
+        let c = &cat.complexes[ci];
+        let k = constant_at(cat, c.log_beta, c.dh, t_k);
+        Form {
+            catalog_index: ci,
+            metal,
+            ligand,
+            n: i32::from(c.n),
+            protons: c.protons,
+            charge: c.charge,
+            k,
+            k_eff: k,
+        }
+    }
+}
+
+impl SolidCap {
+    /// The solid that caps `metal`, if the data give one, at `t_k`.
+    fn of(cat: &Catalog, metal: Part, t_k: f64) -> Option<Self> {
+        let si = cat.solids.iter().position(|sd| sd.metal == metal)?;
+        let sd = &cat.solids[si];
+        let k = constant_at(cat, sd.log_k, sd.dh, t_k);
+        Some(SolidCap {
+            catalog_index: si,
+            k,
+            k_eff: k,
+        })
+    }
+}
+
+/// Φ at a point of the joint search, with its gradient (each ligand's balance) and Hessian
+/// (row-major).
+struct PotentialAt {
+    phi: f64,
+    grad: SmallVec<[f64; 4]>,
+    hess: SmallVec<[f64; 16]>,
+}
+
+impl PotentialAt {
+    fn zero(n: usize) -> Self {
+        PotentialAt {
+            phi: 0.0,
+            grad: SmallVec::from_elem(0.0, n),
+            hess: SmallVec::from_elem(0.0, n * n),
+        }
+    }
+}
+
+/// The joint search over every ligand's ln L at one a(H+).
+struct JointSearch<'a> {
+    cx: &'a Complexation,
+    ligand_totals: &'a [(f64, f64)],
+    base: &'a [f64],
+    metal_totals: &'a [MetalNow],
+    /// True for a ligand the mixture holds any of; the others take no part.
+    active: SmallVec<[bool; 4]>,
+    /// ln L with the whole of each ligand free: the top of its search span.
+    ceiling: SmallVec<[f64; 4]>,
+}
+
+impl<'a> JointSearch<'a> {
+    fn new(
+        cx: &'a Complexation,
+        ligand_totals: &'a [(f64, f64)],
+        base: &'a [f64],
+        metal_totals: &'a [MetalNow],
+    ) -> Self {
+        let active = ligand_totals.iter().map(|&(t, _)| t > 0.0).collect();
+        let ceiling = ligand_totals
+            .iter()
+            .map(|&(t, p)| {
+                if t > 0.0 {
+                    (t / p).ln()
+                } else {
+                    f64::NEG_INFINITY
+                }
+            })
+            .collect();
+        JointSearch {
+            cx,
+            ligand_totals,
+            base,
+            metal_totals,
+            active,
+            ceiling,
+        }
+    }
+
+    /// Φ and its derivatives at `ln_l`, written over a copy of `like`.
+    fn potential_at(&self, ln_l: &[f64], like: &PotentialAt) -> PotentialAt {
+        let (mut grad, mut hess) = (like.grad.clone(), like.hess.clone());
+        let phi = self.cx.potential(
+            ln_l,
+            self.ligand_totals,
+            self.base,
+            self.metal_totals,
+            &mut grad,
+            &mut hess,
+        );
+        PotentialAt { phi, grad, hess }
+    }
+
+    /// Backtracks along `step` from `ln_l` (each ln L kept within its span) until Φ falls
+    /// enough; returns the point reached and whether it was accepted, with `at` moved there
+    /// when it was.
+    fn line_search(
+        &self,
+        ln_l: &[f64],
+        step: &[f64],
+        longest: f64,
+        at: &mut PotentialAt,
+    ) -> (SmallVec<[f64; 4]>, bool) {
+        let slope: f64 = step.iter().zip(&at.grad).map(|(d, g)| d * g).sum();
+        let mut t = 1.0;
+        let mut trial: SmallVec<[f64; 4]> = SmallVec::from_slice(ln_l);
+        for _ in 0..60 {
+            for k in 0..ln_l.len() {
+                if self.active[k] {
+                    trial[k] = (ln_l[k] + t * step[k])
+                        .clamp(self.ceiling[k] - LN_SPAN, self.ceiling[k] + 1.0);
+                }
+            }
+            let next = self.potential_at(&trial, at);
+            if next.phi <= at.phi + 1e-4 * t * slope || t * longest < LN_TOLERANCE {
+                *at = next;
+                return (trial, true);
+            }
+            t *= 0.5;
+        }
+        (trial, false)
     }
 }

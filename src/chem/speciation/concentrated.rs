@@ -127,77 +127,32 @@ impl<'c> Concentrated<'c> {
         complex_charges: &[i32],
     ) -> Self {
         let table = &cat.pitzer;
-        let t_ref = cat.physical.t_ref;
-        let mut formulas: SmallVec<[(&str, i32); INLINE_SLOTS]> = SmallVec::new();
-        let mut molalities: SmallVec<[f64; INLINE_SLOTS]> = SmallVec::new();
+        let mut slots = Slots::default();
         for &(id, n) in ions {
             let ion = cat.ion(id);
-            formulas.push((ion.formula.as_str(), ion.charge));
-            molalities.push(n / liquid_l * molal);
+            slots.push_named(cat, ion.formula.as_str(), ion.charge, n / liquid_l * molal);
         }
-        let h_slot = formulas.len();
-        formulas.push(("H+", 1));
-        formulas.push(("OH-", -1));
-        molalities.extend([0.0, 0.0]);
-        let mut ids: SmallVec<[(Option<u16>, i32); INLINE_SLOTS]> = formulas
-            .iter()
-            .map(|(f, z)| (table.ion_id(f), *z))
-            .collect();
-        let mut salting_h: SmallVec<[f64; INLINE_SLOTS]> = formulas
-            .iter()
-            .map(|(f, _)| cat.salting.ion_h(f).unwrap_or(0.0))
-            .collect();
-        let mut term_slots = SmallVec::new();
-        let mut neutrals = SmallVec::new();
-        for t in terms {
-            let fam = cat.family(t.family);
-            let data = &t.activity_data;
-            let mut slots = [NO_SLOT; MAX_STEPS + 1];
-            for (j, sp) in fam.species.iter().enumerate().take(t.n + 1) {
-                if sp.charge != 0 {
-                    slots[j] = formulas.len() as u16;
-                    formulas.push((sp.formula.as_str(), sp.charge));
-                    ids.push((data.pitzer_id[j], sp.charge));
-                    salting_h.push(data.salting_h[j]);
-                    molalities.push(0.0);
-                }
-            }
-            term_slots.push(slots);
-            neutrals.push(data.neutral.map(|(species, own_salting, gas)| NeutralForm {
-                species,
-                own_salting,
-                h_gas: Some(gas.h_g(t_k, t_ref)),
-                lambda: t.lambda,
-            }));
-        }
-        let mut complex_slots = SmallVec::new();
-        for &z in complex_charges {
-            if z == 0 {
-                complex_slots.push(NO_SLOT);
-            } else {
-                complex_slots.push(formulas.len() as u16);
-                formulas.push(("", z));
-                ids.push((None, z));
-                salting_h.push(0.0);
-                molalities.push(0.0);
-            }
-        }
-        let ion_totals = molalities[..ions.len()].iter().copied().collect();
-        let n = formulas.len();
-        let interactions = Interactions::with_ids(table, ids, a_phi);
+        let h_slot = slots.formulas.len();
+        slots.push_named(cat, "H+", 1, 0.0);
+        slots.push_named(cat, "OH-", -1, 0.0);
+        let (term_slots, neutrals) = slots.push_terms(cat, terms, t_k);
+        let complex_slots = slots.push_complexes(complex_charges);
+        let ion_totals = slots.molalities[..ions.len()].iter().copied().collect();
+        let n = slots.formulas.len();
+        let interactions = Interactions::with_ids(table, slots.ids, a_phi);
         Concentrated {
             table,
             cat,
-            formulas: formulas.iter().map(|f| f.0).collect(),
+            formulas: slots.formulas,
             interactions,
             molal,
             molal_scale,
             // Set from the composition by `hold_at_range`; unheld until then.
             hold: f64::INFINITY,
-            molalities,
+            molalities: slots.molalities,
             held: SmallVec::from_elem(0.0, n),
             ln_gamma: SmallVec::from_elem(0.0, n),
-            salting_h,
+            salting_h: slots.salting_h,
             h_slot,
             oh_slot: h_slot + 1,
             term_slots,
@@ -230,85 +185,20 @@ impl<'c> Concentrated<'c> {
     ) -> Coefficients {
         let molal = self.molal;
         let neutral_molality = self.read_composition(terms, x, h_mol_per_l, oh_mol_per_l);
-        // Beyond the highest ionic strength any parameters were fitted to, the coefficients
-        // are held at their value there (every molality scaled down alike).
-        let i: f64 = 0.5
-            * self
-                .molalities
-                .iter()
-                .enumerate()
-                .map(|(k, m)| m * self.charge_squared(k))
-                .sum::<f64>();
-        let scale = if i > self.hold { self.hold / i } else { 1.0 };
-        for (h, m) in self.held.iter_mut().zip(&self.molalities) {
-            *h = m * scale;
-        }
-        let mut ln_gamma = std::mem::take(&mut self.ln_gamma);
-        // Water's activity is held with the rest: followed past the fitted range it would
-        // fall towards zero in a wet salt, and Kw with it.
-        let mut summary = self.interactions.evaluate(&self.held, &mut ln_gamma);
-        // Between the dilute range and twice it, the coefficients pass over from Davies'
-        // to the model's by the share `weight`, so that a pour crossing the range sees no
-        // step in them.
-        let weight = self.weight(summary.ionic_strength);
-        if weight < 1.0 {
-            let i_molar = summary.ionic_strength / molal;
-            let sqrt_i = i_molar.sqrt();
-            let davies_unit = -std::f64::consts::LN_10
-                * self.davies_a
-                * (sqrt_i / (1.0 + sqrt_i) - self.davies_b * i_molar);
-            for (k, g) in ln_gamma.iter_mut().enumerate() {
-                let z2 = self.charge_squared(k);
-                *g = weight * *g + (1.0 - weight) * z2 * davies_unit;
-            }
-            summary.water_activity = summary.water_activity.powf(weight);
-        }
-        self.ln_gamma = ln_gamma;
-        self.summary = summary;
-
-        // Salting-out: Σ hᵢ cᵢ and Σ cᵢ over the ions, in mol/L (held like the rest).
-        let (mut sum_hc, mut sum_c) = (0.0, 0.0);
-        for (h, m) in self.salting_h.iter().zip(&self.held) {
-            let c = m / molal;
-            sum_hc += h * c;
-            sum_c += c;
-        }
-        let to_water = summary.water_activity.ln();
+        self.hold_molalities();
+        let weight = self.set_ion_coefficients();
+        let salting = self.salting_sums();
+        let to_water = self.summary.water_activity.ln();
         let mut change: f64 = (to_water - self.ln_water).abs();
         self.ln_water += step * (to_water - self.ln_water);
         for (k, t) in terms.iter_mut().enumerate() {
-            let slots = &self.term_slots[k];
-            let mut next = [0.0; MAX_STEPS + 1];
-            for j in 0..=t.n {
-                if slots[j] != NO_SLOT {
-                    next[j] = self.ln_gamma[slots[j] as usize];
-                }
-            }
-            let mut ln_neutral = 0.0;
-            if let Some(nf) = self.neutrals[k] {
-                if let Some(h_gas) = nf.h_gas {
-                    ln_neutral += weight * std::f64::consts::LN_10 * (sum_hc + h_gas * sum_c);
-                }
-                if let Some(lambda) = nf.lambda {
-                    ln_neutral += 2.0 * lambda * neutral_molality[k];
-                }
-                next[nf.species] = ln_neutral;
-            }
-            for (to, from) in next.iter_mut().zip(&t.ln_gamma).take(t.n + 1) {
-                change = change.max((*to - from).abs());
-                *to = from + step * (*to - from);
-            }
-            t.ln_gamma = next;
-            let ln_neutral = self.neutrals[k].map_or(0.0, |nf| next[nf.species]);
-            t.beta[0] = 1.0;
-            for j in 0..t.n {
-                let ln_ratio = next[j] - next[j + 1] + t.water_taken[j] * self.ln_water;
-                t.beta[j + 1] = t.beta[j] * t.ka[j] * ln_ratio.exp();
-            }
-            if self.neutrals[k].is_some() {
-                t.henry = self.molal_scale * ln_neutral.exp();
-                t.gas_factor = t.base_gas_factor * t.henry;
-            }
+            let neutral = self.neutrals[k].map(|nf| {
+                (
+                    nf.species,
+                    self.neutral_ln_gamma(nf, weight, salting, neutral_molality[k]),
+                )
+            });
+            change = self.update_term(t, &self.term_slots[k], neutral, step, change);
         }
         for l in links.iter_mut() {
             let ln_first = terms[l.first.0].ln_gamma[l.first.1];
@@ -321,9 +211,121 @@ impl<'c> Concentrated<'c> {
         Coefficients {
             inv_gamma_h: (-self.ln_gamma[self.h_slot]).exp() * to_molar,
             inv_gamma_oh: (-self.ln_gamma[self.oh_slot]).exp() * to_molar,
-            water_activity: summary.water_activity,
+            water_activity: self.summary.water_activity,
             change,
         }
+    }
+
+    /// Sets the molalities the coefficients are read at: beyond the highest ionic strength
+    /// any parameters were fitted to, the coefficients are held at their value there (every
+    /// molality scaled down alike).
+    fn hold_molalities(&mut self) {
+        let i: f64 = 0.5
+            * self
+                .molalities
+                .iter()
+                .enumerate()
+                .map(|(k, m)| m * self.charge_squared(k))
+                .sum::<f64>();
+        let scale = if i > self.hold { self.hold / i } else { 1.0 };
+        for (h, m) in self.held.iter_mut().zip(&self.molalities) {
+            *h = m * scale;
+        }
+    }
+
+    /// Sets every ion's ln γ and the summary (water's activity with them) at the held
+    /// molalities; returns the model's share in them.
+    fn set_ion_coefficients(&mut self) -> f64 {
+        let mut ln_gamma = std::mem::take(&mut self.ln_gamma);
+        // Water's activity is held with the rest: followed past the fitted range it would
+        // fall towards zero in a wet salt, and Kw with it.
+        let mut summary = self.interactions.evaluate(&self.held, &mut ln_gamma);
+        // Between the dilute range and twice it, the coefficients pass over from Davies'
+        // to the model's by the share `weight`, so that a pour crossing the range sees no
+        // step in them.
+        let weight = self.weight(summary.ionic_strength);
+        if weight < 1.0 {
+            let i_molar = summary.ionic_strength / self.molal;
+            let sqrt_i = i_molar.sqrt();
+            let davies_unit = -std::f64::consts::LN_10
+                * self.davies_a
+                * (sqrt_i / (1.0 + sqrt_i) - self.davies_b * i_molar);
+            for (k, g) in ln_gamma.iter_mut().enumerate() {
+                let z2 = self.charge_squared(k);
+                *g = weight * *g + (1.0 - weight) * z2 * davies_unit;
+            }
+            summary.water_activity = summary.water_activity.powf(weight);
+        }
+        self.ln_gamma = ln_gamma;
+        self.summary = summary;
+        weight
+    }
+
+    /// Salting-out's Σ hᵢ cᵢ and Σ cᵢ over the ions, in mol/L (held like the rest).
+    fn salting_sums(&self) -> (f64, f64) {
+        let (mut sum_hc, mut sum_c) = (0.0, 0.0);
+        for (h, m) in self.salting_h.iter().zip(&self.held) {
+            let c = m / self.molal;
+            sum_hc += h * c;
+            sum_c += c;
+        }
+        (sum_hc, sum_c)
+    }
+
+    /// ln γ of a followed neutral form: its salting-out (weighted like the ions' model) and
+    /// its self-interaction at `molality`.
+    fn neutral_ln_gamma(
+        &self,
+        nf: NeutralForm,
+        weight: f64,
+        (sum_hc, sum_c): (f64, f64),
+        molality: f64,
+    ) -> f64 {
+        let mut ln_neutral = 0.0;
+        if let Some(h_gas) = nf.h_gas {
+            ln_neutral += weight * std::f64::consts::LN_10 * (sum_hc + h_gas * sum_c);
+        }
+        if let Some(lambda) = nf.lambda {
+            ln_neutral += 2.0 * lambda * molality;
+        }
+        ln_neutral
+    }
+
+    /// Moves a term's ln γ a share `step` of the way to the ions' (and its neutral form's,
+    /// given as (species, ln γ)), and sets its constants and gas factor from them; returns
+    /// `change` raised to the largest change of any of them the whole way would make.
+    fn update_term(
+        &self,
+        t: &mut Term,
+        slots: &[u16; MAX_STEPS + 1],
+        neutral: Option<(usize, f64)>,
+        step: f64,
+        mut change: f64,
+    ) -> f64 {
+        let mut next = [0.0; MAX_STEPS + 1];
+        for j in 0..=t.n {
+            if slots[j] != NO_SLOT {
+                next[j] = self.ln_gamma[slots[j] as usize];
+            }
+        }
+        if let Some((species, ln_neutral)) = neutral {
+            next[species] = ln_neutral;
+        }
+        for (to, from) in next.iter_mut().zip(&t.ln_gamma).take(t.n + 1) {
+            change = change.max((*to - from).abs());
+            *to = from + step * (*to - from);
+        }
+        t.ln_gamma = next;
+        t.beta[0] = 1.0;
+        for j in 0..t.n {
+            let ln_ratio = next[j] - next[j + 1] + t.water_taken[j] * self.ln_water;
+            t.beta[j + 1] = t.beta[j] * t.ka[j] * ln_ratio.exp();
+        }
+        if let Some((species, _)) = neutral {
+            t.henry = self.molal_scale * next[species].exp();
+            t.gas_factor = t.base_gas_factor * t.henry;
+        }
+        change
     }
 
     /// Sets the complexes' molalities (from mol/L) and takes what they hold of each strong-ion
@@ -546,6 +548,85 @@ impl<'c> Concentrated<'c> {
     #[allow(dead_code)]
     pub(super) fn treatment(&self, k: usize) -> IonTreatment {
         self.interactions.treatment(k)
+    }
+}
+
+/// The ions of a mixture as the model numbers them, built up slot by slot: the strong ions,
+/// H+ and OH-, the families' charged species, then the charged complexes.
+#[derive(Default)]
+struct Slots<'c> {
+    formulas: SmallVec<[&'c str; INLINE_SLOTS]>,
+    /// Each ion's id among the pair parameters, and its charge.
+    ids: SmallVec<[(Option<u16>, i32); INLINE_SLOTS]>,
+    salting_h: SmallVec<[f64; INLINE_SLOTS]>,
+    molalities: SmallVec<[f64; INLINE_SLOTS]>,
+}
+
+impl<'c> Slots<'c> {
+    fn push(&mut self, formula: &'c str, id: (Option<u16>, i32), salting_h: f64, molality: f64) {
+        self.formulas.push(formula);
+        self.ids.push(id);
+        self.salting_h.push(salting_h);
+        self.molalities.push(molality);
+    }
+
+    /// An ion whose parameters are looked up by its formula.
+    fn push_named(&mut self, cat: &Catalog, formula: &'c str, charge: i32, molality: f64) {
+        let id = (cat.pitzer.ion_id(formula), charge);
+        let salting_h = cat.salting.ion_h(formula).unwrap_or(0.0);
+        self.push(formula, id, salting_h, molality);
+    }
+
+    /// A slot for each charged species of each term, and each term's neutral form whose
+    /// coefficient is followed.
+    #[allow(clippy::type_complexity)]
+    fn push_terms(
+        &mut self,
+        cat: &'c Catalog,
+        terms: &[Term],
+        t_k: f64,
+    ) -> (
+        SmallVec<[[u16; MAX_STEPS + 1]; INLINE_TERMS]>,
+        SmallVec<[Option<NeutralForm>; INLINE_TERMS]>,
+    ) {
+        let t_ref = cat.physical.t_ref;
+        let mut term_slots = SmallVec::new();
+        let mut neutrals = SmallVec::new();
+        for t in terms {
+            let fam = cat.family(t.family);
+            let data = &t.activity_data;
+            let mut slots = [NO_SLOT; MAX_STEPS + 1];
+            for (j, sp) in fam.species.iter().enumerate().take(t.n + 1) {
+                if sp.charge != 0 {
+                    slots[j] = self.formulas.len() as u16;
+                    let id = (data.pitzer_id[j], sp.charge);
+                    self.push(sp.formula.as_str(), id, data.salting_h[j], 0.0);
+                }
+            }
+            term_slots.push(slots);
+            neutrals.push(data.neutral.map(|(species, own_salting, gas)| NeutralForm {
+                species,
+                own_salting,
+                h_gas: Some(gas.h_g(t_k, t_ref)),
+                lambda: t.lambda,
+            }));
+        }
+        (term_slots, neutrals)
+    }
+
+    /// A slot for each charged complex (NO_SLOT for a neutral one); no pair parameters name
+    /// them.
+    fn push_complexes(&mut self, complex_charges: &[i32]) -> SmallVec<[u16; 24]> {
+        let mut complex_slots = SmallVec::new();
+        for &z in complex_charges {
+            if z == 0 {
+                complex_slots.push(NO_SLOT);
+            } else {
+                complex_slots.push(self.formulas.len() as u16);
+                self.push("", (None, z), 0.0, 0.0);
+            }
+        }
+        complex_slots
     }
 }
 
