@@ -299,86 +299,111 @@ impl Engine<'_> {
         let mut vessel = p.vessel.clone();
         let mut steps = Vec::new();
         for step in &p.steps {
-            match &step.kind {
-                StepKind::Add(stream) => {
-                    let (report, after) = self.add_step(p, step, &vessel, stream, Action::Pour)?;
-                    steps.push(report);
-                    vessel = after;
-                }
-                StepKind::Drain(leave) => {
-                    let l = leave_litres(&vessel, *leave).map_err(|m| {
-                        step_error(
-                            p,
-                            step,
-                            m,
-                            Some(
-                                "drain no more than the vessel holds, and leave a hold-up volume"
-                                    .into(),
-                            ),
-                        )
-                    })?;
-                    let before = vessel.volume_l;
-                    vessel = drained(&vessel, l);
-                    steps.push(StepReport {
-                        number: step.number,
-                        description: step.description.clone(),
-                        kind: "drain",
-                        action: format!(
-                            "drain {}, leaving {}",
-                            crate::basics::text::litres(before - l),
-                            crate::basics::text::litres(l)
-                        ),
-                        severity: Severity::Clear,
-                        end_state: None,
-                        worst_state: None,
-                        volume_after_l: vessel.volume_l,
-                        temperature_after_c: vessel.temperature_k - self.cat.physical.kelvin_offset,
-                        contents_after: contents(self.cat, &vessel),
-                        findings: Vec::new(),
-                    });
-                }
-                StepKind::Rinse { with, times, leave } => {
-                    let mut worst: Option<StepReport> = None;
-                    let mut last_end = None;
-                    for _ in 0..*times {
-                        let (report, after) =
-                            self.add_step(p, step, &vessel, with, Action::Rinse)?;
-                        let l = leave_litres(&after, *leave)
-                            .map_err(|m| step_error(p, step, m, None))?;
-                        vessel = drained(&after, l.min(after.volume_l));
-                        last_end = report.end_state.clone();
-                        if worst.as_ref().is_none_or(|w| report.severity > w.severity) {
-                            worst = Some(report);
-                        }
-                    }
-                    let mut report = worst.expect("at least one rinse");
-                    // The worst rinse decides the verdict; the vessel ends as the last one
-                    // leaves it.
-                    report.end_state = last_end;
-                    report.kind = "rinse";
-                    report.action = format!(
-                        "rinse {} × with {}, draining to {} each time",
-                        times,
-                        describe_batch(self.cat, with),
-                        crate::basics::text::litres(vessel.volume_l)
-                    );
-                    report.volume_after_l = vessel.volume_l;
-                    report.contents_after = contents(self.cat, &vessel);
-                    report.temperature_after_c =
-                        vessel.temperature_k - self.cat.physical.kelvin_offset;
-                    steps.push(report);
-                }
-                StepKind::Hold {
-                    minutes,
-                    temperature_k,
-                } => {
-                    let (report, after) =
-                        self.hold_step(p, step, &vessel, *minutes, *temperature_k)?;
-                    steps.push(report);
-                    vessel = after;
-                }
+            let (report, after) = self.step(p, step, &vessel)?;
+            steps.push(report);
+            vessel = after;
+        }
+        Ok(self.procedure_report(p, steps))
+    }
+
+    /// One step's report, and the vessel as the step leaves it.
+    fn step(
+        &self,
+        p: &Procedure,
+        step: &Step,
+        vessel: &Batch,
+    ) -> Result<(StepReport, Batch), ProcedureError> {
+        match &step.kind {
+            StepKind::Add(stream) => self.add_step(p, step, vessel, stream, Action::Pour),
+            StepKind::Drain(leave) => self.drain_step(p, step, vessel, *leave),
+            StepKind::Rinse { with, times, leave } => {
+                self.rinse_step(p, step, vessel, with, *times, *leave)
+            }
+            StepKind::Hold {
+                minutes,
+                temperature_k,
+            } => self.hold_step(p, step, vessel, *minutes, *temperature_k),
+        }
+    }
+
+    fn drain_step(
+        &self,
+        p: &Procedure,
+        step: &Step,
+        vessel: &Batch,
+        leave: Leave,
+    ) -> Result<(StepReport, Batch), ProcedureError> {
+        let l = leave_litres(vessel, leave).map_err(|m| {
+            step_error(
+                p,
+                step,
+                m,
+                Some("drain no more than the vessel holds, and leave a hold-up volume".into()),
+            )
+        })?;
+        let before = vessel.volume_l;
+        let after = drained(vessel, l);
+        let report = StepReport {
+            number: step.number,
+            description: step.description.clone(),
+            kind: "drain",
+            action: format!(
+                "drain {}, leaving {}",
+                crate::basics::text::litres(before - l),
+                crate::basics::text::litres(l)
+            ),
+            severity: Severity::Clear,
+            end_state: None,
+            worst_state: None,
+            volume_after_l: after.volume_l,
+            temperature_after_c: after.temperature_k - self.cat.physical.kelvin_offset,
+            contents_after: contents(self.cat, &after),
+            findings: Vec::new(),
+        };
+        Ok((report, after))
+    }
+
+    /// Each rinse is an addition checked like any other, then a drain to the hold-up.
+    fn rinse_step(
+        &self,
+        p: &Procedure,
+        step: &Step,
+        vessel: &Batch,
+        with: &Batch,
+        times: u32,
+        leave: Leave,
+    ) -> Result<(StepReport, Batch), ProcedureError> {
+        let mut vessel = vessel.clone();
+        let mut worst: Option<StepReport> = None;
+        let mut last_end = None;
+        for _ in 0..times {
+            let (report, after) = self.add_step(p, step, &vessel, with, Action::Rinse)?;
+            let l = leave_litres(&after, leave).map_err(|m| step_error(p, step, m, None))?;
+            vessel = drained(&after, l.min(after.volume_l));
+            last_end = report.end_state.clone();
+            if worst.as_ref().is_none_or(|w| report.severity > w.severity) {
+                worst = Some(report);
             }
         }
+        let mut report = worst.expect("at least one rinse");
+        // The worst rinse decides the verdict; the vessel ends as the last one leaves it.
+        report.end_state = last_end;
+        report.kind = "rinse";
+        report.action = format!(
+            "rinse {} × with {}, draining to {} each time",
+            times,
+            describe_batch(self.cat, with),
+            crate::basics::text::litres(vessel.volume_l)
+        );
+        report.volume_after_l = vessel.volume_l;
+        report.contents_after = contents(self.cat, &vessel);
+        report.temperature_after_c = vessel.temperature_k - self.cat.physical.kelvin_offset;
+        Ok((report, vessel))
+    }
+
+    /// The sheet: the steps, the worst verdict, the first step that is not clear, and the
+    /// lines to sign. Fixes are found afterwards, by re-running.
+    fn procedure_report(&self, p: &Procedure, steps: Vec<StepReport>) -> ProcedureReport {
         let severity = steps
             .iter()
             .map(|s| s.severity)
@@ -392,7 +417,7 @@ impl Engine<'_> {
                 severity: s.severity,
                 reasons: reasons(&s.findings),
             });
-        Ok(ProcedureReport {
+        ProcedureReport {
             tool: "offgas",
             version: env!("CARGO_PKG_VERSION"),
             name: p.name.clone(),
@@ -411,7 +436,7 @@ impl Engine<'_> {
                 "Approved by".into(),
                 "Date".into(),
             ],
-        })
+        }
     }
 }
 

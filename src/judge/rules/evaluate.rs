@@ -1,6 +1,6 @@
 //! Which rules a mixture meets.
 
-use super::{class_mask, LoadedRule, Meeting, RuleSet};
+use super::{class_mask, Conditions, LoadedRule, Meeting, RuleSet};
 use crate::catalog::{Catalog, SubstanceId};
 use crate::pour::pairs::Side;
 
@@ -116,112 +116,135 @@ fn assign(
     false
 }
 
+/// Each component's hazard classes as a mask, to pass over rules none of them can meet.
+fn present_masks(cat: &Catalog, ctx: &RuleContext) -> smallvec::SmallVec<[u128; 8]> {
+    ctx.present
+        .iter()
+        .map(|p| {
+            class_mask(
+                cat,
+                cat.substance(p.substance)
+                    .classes
+                    .iter()
+                    .map(String::as_str),
+            )
+        })
+        .collect()
+}
+
+/// For each group of the rule, the components (indices into `present`) that carry it.
+fn candidates(cat: &Catalog, ctx: &RuleContext, meet: &[Vec<String>]) -> Vec<Vec<usize>> {
+    meet.iter()
+        .map(|group| {
+            ctx.present
+                .iter()
+                .enumerate()
+                .filter(|(_, p)| carries(cat, p.substance, group))
+                .map(|(i, _)| i)
+                .collect()
+        })
+        .collect()
+}
+
+/// Whether the pH and temperature reached along the pour meet the rule's conditions.
+fn state_meets(ctx: &RuleContext, w: &Conditions) -> bool {
+    let ph_ok = match (w.ph_above, w.ph_below) {
+        (Some(lo), Some(hi)) => ctx.ph_max > lo && ctx.ph_min < hi,
+        (Some(lo), None) => ctx.ph_max > lo,
+        (None, Some(hi)) => ctx.ph_min < hi,
+        (None, None) => true,
+    };
+    let t_ok = w
+        .temperature_above_c
+        .is_none_or(|t| ctx.temperature_max_c > t);
+    ph_ok && t_ok
+}
+
+/// The rule's hit when the mixture meets it: the classes are there (each group from its own
+/// component, from both sides when it says `across`), concentrated enough, and the state
+/// along the pour meets its conditions.
+fn hit<'r>(
+    cat: &Catalog,
+    ctx: &RuleContext,
+    lr: &'r LoadedRule,
+    present_masks: &[u128],
+) -> Option<RuleHit<'r>> {
+    let someone_carries = |group: u128| present_masks.iter().any(|m| m & group != 0);
+    if !lr.meet_masks.iter().all(|&g| someone_carries(g)) {
+        return None;
+    }
+    let r = &lr.rule;
+    let candidates = candidates(cat, ctx, &r.meet);
+    if candidates.iter().any(|c| c.is_empty()) {
+        return None;
+    }
+    if let Some(min) = r.when.min_mol_per_l {
+        if !ctx.meets_concentrations(&candidates, min) {
+            return None;
+        }
+    }
+    let across = r.meeting == Meeting::Across;
+    if !assign(&candidates, &ctx.present, 0, &mut Vec::new(), across) {
+        return None;
+    }
+    if !state_meets(ctx, &r.when) {
+        return None;
+    }
+    let groups = candidates
+        .iter()
+        .map(|c| {
+            let mut names: Vec<String> = c
+                .iter()
+                .map(|&i| cat.substance(ctx.present[i].substance).name.clone())
+                .collect();
+            names.dedup();
+            names
+        })
+        .collect();
+    let substances = candidates
+        .iter()
+        .flatten()
+        .map(|&i| ctx.present[i].substance)
+        .collect();
+    Some(RuleHit {
+        rule: lr,
+        groups,
+        substances,
+    })
+}
+
+/// A component's own hazard is not repeated where a rule about its meeting names it, nor
+/// where an earlier presence rule already named every component it would.
+fn drop_repeated_presence(hits: &mut Vec<RuleHit<'_>>) {
+    let named_by_meeting: Vec<SubstanceId> = hits
+        .iter()
+        .filter(|h| !h.rule.rule.presence)
+        .flat_map(|h| h.substances.iter().copied())
+        .collect();
+    let mut named_by_presence: Vec<SubstanceId> = Vec::new();
+    hits.retain(|h| {
+        if !h.rule.rule.presence {
+            return true;
+        }
+        let fresh = h
+            .substances
+            .iter()
+            .any(|s| !named_by_meeting.contains(s) && !named_by_presence.contains(s));
+        named_by_presence.extend(h.substances.iter().copied());
+        fresh
+    });
+}
+
 impl RuleSet {
     /// Every rule the mixture meets, in the order the rules are listed.
     pub fn evaluate<'r>(&'r self, cat: &Catalog, ctx: &RuleContext) -> Vec<RuleHit<'r>> {
-        let mut hits = Vec::new();
-        let present_masks: smallvec::SmallVec<[u128; 8]> = ctx
-            .present
+        let masks = present_masks(cat, ctx);
+        let mut hits: Vec<RuleHit<'r>> = self
+            .rules
             .iter()
-            .map(|p| {
-                class_mask(
-                    cat,
-                    cat.substance(p.substance)
-                        .classes
-                        .iter()
-                        .map(String::as_str),
-                )
-            })
+            .filter_map(|lr| hit(cat, ctx, lr, &masks))
             .collect();
-        let someone_carries = |group: u128| present_masks.iter().any(|m| m & group != 0);
-        for lr in &self.rules {
-            if !lr.meet_masks.iter().all(|&g| someone_carries(g)) {
-                continue;
-            }
-            let r = &lr.rule;
-            let w = &r.when;
-            let candidates: Vec<Vec<usize>> = r
-                .meet
-                .iter()
-                .map(|group| {
-                    ctx.present
-                        .iter()
-                        .enumerate()
-                        .filter(|(_, p)| carries(cat, p.substance, group))
-                        .map(|(i, _)| i)
-                        .collect()
-                })
-                .collect();
-            if candidates.iter().any(|c| c.is_empty()) {
-                continue;
-            }
-            if let Some(min) = w.min_mol_per_l {
-                if !ctx.meets_concentrations(&candidates, min) {
-                    continue;
-                }
-            }
-            let mut used = Vec::new();
-            if !assign(
-                &candidates,
-                &ctx.present,
-                0,
-                &mut used,
-                r.meeting == Meeting::Across,
-            ) {
-                continue;
-            }
-            let ph_ok = match (w.ph_above, w.ph_below) {
-                (Some(lo), Some(hi)) => ctx.ph_max > lo && ctx.ph_min < hi,
-                (Some(lo), None) => ctx.ph_max > lo,
-                (None, Some(hi)) => ctx.ph_min < hi,
-                (None, None) => true,
-            };
-            let t_ok = w
-                .temperature_above_c
-                .is_none_or(|t| ctx.temperature_max_c > t);
-            if !(ph_ok && t_ok) {
-                continue;
-            }
-            let groups = candidates
-                .iter()
-                .map(|c| {
-                    let mut names: Vec<String> = c
-                        .iter()
-                        .map(|&i| cat.substance(ctx.present[i].substance).name.clone())
-                        .collect();
-                    names.dedup();
-                    names
-                })
-                .collect();
-            let substances = candidates
-                .iter()
-                .flatten()
-                .map(|&i| ctx.present[i].substance)
-                .collect();
-            hits.push(RuleHit {
-                rule: lr,
-                groups,
-                substances,
-            });
-        }
-        // A component's own hazard is not repeated where a rule about its meeting names it.
-        let named_by_meeting: Vec<SubstanceId> = hits
-            .iter()
-            .filter(|h| !h.rule.rule.presence)
-            .flat_map(|h| h.substances.iter().copied())
-            .collect();
-        let mut named_by_presence: Vec<SubstanceId> = Vec::new();
-        hits.retain(|h| {
-            if !h.rule.rule.presence {
-                return true;
-            }
-            let fresh = h
-                .substances
-                .iter()
-                .any(|s| !named_by_meeting.contains(s) && !named_by_presence.contains(s));
-            named_by_presence.extend(h.substances.iter().copied());
-            fresh
-        });
+        drop_repeated_presence(&mut hits);
         hits
     }
 }
