@@ -405,103 +405,13 @@ impl RuleSet {
         text: &str,
         origin: Origin,
     ) -> (Vec<LoadedRule>, Vec<RuleError>) {
-        use serde_yaml::Value;
-        let error = |line: Option<usize>, message: String| RuleError {
-            file: file.to_string(),
-            line,
-            message,
+        let top = match rule_document(file, text) {
+            Ok(top) => top,
+            Err(e) => return (Vec::new(), vec![e]),
         };
-        if let Err(e) = crate::basics::input_shape::check_yaml_shape(
-            file,
-            text,
-            crate::basics::input_shape::MAX_FILE_BYTES,
-        ) {
-            return (Vec::new(), vec![error(e.line, e.message)]);
-        }
-        let doc: Value = match serde_yaml::from_str(text) {
-            Ok(v) => v,
-            Err(e) => {
-                return (
-                    Vec::new(),
-                    vec![error(
-                        e.location().map(|l| l.line()),
-                        format!("not a readable rule file: {e}"),
-                    )],
-                )
-            }
-        };
-        let top_line = |key: &str| {
-            text.lines()
-                .position(|l| l.starts_with(&format!("{key}:")))
-                .map(|i| i + 1)
-        };
-        let Value::Mapping(top) = &doc else {
-            return (
-                Vec::new(),
-                vec![error(
-                    Some(1),
-                    "not a readable rule file: it must hold `description:` and `rules:`".into(),
-                )],
-            );
-        };
-        let mut errors = Vec::new();
-        for k in top.keys() {
-            let key = k.as_str().unwrap_or("?");
-            if key != "description" && key != "rules" {
-                errors.push(error(
-                    top_line(key),
-                    unknown_key(key, &["description", "rules"]),
-                ));
-            }
-        }
-        match top.get("description") {
-            Some(Value::String(_)) => {}
-            Some(_) => errors.push(error(
-                top_line("description"),
-                "`description` must be text saying what these rules are about".into(),
-            )),
-            None => errors.push(error(
-                Some(1),
-                "missing field `description`: say what these rules are about".into(),
-            )),
-        }
-        let items: &[Value] = match top.get("rules") {
-            Some(Value::Sequence(items)) => items,
-            Some(_) => {
-                errors.push(error(
-                    top_line("rules"),
-                    "`rules` must be a list of rules (`- id: ...`)".into(),
-                ));
-                &[]
-            }
-            None => {
-                errors.push(error(Some(1), "missing field `rules`".into()));
-                &[]
-            }
-        };
-        let spans = rule_spans(text).filter(|s| s.len() == items.len());
-        let mut rules = Vec::new();
-        for (i, item) in items.iter().enumerate() {
-            let span = spans.as_ref().map(|s| s[i]);
-            match read_rule(text, item, i + 1, span) {
-                Err(problems) => {
-                    errors.extend(problems.into_iter().map(|(line, m)| error(line, m)));
-                }
-                Ok(rule) => {
-                    let line = key_line(text, span, "id").or_else(|| line_of_id(text, &rule.id));
-                    let problems = validate(cat, &rule);
-                    if problems.is_empty() {
-                        rules.push(LoadedRule::new(cat, rule, origin.clone(), line));
-                    } else {
-                        errors.extend(
-                            problems
-                                .into_iter()
-                                .map(|p| error(line, format!("rule `{}`: {p}", rule.id))),
-                        );
-                    }
-                }
-            }
-        }
+        let (items, mut errors) = top_level(file, text, &top);
+        let (rules, rule_errors) = read_rules(cat, file, text, items, &origin);
+        errors.extend(rule_errors);
         (rules, errors)
     }
 
@@ -609,4 +519,127 @@ fn validate(cat: &Catalog, r: &Rule) -> Vec<String> {
         out.push("message, caution and basis must all be written".into());
     }
     out
+}
+
+fn rule_error(file: &str, line: Option<usize>, message: String) -> RuleError {
+    RuleError {
+        file: file.to_string(),
+        line,
+        message,
+    }
+}
+
+/// The top-level mapping of a rule file, or the one problem that keeps it from being read.
+fn rule_document(file: &str, text: &str) -> Result<serde_yaml::Mapping, RuleError> {
+    use serde_yaml::Value;
+    if let Err(e) = crate::basics::input_shape::check_yaml_shape(
+        file,
+        text,
+        crate::basics::input_shape::MAX_FILE_BYTES,
+    ) {
+        return Err(rule_error(file, e.line, e.message));
+    }
+    let doc: Value = serde_yaml::from_str(text).map_err(|e| {
+        rule_error(
+            file,
+            e.location().map(|l| l.line()),
+            format!("not a readable rule file: {e}"),
+        )
+    })?;
+    match doc {
+        Value::Mapping(top) => Ok(top),
+        _ => Err(rule_error(
+            file,
+            Some(1),
+            "not a readable rule file: it must hold `description:` and `rules:`".into(),
+        )),
+    }
+}
+
+/// The file's rule entries, and the problems of its top-level keys (unknown keys, a missing
+/// or malformed `description` or `rules`).
+fn top_level<'a>(
+    file: &str,
+    text: &str,
+    top: &'a serde_yaml::Mapping,
+) -> (&'a [serde_yaml::Value], Vec<RuleError>) {
+    use serde_yaml::Value;
+    let error = |line: Option<usize>, message: String| rule_error(file, line, message);
+    let top_line = |key: &str| {
+        text.lines()
+            .position(|l| l.starts_with(&format!("{key}:")))
+            .map(|i| i + 1)
+    };
+    let mut errors = Vec::new();
+    for k in top.keys() {
+        let key = k.as_str().unwrap_or("?");
+        if key != "description" && key != "rules" {
+            errors.push(error(
+                top_line(key),
+                unknown_key(key, &["description", "rules"]),
+            ));
+        }
+    }
+    match top.get("description") {
+        Some(Value::String(_)) => {}
+        Some(_) => errors.push(error(
+            top_line("description"),
+            "`description` must be text saying what these rules are about".into(),
+        )),
+        None => errors.push(error(
+            Some(1),
+            "missing field `description`: say what these rules are about".into(),
+        )),
+    }
+    let items: &[Value] = match top.get("rules") {
+        Some(Value::Sequence(items)) => items,
+        Some(_) => {
+            errors.push(error(
+                top_line("rules"),
+                "`rules` must be a list of rules (`- id: ...`)".into(),
+            ));
+            &[]
+        }
+        None => {
+            errors.push(error(Some(1), "missing field `rules`".into()));
+            &[]
+        }
+    };
+    (items, errors)
+}
+
+/// Each rule entry read and validated: the sound rules, and every problem with its line.
+fn read_rules(
+    cat: &Catalog,
+    file: &str,
+    text: &str,
+    items: &[serde_yaml::Value],
+    origin: &Origin,
+) -> (Vec<LoadedRule>, Vec<RuleError>) {
+    let error = |line: Option<usize>, message: String| rule_error(file, line, message);
+    let spans = rule_spans(text).filter(|s| s.len() == items.len());
+    let mut rules = Vec::new();
+    let mut errors = Vec::new();
+    for (i, item) in items.iter().enumerate() {
+        let span = spans.as_ref().map(|s| s[i]);
+        match read_rule(text, item, i + 1, span) {
+            Err(problems) => {
+                errors.extend(problems.into_iter().map(|(line, m)| error(line, m)));
+            }
+            Ok(rule) => {
+                let line = key_line(text, span, "id").or_else(|| line_of_id(text, &rule.id));
+                let problems = validate(cat, &rule);
+                if problems.is_empty() {
+                    rules.push(LoadedRule::new(cat, rule, origin.clone(), line));
+                } else {
+                    errors.extend(
+                        problems
+                            .into_iter()
+                            .map(|p| error(line, format!("rule `{}`: {p}", rule.id))),
+                    );
+                }
+            }
+        }
+    }
+    (rules, errors)
 }
