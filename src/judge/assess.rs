@@ -141,12 +141,50 @@ pub fn headspace_pressure(
     }
 }
 
+/// A solved state as the report gives it: pH, temperature, pressure, activity, the ligands
+/// complexes hold, the solids that left the liquid, and the gases against their levels.
 pub fn state_report(
     cat: &Catalog,
     th: &Thresholds,
     eq: &Equilibrium,
     heat: &crate::pour::HeatReport,
 ) -> StateReport {
+    let gases = gas_reports(cat, th, eq);
+    let pressure = headspace_pressure(
+        cat,
+        eq,
+        heat.start_temperature_c + cat.physical.kelvin_offset,
+    );
+    let atm = cat.physical.p_std / 1e3;
+    StateReport {
+        ph: eq.ph,
+        temperature_c: eq.temperature_k - cat.physical.kelvin_offset,
+        ionic_strength: eq.ionic_strength,
+        volume_l: eq.liquid_l,
+        headspace_l: eq.headspace_l,
+        total_pressure_kpa: atm + pressure.overpressure_kpa,
+        overpressure_kpa: pressure.overpressure_kpa,
+        gas_pressure_kpa: eq.total_gas_pressure_pa() / 1e3,
+        vented_gas_l: pressure.vented_l,
+        vented_toxic_percent: pressure.vented_toxic_percent,
+        heat: *heat,
+        activity_model_exceeded: eq.activity_limited,
+        activity: crate::report::ActivityReport {
+            model: eq.activity_model,
+            ionic_strength_mol_kg: eq.molal_ionic_strength,
+            water_activity: eq.water_activity,
+            holds_to_mol_kg: eq.activity_range,
+            detail: eq.activity_detail.as_deref().cloned(),
+        },
+        bound_ligands: bound_ligands(cat, eq),
+        precipitated: precipitated(cat, eq),
+        gases,
+    }
+}
+
+/// Each gas in the headspace above the reporting floor, with its levels and ratios, the
+/// furthest past its review level first.
+fn gas_reports(cat: &Catalog, th: &Thresholds, eq: &Equilibrium) -> Vec<GasReport> {
     let mut gases: Vec<GasReport> = eq
         .gases
         .iter()
@@ -186,46 +224,21 @@ pub fn state_report(
         rb.total_cmp(&ra)
             .then(b.headspace_ppm.total_cmp(&a.headspace_ppm))
     });
-    let pressure = headspace_pressure(
-        cat,
-        eq,
-        heat.start_temperature_c + cat.physical.kelvin_offset,
-    );
-    let atm = cat.physical.p_std / 1e3;
-    StateReport {
-        ph: eq.ph,
-        temperature_c: eq.temperature_k - cat.physical.kelvin_offset,
-        ionic_strength: eq.ionic_strength,
-        volume_l: eq.liquid_l,
-        headspace_l: eq.headspace_l,
-        total_pressure_kpa: atm + pressure.overpressure_kpa,
-        overpressure_kpa: pressure.overpressure_kpa,
-        gas_pressure_kpa: eq.total_gas_pressure_pa() / 1e3,
-        vented_gas_l: pressure.vented_l,
-        vented_toxic_percent: pressure.vented_toxic_percent,
-        heat: *heat,
-        activity_model_exceeded: eq.activity_limited,
-        activity: crate::report::ActivityReport {
-            model: eq.activity_model,
-            ionic_strength_mol_kg: eq.molal_ionic_strength,
-            water_activity: eq.water_activity,
-            holds_to_mol_kg: eq.activity_range,
-            detail: eq.activity_detail.as_deref().cloned(),
-        },
-        bound_ligands: bound_ligands(cat, eq),
-        precipitated: eq
-            .solids
-            .iter()
-            .map(|sd| crate::report::Precipitated {
-                solid: sd.formula.clone(),
-                metal: cat
-                    .part_formula(cat.solids[sd.catalog_index].metal)
-                    .to_string(),
-                mol_per_l: sd.mol_per_l,
-            })
-            .collect(),
-        gases,
-    }
+    gases
+}
+
+/// The solids that left the liquid, as the report names them.
+fn precipitated(cat: &Catalog, eq: &Equilibrium) -> Vec<crate::report::Precipitated> {
+    eq.solids
+        .iter()
+        .map(|sd| crate::report::Precipitated {
+            solid: sd.formula.clone(),
+            metal: cat
+                .part_formula(cat.solids[sd.catalog_index].metal)
+                .to_string(),
+            mol_per_l: sd.mol_per_l,
+        })
+        .collect()
 }
 
 /// Least share of a ligand a complex must hold to be named.
