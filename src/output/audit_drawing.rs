@@ -8,17 +8,17 @@
 //! check the picture against the report.
 
 use crate::output::plot::bars::{hatch_lines, BarClass, BarRow, Bars, Fill};
+use crate::output::plot::shapes::{line, round, text, INK};
 use crate::report::Severity;
 use crate::store::report::{AuditReport, CabinetMatrix, Level, MatrixCell};
 use crate::store::report::{CabinetChange, Move, ZoneContents};
-use svg::node::element::{Element, Group, Line, Polygon, Rectangle, Text, Title};
+use svg::node::element::{Element, Group, Line, Polygon, Rectangle, Title};
 use svg::node::Node;
 
 /// Width of the key and the bar chart, px: within the page's text column.
 const WIDTH: f64 = 660.0;
 /// Side of a matrix cell, px.
 pub const CELL: f64 = 28.0;
-const INK: &str = "#222";
 const FONT: f64 = 12.0;
 /// Width of a character of the 12 px sans-serif labels, generously.
 const CHAR: f64 = 7.2;
@@ -899,28 +899,6 @@ fn root(width: f64, height: f64, class: &str) -> Element {
         doc.assign(k, v);
     }
     doc
-}
-
-fn line(x1: f64, y1: f64, x2: f64, y2: f64, stroke: &str, width: f64) -> Line {
-    Line::new()
-        .set("x1", round(x1))
-        .set("y1", round(y1))
-        .set("x2", round(x2))
-        .set("y2", round(y2))
-        .set("stroke", stroke)
-        .set("stroke-width", width)
-}
-
-fn text(x: f64, y: f64, s: &str, anchor: &str) -> Text {
-    Text::new(s)
-        .set("x", round(x))
-        .set("y", round(y))
-        .set("text-anchor", anchor)
-        .set("fill", INK)
-}
-
-fn round(v: f64) -> f64 {
-    (v * 100.0).round() / 100.0
 }
 
 #[cfg(test)]

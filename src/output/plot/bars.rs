@@ -6,10 +6,9 @@
 //! fills, which a page would have to reference by `url(#...)`. Every bar carries
 //! `data-row`, `data-class` and `data-count` with the value it was given.
 
-use svg::node::element::{Circle, Element, Group, Line, Rectangle, Text, Title};
+use super::shapes::{round, text, INK};
+use svg::node::element::{Circle, Element, Group, Line, Rectangle, Title};
 use svg::node::Node;
-
-const INK: &str = "#222";
 
 /// How a bar (or a swatch) is filled besides its colour.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -218,18 +217,6 @@ pub fn hatch_lines(x: f64, y: f64, w: f64, h: f64, spacing: f64) -> Vec<(f64, f6
         c += spacing;
     }
     out
-}
-
-fn text(x: f64, y: f64, s: &str, anchor: &str) -> Text {
-    Text::new(s)
-        .set("x", round(x))
-        .set("y", round(y))
-        .set("text-anchor", anchor)
-        .set("fill", INK)
-}
-
-fn round(v: f64) -> f64 {
-    (v * 100.0).round() / 100.0
 }
 
 #[cfg(test)]

@@ -6,8 +6,9 @@
 //! ticks, labels) is ours. Every drawn point carries `data-x` and `data-y` with the values
 //! it was given, unrounded.
 
+use super::shapes::{line, round, text, INK};
 use svg::node::element::Element;
-use svg::node::element::{Circle, Group, Line, Path, Polygon, Rectangle, Text, Title};
+use svg::node::element::{Circle, Group, Path, Polygon, Rectangle, Title};
 use svg::node::Node;
 
 /// One axis: its range, whether it is logarithmic, and how its tick labels read.
@@ -188,7 +189,6 @@ const LEFT: f64 = 62.0;
 const RIGHT: f64 = 118.0;
 const TOP: f64 = 46.0;
 const BOTTOM: f64 = 44.0;
-const INK: &str = "#222";
 const GRID: &str = "#d8d8d8";
 
 /// Two colours that stay apart in grey as well (dark blue, light orange).
@@ -362,28 +362,6 @@ impl Chart {
             )
             .add(text(tx, ty, &c.label, anchor).set("font-weight", "bold"))
     }
-}
-
-fn line(x1: f64, y1: f64, x2: f64, y2: f64, stroke: &str, width: f64) -> Line {
-    Line::new()
-        .set("x1", round(x1))
-        .set("y1", round(y1))
-        .set("x2", round(x2))
-        .set("y2", round(y2))
-        .set("stroke", stroke)
-        .set("stroke-width", width)
-}
-
-fn text(x: f64, y: f64, s: &str, anchor: &str) -> Text {
-    Text::new(s)
-        .set("x", round(x))
-        .set("y", round(y))
-        .set("text-anchor", anchor)
-        .set("fill", INK)
-}
-
-fn round(v: f64) -> f64 {
-    (v * 100.0).round() / 100.0
 }
 
 fn marker(kind: Marker, x: f64, y: f64, colour: &str, r: f64) -> svg::node::element::Element {

@@ -8,5 +8,6 @@
 pub mod bars;
 pub mod chart;
 pub mod pour;
+pub mod shapes;
 pub mod spark;
 pub mod steps;
