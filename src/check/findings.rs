@@ -5,7 +5,7 @@ use super::{CheckError, CheckOptions};
 use crate::catalog::Catalog;
 use crate::chem::Closure;
 use crate::judge::assess::{fmt_times, where_in_pour};
-use crate::judge::rules::evaluate::{Present, RuleContext};
+use crate::judge::rules::evaluate::{Present, RuleContext, RuleHit};
 use crate::judge::rules::{Computed, Origin, RuleSet};
 use crate::judge::thresholds::Thresholds;
 use crate::pour::batch::Batch;
@@ -147,8 +147,7 @@ pub(super) fn computed_note(
 /// nothing came off.
 pub(super) fn uncomputed_gases(
     cat: &Catalog,
-    rules: &RuleSet,
-    ctx: &RuleContext,
+    hits: &[RuleHit],
     end: &StateReport,
     worst: &StateReport,
     released: &[ReleaseReport],
@@ -158,7 +157,7 @@ pub(super) fn uncomputed_gases(
             || released.iter().any(|r| r.formula == g)
     };
     let mut out: Vec<String> = Vec::new();
-    for hit in rules.evaluate(cat, ctx) {
+    for hit in hits {
         for g in &hit.rule.rule.forms {
             if cat.gas_limits(g).is_some() && !computed(g) && !out.contains(g) {
                 out.push(g.clone());
@@ -178,16 +177,13 @@ pub(super) fn origin_text(o: &Origin, id: &str) -> String {
 /// Findings from the rules the mixture meets; a site rule that raises another lifts that
 /// finding's severity and never lowers it.
 pub(super) fn rule_findings(
-    cat: &Catalog,
-    rules: &RuleSet,
-    ctx: &RuleContext,
+    hits: &[RuleHit],
     end: &StateReport,
     worst: &StateReport,
     released: &[ReleaseReport],
 ) -> Vec<Finding> {
-    let hits = rules.evaluate(cat, ctx);
     let mut out: Vec<Finding> = Vec::new();
-    for hit in &hits {
+    for hit in hits {
         let r = &hit.rule.rule;
         let met: Vec<String> = hit.groups.iter().map(|g| g.join(" or ")).collect();
         out.push(Finding {
@@ -209,7 +205,7 @@ pub(super) fn rule_findings(
             origin: origin_text(&hit.rule.origin, &r.id),
         });
     }
-    for hit in &hits {
+    for hit in hits {
         let r = &hit.rule.rule;
         let Some(target) = &r.raises else { continue };
         if let Some(f) = out.iter_mut().find(|f| &f.code == target) {

@@ -330,8 +330,11 @@ fn judge(i: &Inputs, m: &Mixtures, s: &Scans) -> Judged {
         opts.action,
     ));
     let room = room_section(i, m, s, &mut findings);
-    findings.extend(rule_findings(cat, i.rules, &ctx, &end, &worst, &released));
-    let uncomputed_gases = uncomputed_gases(cat, i.rules, &ctx, &end, &worst, &released);
+    // The rules met are evaluated once: their findings and the gases they name that no
+    // state computed both come from the same hits.
+    let hits = i.rules.evaluate(cat, &ctx);
+    findings.extend(rule_findings(&hits, &end, &worst, &released));
+    let uncomputed_gases = uncomputed_gases(cat, &hits, &end, &worst, &released);
     findings.extend(unruled_findings(cat, i.rules, i.container, i.stream));
     let inert = inert_names(cat, i.container, i.stream);
     findings.extend(inert_finding(&inert));

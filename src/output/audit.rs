@@ -104,18 +104,15 @@ pub fn audit_table(r: &AuditReport) -> String {
     out
 }
 
+/// How many pairs are to stop and how many to review.
+fn stop_and_review_counts(r: &AuditReport) -> (usize, usize) {
+    let count = |s: Severity| r.findings.iter().filter(|f| f.severity == s).count();
+    (count(Severity::Stop), count(Severity::Review))
+}
+
 /// The findings, worst first (the first 50; the rest are counted).
 fn findings_text(out: &mut String, r: &AuditReport) {
-    let stops = r
-        .findings
-        .iter()
-        .filter(|f| f.severity == Severity::Stop)
-        .count();
-    let reviews = r
-        .findings
-        .iter()
-        .filter(|f| f.severity == Severity::Review)
-        .count();
+    let (stops, reviews) = stop_and_review_counts(r);
     let _ = writeln!(
         out,
         "{} to stop, {reviews} to review{}",
@@ -363,16 +360,7 @@ pub fn audit_markdown(r: &AuditReport) -> String {
         r.file, c.containers, c.spill_zones, c.cabinets, c.pairs_that_can_meet, c.pairs_cleared_by_screening, c.pairs_checked
     );
     let _ = writeln!(out, "**Verdict: {}**\n", r.severity.word().to_uppercase());
-    let stops = r
-        .findings
-        .iter()
-        .filter(|f| f.severity == Severity::Stop)
-        .count();
-    let reviews = r
-        .findings
-        .iter()
-        .filter(|f| f.severity == Severity::Review)
-        .count();
+    let (stops, reviews) = stop_and_review_counts(r);
     let _ = writeln!(
         out,
         "## Findings\n\n{stops} pairs to stop, {reviews} to review, worst first.\n"
